@@ -1,0 +1,26 @@
+# Thin wrapper: dependencies, configure, build, then run.
+BUILD ?= build
+JOBS ?= $(shell nproc)
+
+.PHONY: all deps build demo test bench clean
+
+all: build
+
+deps:
+	@bash scripts/install-deps.sh
+
+build: deps
+	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release > /dev/null
+	@cmake --build $(BUILD) -j $(JOBS)
+
+demo: build
+	$(BUILD)/linkrise run cases/demo_storage_rack.yaml -o out/demo
+
+test: build
+	cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
+
+bench: build
+	$(BUILD)/linkrise_bench
+
+clean:
+	rm -rf $(BUILD) out

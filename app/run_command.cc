@@ -1,0 +1,53 @@
+#include "app/run_command.h"
+
+#include <cstdio>
+#include <iostream>
+
+#include <fmt/format.h>
+
+#include "analysis/energy_audit.h"
+#include "app/exit_codes.h"
+#include "app/output_files.h"
+#include "app/run_summary.h"
+#include "app/waveform_csv.h"
+#include "netlist/parameter_reader.h"
+#include "solver/circuit.h"
+#include "solver/transient.h"
+
+namespace linkrise::app {
+
+int run_command(const RunArguments& arguments) {
+  try {
+    netlist::Case spec = netlist::load_case(arguments.case_file);
+    solver::Circuit circuit(spec);
+    solver::Options options = solver::options_from(circuit);
+    if (arguments.sample) {
+      netlist::Tree node = netlist::Tree::scalar(*arguments.sample, netlist::SourceMark{"--sample", 0, 0});
+      options.sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Positive,
+                                                            "option --sample");
+    }
+    if (arguments.relative_tolerance) options.relative_tolerance = *arguments.relative_tolerance;
+    if (arguments.absolute_tolerance) options.absolute_tolerance = *arguments.absolute_tolerance;
+    solver::Result result = solver::simulate(circuit, options);
+    analysis::EnergyAudit audit = analysis::audit_energy(circuit, result);
+    if (result.outcome == solver::Outcome::SolverFailure) {
+      std::cerr << fmt::format("linkrise: solver failure in '{}': {}\n", arguments.case_file, result.message);
+      return kExitSolverFailure;
+    }
+    OutputSet outputs(arguments.output_directory);
+    outputs.add("waveforms.csv", waveform_csv(options.sample ? result.samples : result.steps));
+    outputs.add("summary.json", run_summary(circuit, result, audit).dump(2) + "\n");
+    outputs.commit();
+    if (!arguments.quiet) {
+      std::cout << terminal_summary(circuit, result, audit);
+      std::cout << fmt::format("  wrote     {} and {}\n", outputs.path("waveforms.csv").string(),
+                               outputs.path("summary.json").string());
+    }
+    return kExitOk;
+  } catch (const netlist::InputError& error) {
+    std::cerr << error.what() << "\n";
+    return kExitInputError;
+  }
+}
+
+}  // namespace linkrise::app

@@ -1,0 +1,20 @@
+#pragma once
+// `linkrise run CASE.yaml`: simulate one case, write waveforms.csv and summary.json, print a summary.
+#include <optional>
+#include <string>
+
+namespace linkrise::app {
+
+struct RunArguments {
+  std::string case_file;
+  std::string output_directory = "out";
+  std::optional<std::string> sample;  // a time such as "1 ms"
+  std::optional<double> relative_tolerance;
+  std::optional<double> absolute_tolerance;
+  bool quiet = false;
+};
+
+/// Returns the process exit code (0 ok, 2 input error, 3 solver failure).
+int run_command(const RunArguments& arguments);
+
+}  // namespace linkrise::app

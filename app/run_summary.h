@@ -1,0 +1,24 @@
+#pragma once
+// summary.json for one run, and the short terminal summary. Every number is {"value": x, "unit": "..."}.
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "analysis/energy_audit.h"
+#include "solver/circuit.h"
+#include "solver/transient.h"
+
+namespace linkrise::app {
+
+/// {"value": x, "unit": u}
+nlohmann::json quantity(double value, const std::string& unit);
+
+nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result& result,
+                           const analysis::EnergyAudit& audit);
+std::string terminal_summary(const solver::Circuit& circuit, const solver::Result& result,
+                             const analysis::EnergyAudit& audit);
+
+/// The caution printed in reports and at the end of the README.
+const char* safety_caution();
+
+}  // namespace linkrise::app

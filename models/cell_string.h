@@ -1,0 +1,21 @@
+#pragma once
+// Kind `cell_string`: a battery of identical cells, `cells_in_series` × `cells_in_parallel`, each a Thevenin
+// model: open-circuit voltage OCV(SOC), series resistance R0 and zero to two RC polarisation pairs.
+//
+// Parameters (per cell): cell_voltage (V, constant OCV) or cell_voltage_table (rows [SOC, V], SOC strictly
+//   increasing, linear interpolation, held constant outside the table); cell_resistance R0 (Ohm, >= 0);
+//   polarisation: list of up to two {resistance (Ohm, > 0), capacitance (F, > 0)}; cell_capacity Q (Ah, > 0);
+//   initial_soc (fraction or %, default 100 %); cells_in_series s (>= 1); cells_in_parallel p (>= 1, default 1).
+// String values: E = s·OCV, R0s = s·R0/p, Rk = s·Rk/p, Ck = p·Ck/s.
+// States: soc (1), then one voltage per pair vk (V).
+// Unknowns: branch current j (A, entering the positive terminal; discharge current is id = -j).
+// Equations: v+ - v- = E(soc) - R0s·id - Σ vk;  Ck·dvk/dt = id - vk/Rk;  dsoc/dt = -id / (p·3600·Q).
+// Source power: E·id.  Heat: R0s·id² + Σ vk²/Rk.  Stored: Σ ½·Ck·vk².
+// Output: current and power positive while discharging; extra signals soc [%], open_circuit_voltage [V].
+#include <memory>
+
+#include "models/part.h"
+
+namespace linkrise::models {
+std::unique_ptr<Part> make_cell_string(const netlist::PartSpec& spec);
+}

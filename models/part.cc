@@ -1,0 +1,64 @@
+#include "models/part.h"
+
+#include <cassert>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+namespace linkrise::models {
+
+Part::Part(const netlist::PartSpec& spec)
+    : name_(spec.name), kind_(spec.kind), nodes_(spec.nodes), mark_(spec.mark) {}
+
+std::vector<SignalInfo> Part::signals() const {
+  std::vector<SignalInfo> list = {{"current", "A"}, {"voltage", "V"}, {"power", "W"}};
+  for (auto& extra : do_extra_signals()) list.push_back(std::move(extra));
+  return list;
+}
+
+void Part::stamp(const Point& point, const Layout& layout, Stamp& stamp) const {
+  assert(point.unknowns != nullptr);
+  if (branch_count() > 0 && layout.branch < 0) {
+    throw std::logic_error(fmt::format("part '{}' needs a branch unknown but the layout has none", name_));
+  }
+  do_stamp(point, layout, stamp);
+}
+
+void Part::signal_values(const Point& point, const Layout& layout, double* out) const {
+  double sign = do_output_sign();
+  double current = do_current(point, layout);
+  double voltage = point.voltage(layout);
+  out[0] = sign * current;
+  out[1] = voltage;
+  out[2] = sign * current * voltage;
+  do_extra_signal_values(point, layout, out + 3);
+}
+
+void Part::roots(const Point& point, const Layout& layout, double* out) const {
+  if (root_count() > 0) do_roots(point, layout, out);
+}
+
+ModeChange Part::on_root(int index, int direction, const Layout& layout, int* modes) const {
+  if (index < 0 || index >= root_count()) {
+    throw std::logic_error(fmt::format("part '{}' has no root {}", name_, index));
+  }
+  return do_on_root(index, direction, layout, modes);
+}
+
+netlist::ParameterReader open_parameters(const netlist::PartSpec& spec) {
+  netlist::ParameterReader reader(spec.block, fmt::format("part '{}' ({})", spec.name, spec.kind));
+  reader.accept("name");
+  reader.accept("kind");
+  reader.accept("nodes");
+  return reader;
+}
+
+ModeChange Part::command(const std::string& action, const Layout& layout, int* modes) const {
+  return do_command(action, layout, modes);
+}
+
+ModeChange Part::do_command(const std::string& action, const Layout&, int*) const {
+  return ModeChange{false, fmt::format("part '{}' of kind {} cannot '{}'", name_, kind_, action)};
+}
+
+}  // namespace linkrise::models

@@ -1,0 +1,58 @@
+#include "models/registry.h"
+
+#include <functional>
+#include <utility>
+
+#include <fmt/format.h>
+
+#include "models/capacitor.h"
+#include "models/cell_string.h"
+#include "models/contactor.h"
+#include "models/dc_source.h"
+#include "models/diode.h"
+#include "models/inductive_branch.h"
+#include "models/resistor.h"
+#include "models/switched_load.h"
+
+namespace linkrise::models {
+namespace {
+using Factory = std::unique_ptr<Part> (*)(const netlist::PartSpec&);
+
+const std::vector<std::pair<std::string, Factory>>& table() {
+  static const std::vector<std::pair<std::string, Factory>> kinds = {
+      {"dc_source", make_dc_source},
+      {"cell_string", make_cell_string},
+      {"resistor", make_resistor},
+      {"inductor", make_inductor},
+      {"cable", make_cable},
+      {"capacitor", make_capacitor},
+      {"contactor", make_contactor},
+      {"constant_power_load", make_constant_power_load},
+      {"constant_current_load", make_constant_current_load},
+      {"diode", make_diode},
+  };
+  return kinds;
+}
+}  // namespace
+
+std::vector<std::string> part_kinds() {
+  std::vector<std::string> names;
+  for (const auto& [name, factory] : table()) names.push_back(name);
+  return names;
+}
+
+std::unique_ptr<Part> create_part(const netlist::PartSpec& spec) {
+  for (const auto& [name, factory] : table()) {
+    if (name == spec.kind) return factory(spec);
+  }
+  const netlist::Tree* kind = spec.block.find("kind");
+  std::string suggestion = netlist::closest_match(spec.kind, part_kinds());
+  std::string list;
+  for (const auto& name : part_kinds()) list += (list.empty() ? "" : ", ") + name;
+  throw netlist::InputError(kind ? kind->mark : spec.mark,
+                            fmt::format("part '{}' has unknown kind '{}'", spec.name, spec.kind),
+                            suggestion.empty() ? fmt::format("known kinds: {}", list)
+                                               : fmt::format("did you mean '{}'?", suggestion));
+}
+
+}  // namespace linkrise::models

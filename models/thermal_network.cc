@@ -1,0 +1,215 @@
+#include "models/thermal_network.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+
+#include "models/number_text.h"
+
+namespace linkrise::models {
+namespace {
+
+std::string number(double value) { return number_text(value); }
+
+std::string violation(const std::string& network, const std::string& field, double value,
+                      const char* rule) {
+  return network + ": " + field + " = " + number(value) + " " + rule;
+}
+
+bool positive(double value) { return finite_positive(value); }
+// +infinity is the adiabatic limit; conductance 1/R is then exactly 0.
+bool positive_or_infinite(double value) { return value > 0.0 && !std::isnan(value); }
+
+template <typename... Handlers>
+struct Overloaded : Handlers... {
+  using Handlers::operator()...;
+};
+template <typename... Handlers>
+Overloaded(Handlers...) -> Overloaded<Handlers...>;
+
+double foster_total_resistance(const std::vector<FosterTerm>& terms) {
+  double total = 0.0;
+  for (const auto& term : terms) total += term.thermal_resistance;
+  return total;
+}
+
+}  // namespace
+
+std::variant<ThermalNetwork, std::string> ThermalNetwork::create(const OneNodeParameters& p) {
+  const std::string network = "OneNode";
+  if (!positive(p.heat_capacity))
+    return violation(network, "heat_capacity", p.heat_capacity, "must be finite and > 0 J/K");
+  if (!positive_or_infinite(p.thermal_resistance))
+    return violation(network, "thermal_resistance", p.thermal_resistance,
+                     "must be > 0 K/W (+infinity for adiabatic)");
+  return ThermalNetwork(p);
+}
+
+std::variant<ThermalNetwork, std::string> ThermalNetwork::create(const TwoNodeParameters& p) {
+  const std::string network = "TwoNode";
+  if (!positive(p.element_heat_capacity))
+    return violation(network, "element_heat_capacity", p.element_heat_capacity, "must be finite and > 0 J/K");
+  if (!positive(p.element_to_body_resistance))
+    return violation(network, "element_to_body_resistance", p.element_to_body_resistance,
+                     "must be finite and > 0 K/W");
+  if (!positive(p.body_heat_capacity))
+    return violation(network, "body_heat_capacity", p.body_heat_capacity, "must be finite and > 0 J/K");
+  if (!positive_or_infinite(p.body_to_ambient_resistance))
+    return violation(network, "body_to_ambient_resistance", p.body_to_ambient_resistance,
+                     "must be > 0 K/W (+infinity for adiabatic)");
+  return ThermalNetwork(p);
+}
+
+std::variant<ThermalNetwork, std::string> ThermalNetwork::create(std::vector<FosterTerm> terms) {
+  const std::string network = "Foster";
+  if (terms.empty()) return violation(network, "terms.size()", 0.0, "must be >= 1");
+  for (std::size_t i = 0; i < terms.size(); ++i) {
+    const std::string prefix = "terms[" + std::to_string(i) + "].";
+    if (!positive(terms[i].thermal_resistance))
+      return violation(network, prefix + "thermal_resistance", terms[i].thermal_resistance,
+                       "must be finite and > 0 K/W");
+    if (!positive(terms[i].time_constant))
+      return violation(network, prefix + "time_constant", terms[i].time_constant, "must be finite and > 0 s");
+  }
+  return ThermalNetwork(std::move(terms));
+}
+
+std::size_t ThermalNetwork::state_count() const {
+  return std::visit(Overloaded{[](const OneNodeParameters&) -> std::size_t { return 1; },
+                               [](const TwoNodeParameters&) -> std::size_t { return 2; },
+                               [](const std::vector<FosterTerm>& terms) { return terms.size(); }},
+                    parameters_);
+}
+
+void ThermalNetwork::initial_states(double ambient, std::span<double> states) const {
+  if (std::holds_alternative<std::vector<FosterTerm>>(parameters_))
+    std::fill(states.begin(), states.end(), 0.0);  // rises
+  else
+    std::fill(states.begin(), states.end(), ambient);  // absolute node temperatures
+}
+
+void ThermalNetwork::derivatives(std::span<const double> x, double power, double ambient,
+                                 std::span<double> out) const {
+  std::visit(Overloaded{
+                 [&](const OneNodeParameters& p) {
+                   out[0] = (power - (x[0] - ambient) / p.thermal_resistance) / p.heat_capacity;
+                 },
+                 [&](const TwoNodeParameters& p) {
+                   const double inner = (x[0] - x[1]) / p.element_to_body_resistance;
+                   const double outer = (x[1] - ambient) / p.body_to_ambient_resistance;
+                   out[0] = (power - inner) / p.element_heat_capacity;
+                   out[1] = (inner - outer) / p.body_heat_capacity;
+                 },
+                 [&](const std::vector<FosterTerm>& terms) {
+                   for (std::size_t i = 0; i < terms.size(); ++i)
+                     out[i] = (power * terms[i].thermal_resistance - x[i]) / terms[i].time_constant;
+                 }},
+             parameters_);
+}
+
+void ThermalNetwork::state_jacobian(std::span<double> out) const {
+  std::fill(out.begin(), out.end(), 0.0);
+  std::visit(Overloaded{
+                 [&](const OneNodeParameters& p) {
+                   out[0] = -1.0 / (p.thermal_resistance * p.heat_capacity);
+                 },
+                 [&](const TwoNodeParameters& p) {
+                   const double inner = 1.0 / p.element_to_body_resistance;
+                   const double outer = 1.0 / p.body_to_ambient_resistance;
+                   out[0] = -inner / p.element_heat_capacity;
+                   out[1] = inner / p.element_heat_capacity;
+                   out[2] = inner / p.body_heat_capacity;
+                   out[3] = -(inner + outer) / p.body_heat_capacity;
+                 },
+                 [&](const std::vector<FosterTerm>& terms) {
+                   const std::size_t n = terms.size();
+                   for (std::size_t i = 0; i < n; ++i) out[i * n + i] = -1.0 / terms[i].time_constant;
+                 }},
+             parameters_);
+}
+
+void ThermalNetwork::power_jacobian(std::span<double> out) const {
+  std::visit(Overloaded{[&](const OneNodeParameters& p) { out[0] = 1.0 / p.heat_capacity; },
+                        [&](const TwoNodeParameters& p) {
+                          out[0] = 1.0 / p.element_heat_capacity;
+                          out[1] = 0.0;
+                        },
+                        [&](const std::vector<FosterTerm>& terms) {
+                          for (std::size_t i = 0; i < terms.size(); ++i)
+                            out[i] = terms[i].thermal_resistance / terms[i].time_constant;
+                        }},
+             parameters_);
+}
+
+void ThermalNetwork::ambient_jacobian(std::span<double> out) const {
+  std::visit(Overloaded{[&](const OneNodeParameters& p) {
+                          out[0] = 1.0 / (p.thermal_resistance * p.heat_capacity);
+                        },
+                        [&](const TwoNodeParameters& p) {
+                          out[0] = 0.0;
+                          out[1] = 1.0 / (p.body_to_ambient_resistance * p.body_heat_capacity);
+                        },
+                        // Foster states are rises, so ambient does not drive them.
+                        [&](const std::vector<FosterTerm>&) { std::fill(out.begin(), out.end(), 0.0); }},
+             parameters_);
+}
+
+double ThermalNetwork::element_temperature(std::span<const double> x, double ambient) const {
+  if (std::holds_alternative<std::vector<FosterTerm>>(parameters_)) {
+    double rise = 0.0;
+    for (double term_rise : x) rise += term_rise;
+    return ambient + rise;
+  }
+  return x[0];
+}
+
+void ThermalNetwork::element_temperature_gradient(std::span<double> out) const {
+  if (std::holds_alternative<std::vector<FosterTerm>>(parameters_)) {
+    std::fill(out.begin(), out.end(), 1.0);
+    return;
+  }
+  std::fill(out.begin(), out.end(), 0.0);
+  out[0] = 1.0;
+}
+
+double ThermalNetwork::stored_heat(std::span<const double> x, double ambient) const {
+  return std::visit(Overloaded{[&](const OneNodeParameters& p) { return p.heat_capacity * (x[0] - ambient); },
+                               [&](const TwoNodeParameters& p) {
+                                 return p.element_heat_capacity * (x[0] - ambient) +
+                                        p.body_heat_capacity * (x[1] - ambient);
+                               },
+                               [&](const std::vector<FosterTerm>& terms) {
+                                 double weighted = 0.0;
+                                 for (std::size_t i = 0; i < terms.size(); ++i)
+                                   weighted += terms[i].time_constant * x[i];
+                                 return weighted / foster_total_resistance(terms);
+                               }},
+                    parameters_);
+}
+
+double ThermalNetwork::heat_to_ambient(std::span<const double> x, double ambient) const {
+  return std::visit(
+      Overloaded{[&](const OneNodeParameters& p) { return (x[0] - ambient) / p.thermal_resistance; },
+                 [&](const TwoNodeParameters& p) { return (x[1] - ambient) / p.body_to_ambient_resistance; },
+                 [&](const std::vector<FosterTerm>& terms) {
+                   return (element_temperature(x, ambient) - ambient) / foster_total_resistance(terms);
+                 }},
+      parameters_);
+}
+
+double ThermalNetwork::total_thermal_resistance() const {
+  return std::visit(Overloaded{[](const OneNodeParameters& p) { return p.thermal_resistance; },
+                               [](const TwoNodeParameters& p) {
+                                 return p.element_to_body_resistance + p.body_to_ambient_resistance;
+                               },
+                               [](const std::vector<FosterTerm>& terms) {
+                                 return foster_total_resistance(terms);
+                               }},
+                    parameters_);
+}
+
+double adiabatic_temperature_rise(double energy, double mass, double specific_heat) {
+  return energy / (mass * specific_heat);
+}
+
+}  // namespace linkrise::models

@@ -1,0 +1,211 @@
+#include "netlist/case.h"
+
+#include <algorithm>
+#include <cctype>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "netlist/parameter_reader.h"
+
+namespace linkrise::netlist {
+
+const PartSpec* Case::find_part(const std::string& name) const {
+  for (const auto& part : parts) {
+    if (part.name == name) return &part;
+  }
+  return nullptr;
+}
+
+const Tree* Case::section(const std::string& name) const {
+  const Tree* node = root.find(name);
+  return (node != nullptr && node->kind != Tree::Kind::Null) ? node : nullptr;
+}
+
+const std::vector<std::string>& case_sections() {
+  static const std::vector<std::string> sections = {"title",    "ground",    "ambient",   "parts",
+                                                    "events",   "run",       "sequence",  "limits",
+                                                    "scenarios", "variants", "tolerances", "expect",
+                                                    "notes"};
+  return sections;
+}
+
+bool valid_part_name(const std::string& name) {
+  if (name.empty() || name.size() > 64 || std::isdigit(static_cast<unsigned char>(name[0]))) return false;
+  return std::all_of(name.begin(), name.end(),
+                     [](char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_'; });
+}
+
+bool valid_node_name(const std::string& name) {
+  if (name.empty() || name.size() > 64) return false;
+  return std::all_of(name.begin(), name.end(),
+                     [](char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_'; });
+}
+
+namespace {
+std::string scalar_text(const Tree& node, const std::string& what) {
+  if (!node.is_scalar()) throw InputError(node.mark, fmt::format("{} must be a single word", what));
+  return node.text;
+}
+
+PartSpec read_part(const Tree& block, std::size_t index, const std::string& file) {
+  (void)file;
+  std::string owner = fmt::format("part #{}", index + 1);
+  if (!block.is_map()) {
+    throw InputError(block.mark, fmt::format("{} must be a block with name, kind, nodes and parameters", owner),
+                     "write '- name: r_pre' and indent its kind, nodes and parameters below");
+  }
+  PartSpec part;
+  part.mark = block.mark;
+  part.block = block;
+  const Tree* name = block.find("name");
+  if (name == nullptr) {
+    throw InputError(block.mark, fmt::format("{} has no 'name'", owner), "add 'name: <letters, digits, _>'");
+  }
+  part.name = scalar_text(*name, "a part's name");
+  if (!valid_part_name(part.name)) {
+    throw InputError(name->mark,
+                     fmt::format("part name '{}' may only contain letters, digits and '_' and must not start "
+                                 "with a digit (it becomes an output column '<name>.current [A]')",
+                                 part.name),
+                     "rename it, e.g. 'r_pre' or 'link_capacitor'");
+  }
+  owner = fmt::format("part '{}'", part.name);
+  const Tree* kind = block.find("kind");
+  if (kind == nullptr) {
+    throw InputError(block.mark, fmt::format("{} has no 'kind'", owner), "add e.g. 'kind: resistor'");
+  }
+  part.kind = scalar_text(*kind, "a part's kind");
+  const Tree* nodes = block.find("nodes");
+  if (nodes == nullptr) {
+    throw InputError(block.mark, fmt::format("{} has no 'nodes'", owner),
+                     "add 'nodes: [positive, negative]' naming the two nodes it connects");
+  }
+  if (!nodes->is_list() || nodes->items.size() != 2) {
+    throw InputError(nodes->mark, fmt::format("{}: 'nodes' must list exactly two nodes", owner),
+                     "write 'nodes: [positive, negative]'");
+  }
+  for (int i = 0; i < 2; ++i) {
+    const Tree& node = nodes->items[i];
+    part.nodes[i] = scalar_text(node, "a node name");
+    if (!valid_node_name(part.nodes[i])) {
+      throw InputError(node.mark,
+                       fmt::format("{}: node name '{}' may only contain letters, digits and '_'", owner,
+                                   part.nodes[i]),
+                       "rename the node, e.g. 'link_plus'");
+    }
+  }
+  return part;
+}
+}  // namespace
+
+Case read_case(const Tree& root, const std::string& file) {
+  Case result;
+  result.file = file;
+  result.root = root;
+  if (!root.is_map()) {
+    throw InputError(root.mark.line ? root.mark : SourceMark{file, 1, 1},
+                     "a case file must be a block of top-level keys (title, ground, parts, run...)",
+                     "start from a stored case in cases/");
+  }
+  ParameterReader top(root, "the case");
+  for (const auto& section : case_sections()) top.accept(section);
+  top.finish();
+
+  result.title = top.text("title").value_or("untitled case");
+  auto ground = top.text("ground");
+  if (!ground) {
+    throw InputError(root.mark, "the case has no 'ground' (the node at 0 V)", "add e.g. 'ground: pack_minus'");
+  }
+  result.ground = *ground;
+  result.ambient = top.quantity("ambient", Dimension::temperature(), Bound::Positive, 298.15);
+
+  const Tree* parts = root.find("parts");
+  if (parts == nullptr || !parts->is_list() || parts->items.empty()) {
+    throw InputError(parts ? parts->mark : root.mark, "the case needs a non-empty list 'parts'",
+                     "list the parts, each starting with '- name:'");
+  }
+  std::set<std::string> names;
+  bool ground_used = false;
+  for (std::size_t i = 0; i < parts->items.size(); ++i) {
+    PartSpec part = read_part(parts->items[i], i, file);
+    if (!names.insert(part.name).second) {
+      throw InputError(part.block.find("name")->mark, fmt::format("part name '{}' is used twice", part.name),
+                       "give every part its own name");
+    }
+    if (part.nodes[0] == result.ground || part.nodes[1] == result.ground) ground_used = true;
+    result.parts.push_back(std::move(part));
+  }
+  if (!ground_used) {
+    throw InputError(root.find("ground")->mark,
+                     fmt::format("ground node '{}' is not connected to any part", result.ground),
+                     "name a node that appears in some part's 'nodes'");
+  }
+
+  if (const Tree* events = root.find("events"); events != nullptr && events->kind != Tree::Kind::Null) {
+    if (!events->is_list()) {
+      throw InputError(events->mark, "'events' must be a list such as '- {at: 10 ms, close: k_main}'");
+    }
+    static const std::vector<std::string> actions = {"close", "open", "enable", "disable"};
+    for (const Tree& item : events->items) {
+      ParameterReader reader(item, "an event");
+      EventSpec event;
+      event.mark = item.mark;
+      event.at = reader.required("at", Dimension::time(), Bound::NonNegative);
+      int found = 0;
+      for (const auto& action : actions) {
+        if (auto target = reader.text(action)) {
+          event.action = action;
+          event.target = *target;
+          ++found;
+        }
+      }
+      reader.finish();
+      if (found != 1) {
+        throw InputError(item.mark, "an event needs exactly one action: close, open, enable or disable",
+                         "write e.g. '- {at: 250 ms, close: k_main}'");
+      }
+      if (result.find_part(event.target) == nullptr) {
+        std::vector<std::string> candidates(names.begin(), names.end());
+        std::string suggestion = closest_match(event.target, candidates);
+        throw InputError(reader.mark(event.action),
+                         fmt::format("event at {} s names part '{}', which is not in the parts list", event.at,
+                                     event.target),
+                         suggestion.empty() ? "name one of the parts" : fmt::format("did you mean '{}'?", suggestion));
+      }
+      result.events.push_back(event);
+    }
+    std::stable_sort(result.events.begin(), result.events.end(),
+                     [](const EventSpec& a, const EventSpec& b) { return a.at < b.at; });
+  }
+
+  const Tree* run = root.find("run");
+  if (run == nullptr) {
+    throw InputError(root.mark, "the case has no 'run' block", "add 'run: {duration: 2 s}'");
+  }
+  ParameterReader run_reader(*run, "the run block");
+  result.run.duration = run_reader.required("duration", Dimension::time(), Bound::Positive);
+  result.run.relative_tolerance =
+      run_reader.quantity("rtol", Dimension::none(), Bound::Positive, result.run.relative_tolerance);
+  result.run.absolute_tolerance =
+      run_reader.quantity("atol", Dimension::none(), Bound::Positive, result.run.absolute_tolerance);
+  result.run.max_step = run_reader.quantity("max_step", Dimension::time(), Bound::NonNegative, 0.0);
+  result.run.sample = run_reader.optional("sample", Dimension::time(), Bound::Positive);
+  if (result.run.relative_tolerance > 1e-2) {
+    run_reader.fail("rtol", fmt::format("{} is too loose to judge limits", result.run.relative_tolerance),
+                    "use 1e-6 or tighter");
+  }
+  run_reader.finish();
+  for (const auto& event : result.events) {
+    if (event.at > result.run.duration) {
+      throw InputError(event.mark,
+                       fmt::format("event at {} s lies after the end of the run ({} s)", event.at, result.run.duration),
+                       "move the event earlier or lengthen 'run: duration'");
+    }
+  }
+  return result;
+}
+
+Case load_case(const std::string& path) { return read_case(load_yaml_file(path), path); }
+
+}  // namespace linkrise::netlist

@@ -1,0 +1,57 @@
+#pragma once
+// Typed, validated access to one block of a case file (a part's parameters, the run block...).
+// Every key a reader is asked about is remembered, so finish() can name unknown keys with a did-you-mean.
+#include <optional>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "netlist/tree.h"
+#include "netlist/units.h"
+
+namespace linkrise::netlist {
+
+/// The range rule a numeric parameter must satisfy.
+enum class Bound { Any, Positive, NonNegative, Fraction };
+
+class ParameterReader {
+ public:
+  /// `owner` names the block in messages, e.g. "part 'r_pre'".
+  ParameterReader(const Tree& block, std::string owner);
+
+  /// A required quantity of the given dimension.
+  double required(const std::string& key, const Dimension& dimension, Bound bound = Bound::Any);
+  /// An optional quantity with a default (the default is not checked against the bound).
+  double quantity(const std::string& key, const Dimension& dimension, Bound bound, double fallback);
+  /// An optional quantity without a default.
+  std::optional<double> optional(const std::string& key, const Dimension& dimension, Bound bound = Bound::Any);
+  /// A word from a fixed set.
+  std::string word(const std::string& key, const std::vector<std::string>& allowed, const std::string& fallback);
+  /// A non-negative whole number.
+  int count(const std::string& key, int fallback, int minimum = 0);
+  /// A plain string (names, titles).
+  std::optional<std::string> text(const std::string& key);
+  /// A table: a list of rows, each a list of quantities with the given column dimensions.
+  std::vector<std::vector<double>> table(const std::string& key, const std::vector<Dimension>& columns);
+  /// A nested block (map or list) to be read by the caller; nullptr when absent.
+  const Tree* child(const std::string& key);
+  bool has(const std::string& key) const;
+  /// Marks a key as known without reading it (it is read elsewhere).
+  void accept(const std::string& key);
+
+  SourceMark mark(const std::string& key) const;
+  const std::string& owner() const { return owner_; }
+  [[noreturn]] void fail(const std::string& key, const std::string& problem, const std::string& fix = "") const;
+  /// Throws InputError for the first key nobody asked about, suggesting the closest known key.
+  void finish() const;
+
+  /// Parses one scalar node as a quantity of `dimension` and checks `bound`; `what` names it in messages.
+  static double read_value(const Tree& node, const Dimension& dimension, Bound bound, const std::string& what);
+
+ private:
+  const Tree& block_;
+  std::string owner_;
+  std::vector<std::string> known_;
+};
+
+}  // namespace linkrise::netlist

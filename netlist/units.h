@@ -1,0 +1,60 @@
+#pragma once
+// Physical quantities written as text with SI units and prefixes: "47 Ohm", "1.2 mF", "25 degC".
+#include <array>
+#include <optional>
+#include <string>
+#include <string_view>
+
+namespace linkrise::netlist {
+
+/// Exponents of the SI base units kg, m, s, A, K. Dimensionless is all zeros.
+struct Dimension {
+  std::array<int, 5> exponent{0, 0, 0, 0, 0};
+
+  friend bool operator==(const Dimension&, const Dimension&) = default;
+  Dimension operator*(const Dimension& other) const;
+  Dimension operator/(const Dimension& other) const;
+  Dimension power(int n) const;
+  /// A plain name and the unit a person would write, e.g. "resistance (Ohm)".
+  std::string describe() const;
+  /// The unit symbol used in output column headers, e.g. "Ohm", "J/K".
+  std::string symbol() const;
+
+  static Dimension none();
+  static Dimension mass();
+  static Dimension length();
+  static Dimension time();
+  static Dimension current();
+  static Dimension temperature();
+  static Dimension voltage();
+  static Dimension resistance();
+  static Dimension capacitance();
+  static Dimension inductance();
+  static Dimension power_();
+  static Dimension energy();
+  static Dimension charge();
+  static Dimension area();
+  static Dimension heat_capacity();       // J/K
+  static Dimension thermal_resistance();  // K/W
+  static Dimension per_kelvin();          // 1/K
+  static Dimension frequency();
+};
+
+/// A parsed value in SI base units. `bare` is true when the text had no unit at all.
+struct Quantity {
+  double value = 0.0;
+  Dimension dimension;
+  bool bare = false;
+  /// True when the unit was an absolute temperature scale with an offset (degC).
+  bool absolute_temperature = false;
+};
+
+/// Parses "<number> [unit]". Returns std::nullopt and sets `problem` when the text is not a quantity.
+/// Prefixes: p n u µ m k M G (m is milli, M is mega). Units: Ohm Ω F H V A W s J K degC °C % ppm Ah C g m Hz,
+/// with products (*, ·), quotients (/) and powers (^2, ², ³) such as J/K, K/W, mm², %/K, 1/K.
+std::optional<Quantity> parse_quantity(std::string_view text, std::string& problem);
+
+/// Formats a number with an SI prefix and unit, e.g. 0.0012 F -> "1.2 mF" (for messages and terminal output).
+std::string format_si(double value, std::string_view unit, int significant = 4);
+
+}  // namespace linkrise::netlist

@@ -1,0 +1,196 @@
+#include "solver/circuit.h"
+
+#include <algorithm>
+#include <map>
+#include <numeric>
+#include <set>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+#include "models/registry.h"
+
+namespace linkrise::solver {
+
+namespace {
+// Union-find over node indices; ground is index node_count.
+struct Groups {
+  explicit Groups(int size) : parent(size) { std::iota(parent.begin(), parent.end(), 0); }
+  int find(int a) {
+    while (parent[a] != a) a = parent[a] = parent[parent[a]];
+    return a;
+  }
+  bool join(int a, int b) {
+    a = find(a);
+    b = find(b);
+    if (a == b) return false;
+    parent[a] = b;
+    return true;
+  }
+  std::vector<int> parent;
+};
+}  // namespace
+
+Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
+  std::map<std::string, int> nodes;
+  for (const auto& part_spec : spec_.parts) {
+    parts_.push_back(models::create_part(part_spec));
+    for (const auto& node : part_spec.nodes) {
+      if (node != spec_.ground && nodes.find(node) == nodes.end()) {
+        int index = static_cast<int>(node_names_.size());
+        nodes[node] = index;
+        node_names_.push_back(node);
+      }
+    }
+  }
+  int unknown = static_cast<int>(node_names_.size());
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    const models::Part& part = *parts_[p];
+    models::Layout layout;
+    for (int t = 0; t < 2; ++t) {
+      const std::string& node = part.nodes()[t];
+      layout.node[t] = node == spec_.ground ? -1 : nodes.at(node);
+    }
+    if (part.branch_count() > 0) {
+      layout.branch = unknown;
+      unknown += part.branch_count();
+    }
+    auto states = part.states(spec_.ambient);
+    if (!states.empty()) layout.state = static_cast<int>(state_info_.size());
+    for (auto& state : states) state_info_.push_back(std::move(state));
+    auto modes = part.initial_modes();
+    if (!modes.empty()) layout.mode = static_cast<int>(initial_modes_.size());
+    initial_modes_.insert(initial_modes_.end(), modes.begin(), modes.end());
+    root_first_.push_back(static_cast<int>(root_owner_.size()));
+    for (int r = 0; r < part.root_count(); ++r) root_owner_.push_back(static_cast<int>(p));
+    if (!part.linear_network()) linear_ = false;
+    layouts_.push_back(layout);
+  }
+  unknown_count_ = unknown;
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    auto channels = parts_[p]->power_channels();
+    if (channels.source) accounts_.push_back({static_cast<int>(p), 0});
+    if (channels.heat) accounts_.push_back({static_cast<int>(p), 1});
+    if (channels.load) accounts_.push_back({static_cast<int>(p), 2});
+    signal_first_.push_back(static_cast<int>(signal_columns_.size()));
+    for (const auto& signal : parts_[p]->signals()) {
+      signal_columns_.push_back(
+          {static_cast<int>(p), fmt::format("{}.{} [{}]", parts_[p]->name(), signal.quantity, signal.unit)});
+    }
+  }
+  check_topology();
+  // Scheduled events must name an action the target part accepts.
+  for (const auto& event : spec_.events) {
+    int index = find_part(event.target);
+    std::vector<int> scratch = initial_modes_;
+    auto change = parts_[index]->command(event.action, layouts_[index], scratch.data());
+    if (!change.problem.empty()) {
+      throw netlist::InputError(event.mark, change.problem, "switch contactors with close/open, loads with enable/disable");
+    }
+  }
+}
+
+int Circuit::find_part(const std::string& name) const {
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    if (parts_[p]->name() == name) return static_cast<int>(p);
+  }
+  return -1;
+}
+
+int Circuit::node_index(const std::string& name) const {
+  if (name == spec_.ground) return -1;
+  for (std::size_t i = 0; i < node_names_.size(); ++i) {
+    if (node_names_[i] == name) return static_cast<int>(i);
+  }
+  throw std::out_of_range(fmt::format("no node '{}'", name));
+}
+
+bool Circuit::has_node(const std::string& name) const {
+  return name == spec_.ground || std::find(node_names_.begin(), node_names_.end(), name) != node_names_.end();
+}
+
+std::vector<double> Circuit::initial_states() const {
+  std::vector<double> x(ode_size(), 0.0);
+  for (std::size_t i = 0; i < state_info_.size(); ++i) x[i] = state_info_[i].initial;
+  return x;
+}
+
+void Circuit::check_topology() const {
+  const int count = static_cast<int>(node_names_.size());
+  const int ground = count;
+  auto index = [&](int node) { return node < 0 ? ground : node; };
+  auto node_label = [&](int node) { return node < 0 ? spec_.ground : node_names_[node]; };
+
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    if (layouts_[p].node[0] == layouts_[p].node[1]) {
+      throw netlist::InputError(parts_[p]->mark(),
+                                fmt::format("part '{}' is connected to itself: both nodes are '{}'", parts_[p]->name(),
+                                            parts_[p]->nodes()[0]),
+                                "connect its two terminals to different nodes");
+    }
+  }
+  // 1. Every node must reach ground through some chain of parts.
+  Groups any(count + 1);
+  for (std::size_t p = 0; p < parts_.size(); ++p) any.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]));
+  for (int n = 0; n < count; ++n) {
+    if (any.find(n) != any.find(ground)) {
+      std::string part_name;
+      for (std::size_t p = 0; p < parts_.size(); ++p) {
+        if (layouts_[p].node[0] == n || layouts_[p].node[1] == n) part_name = parts_[p]->name();
+      }
+      throw netlist::InputError(spec_.find_part(part_name)->mark,
+                                fmt::format("node '{}' has no path to ground '{}': it belongs to a separate "
+                                            "circuit with no connection to the rest",
+                                            node_names_[n], spec_.ground),
+                                "connect that sub-circuit to the rest, or to ground through a resistance");
+    }
+  }
+  // 2. Parts that fix a voltage must not form a loop (the loop's voltages could not all hold).
+  Groups voltage(count + 1);
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    if (parts_[p]->link() != models::Link::VoltageDefined) continue;
+    if (!voltage.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]))) {
+      throw netlist::InputError(
+          parts_[p]->mark(),
+          fmt::format("part '{}' closes a loop of voltage-defining parts (ideal sources, capacitors without ESR, "
+                      "cell strings without resistance) between '{}' and '{}'",
+                      parts_[p]->name(), parts_[p]->nodes()[0], parts_[p]->nodes()[1]),
+          "give one part in the loop a series resistance or an ESR above zero");
+    }
+  }
+  // 3. A node group reached only through inductors or current-drawing loads is a cut-set: the currents
+  //    into it would be fixed independently and could not balance.
+  Groups conductive(count + 1);
+  for (std::size_t p = 0; p < parts_.size(); ++p) {
+    if (parts_[p]->link() == models::Link::CurrentDefined) continue;
+    conductive.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]));
+  }
+  for (int n = 0; n < count; ++n) {
+    if (conductive.find(n) == conductive.find(ground)) continue;
+    std::vector<std::string> members;
+    for (int m = 0; m < count; ++m) {
+      if (conductive.find(m) == conductive.find(n)) members.push_back(node_names_[m]);
+    }
+    std::string boundary;
+    const models::Part* first = nullptr;
+    for (std::size_t p = 0; p < parts_.size(); ++p) {
+      bool a = conductive.find(index(layouts_[p].node[0])) == conductive.find(n);
+      bool b = conductive.find(index(layouts_[p].node[1])) == conductive.find(n);
+      if (a != b) {
+        boundary += (boundary.empty() ? "" : ", ") + parts_[p]->name();
+        if (!first) first = parts_[p].get();
+      }
+    }
+    std::string list;
+    for (const auto& member : members) list += (list.empty() ? "" : ", ") + member;
+    throw netlist::InputError(first ? first->mark() : spec_.parts.front().mark,
+                              fmt::format("node(s) {} connect to the rest of the circuit only through inductors or "
+                                          "current-drawing loads ({}): their currents cannot balance",
+                                          list, boundary),
+                              fmt::format("add a resistance, capacitor or other voltage path from '{}' to the rest "
+                                          "(e.g. a bleed resistor or the load's capacitor)",
+                                          node_label(n)));
+  }
+}
+
+}  // namespace linkrise::solver

@@ -1,0 +1,79 @@
+#pragma once
+// A circuit assembled from a validated case: parts built by the registry, nodes numbered, every part's
+// place in the state, unknown and mode vectors fixed, topology checked. Immutable once built, so many
+// simulations (threads) may share one circuit.
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "models/part.h"
+#include "netlist/case.h"
+
+namespace linkrise::solver {
+
+/// One integrated energy account: part `part`, channel 0 source, 1 heat, 2 load.
+struct EnergyAccount {
+  int part = 0;
+  int channel = 0;
+};
+
+struct SignalColumn {
+  int part = 0;  // owning part
+  std::string header;  // "<part>.<quantity> [unit]"
+};
+
+class Circuit {
+ public:
+  /// Builds and checks the circuit; throws netlist::InputError naming the offending part or node.
+  explicit Circuit(const netlist::Case& spec);
+
+  const netlist::Case& spec() const { return spec_; }
+  int part_count() const { return static_cast<int>(parts_.size()); }
+  const models::Part& part(int index) const { return *parts_[index]; }
+  const models::Layout& layout(int index) const { return layouts_[index]; }
+  /// Index of a part by name, or -1.
+  int find_part(const std::string& name) const;
+
+  /// Non-ground nodes in order of first appearance; node i is unknown i.
+  const std::vector<std::string>& node_names() const { return node_names_; }
+  /// Unknown index of a node, -1 for ground; throws std::out_of_range for an unknown name.
+  int node_index(const std::string& name) const;
+  bool has_node(const std::string& name) const;
+
+  int unknown_count() const { return unknown_count_; }
+  /// Dynamic states of the parts (electrical, thermal, SOC); the energy accounts follow them in the ODE.
+  int part_state_count() const { return static_cast<int>(state_info_.size()); }
+  const std::vector<models::StateInfo>& state_info() const { return state_info_; }
+  const std::vector<EnergyAccount>& energy_accounts() const { return accounts_; }
+  int ode_size() const { return part_state_count() + static_cast<int>(accounts_.size()); }
+  int mode_count() const { return static_cast<int>(initial_modes_.size()); }
+  const std::vector<int>& initial_modes() const { return initial_modes_; }
+  std::vector<double> initial_states() const;
+  /// Total part roots (state events), and which part owns each.
+  int root_count() const { return static_cast<int>(root_owner_.size()); }
+  int root_owner(int root) const { return root_owner_[root]; }
+  int root_first(int part) const { return root_first_[part]; }
+  bool linear_network() const { return linear_; }
+  const std::vector<SignalColumn>& signal_columns() const { return signal_columns_; }
+  /// First signal column of a part (columns are grouped per part in part order).
+  int signal_first(int part) const { return signal_first_[part]; }
+
+ private:
+  void check_topology() const;
+
+  netlist::Case spec_;
+  std::vector<std::unique_ptr<models::Part>> parts_;
+  std::vector<models::Layout> layouts_;
+  std::vector<std::string> node_names_;
+  int unknown_count_ = 0;
+  std::vector<models::StateInfo> state_info_;
+  std::vector<EnergyAccount> accounts_;
+  std::vector<int> initial_modes_;
+  std::vector<int> root_owner_;
+  std::vector<int> root_first_;
+  std::vector<SignalColumn> signal_columns_;
+  std::vector<int> signal_first_;
+  bool linear_ = true;
+};
+
+}  // namespace linkrise::solver

@@ -1,0 +1,134 @@
+#include "solver/equations.h"
+
+#include <algorithm>
+#include <cmath>
+
+namespace linkrise::solver {
+
+Equations::Equations(const Circuit& circuit)
+    : circuit_(circuit),
+      unknowns_(circuit.unknown_count()),
+      states_(circuit.part_state_count()),
+      network_(unknowns_),
+      network_by_unknown_(unknowns_, unknowns_),
+      network_by_state_(unknowns_, std::max(states_, 1)),
+      rate_(std::max(states_, 1)),
+      rate_by_state_(std::max(states_, 1), std::max(states_, 1)),
+      rate_by_unknown_(std::max(states_, 1), unknowns_),
+      factor_(unknowns_),
+      step_(unknowns_) {}
+
+models::Point Equations::point(double time, const double* states, const int* modes, const double* unknowns) const {
+  models::Point p;
+  p.time = time;
+  p.states = states;
+  p.unknowns = unknowns;
+  p.modes = modes;
+  p.ambient = circuit_.spec().ambient;
+  return p;
+}
+
+void Equations::assemble(const models::Point& point, bool derivatives) {
+  network_.setZero();
+  rate_.setZero();
+  models::Stamp::Storage storage;
+  storage.network = network_.data();
+  storage.rate = rate_.data();
+  storage.unknowns = unknowns_;
+  storage.states = states_;
+  if (derivatives) {
+    network_by_unknown_.setZero();
+    network_by_state_.setZero();
+    rate_by_state_.setZero();
+    rate_by_unknown_.setZero();
+    storage.network_by_unknown = network_by_unknown_.data();
+    storage.network_by_state = network_by_state_.data();
+    storage.rate_by_state = rate_by_state_.data();
+    storage.rate_by_unknown = rate_by_unknown_.data();
+  }
+  models::Stamp stamp(storage);
+  for (int p = 0; p < circuit_.part_count(); ++p) circuit_.part(p).stamp(point, circuit_.layout(p), stamp);
+}
+
+bool Equations::solve_network(double time, const double* states, const int* modes, double* unknowns) {
+  Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
+  const int limit = circuit_.linear_network() ? 2 : 60;
+  for (int iteration = 0; iteration < limit; ++iteration) {
+    assemble(point(time, states, modes, unknowns), true);
+    if (!network_.allFinite() || !network_by_unknown_.allFinite()) return false;
+    factor_.compute(network_by_unknown_);
+    step_ = factor_.solve(-network_);
+    if (!step_.allFinite()) return false;
+    ++newton_iterations_;
+    if (circuit_.linear_network()) {
+      y += step_;
+      return true;
+    }
+    // Damp the step when it would raise the residual (diode knees, constant power at low voltage).
+    double before = network_.norm();
+    Eigen::VectorXd start = y;
+    double scale = 1.0;
+    bool decreased = false;
+    for (int halving = 0; halving < 12; ++halving) {
+      y = start + scale * step_;
+      assemble(point(time, states, modes, unknowns), false);
+      if (network_.allFinite() && network_.norm() <= before * (1.0 - 1e-4 * scale)) {
+        decreased = true;
+        break;
+      }
+      scale *= 0.5;
+    }
+    if (!decreased) y = start + step_;  // at the roundoff floor the residual cannot fall further
+    // Converged when the step is small against the size of the voltages and of the currents; the two kinds
+    // of unknown are scaled apart because conductances in one circuit span more than ten decades.
+    const int nodes = static_cast<int>(circuit_.node_names().size());
+    double voltage_scale = 0.0, current_scale = 0.0;
+    for (int i = 0; i < unknowns_; ++i) {
+      (i < nodes ? voltage_scale : current_scale) =
+          std::max(i < nodes ? voltage_scale : current_scale, std::fabs(y[i]));
+    }
+    bool converged = true;
+    for (int i = 0; i < unknowns_; ++i) {
+      double size = i < nodes ? voltage_scale : current_scale;
+      double applied = decreased ? scale * step_[i] : step_[i];
+      if (std::fabs(applied) > 1e-10 * size + 1e-13) {
+        converged = false;
+        break;
+      }
+    }
+    if (converged) return true;
+  }
+  return false;
+}
+
+void Equations::rates(double time, const double* states, const int* modes, const double* unknowns, double* rates) {
+  models::Point p = point(time, states, modes, unknowns);
+  assemble(p, false);
+  for (int i = 0; i < states_; ++i) rates[i] = rate_[i];
+  const auto& accounts = circuit_.energy_accounts();
+  int last_part = -1;
+  models::Powers powers;
+  for (std::size_t a = 0; a < accounts.size(); ++a) {
+    if (accounts[a].part != last_part) {
+      last_part = accounts[a].part;
+      powers = circuit_.part(last_part).powers(p, circuit_.layout(last_part));
+    }
+    double value = accounts[a].channel == 0 ? powers.source : accounts[a].channel == 1 ? powers.heat : powers.load;
+    rates[states_ + a] = value;
+  }
+}
+
+void Equations::jacobian(double time, const double* states, const int* modes, const double* unknowns,
+                         double* matrix) {
+  const int n = circuit_.ode_size();
+  Eigen::Map<Eigen::MatrixXd> jacobian(matrix, n, n);
+  jacobian.setZero();
+  if (states_ == 0) return;
+  assemble(point(time, states, modes, unknowns), true);
+  factor_.compute(network_by_unknown_);
+  Eigen::MatrixXd unknown_by_state = -factor_.solve(network_by_state_.leftCols(states_));
+  jacobian.topLeftCorner(states_, states_) =
+      rate_by_state_.topLeftCorner(states_, states_) + rate_by_unknown_.topRows(states_) * unknown_by_state;
+}
+
+}  // namespace linkrise::solver

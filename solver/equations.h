@@ -1,0 +1,50 @@
+#pragma once
+// The circuit's equations at one point: the network solve y(x) by Newton, the state rates f(x, y(x)),
+// the energy-account rates, and the analytic Jacobian of the reduced ODE
+//   J = df/dx + df/dy · dy/dx,  with dy/dx = -(dG/dy)^-1 · dG/dx  (implicit function theorem).
+// Energy accounts (pure quadratures) feed nothing back, so their Jacobian rows are left zero; that costs
+// at most one extra Newton iteration in CVODE and keeps the Jacobian exact for the circuit states.
+#include <Eigen/Dense>
+#include <vector>
+
+#include "solver/circuit.h"
+
+namespace linkrise::solver {
+
+class Equations {
+ public:
+  explicit Equations(const Circuit& circuit);
+
+  const Circuit& circuit() const { return circuit_; }
+  int ode_size() const { return circuit_.ode_size(); }
+
+  /// Solves G(y; t, x, modes) = 0. `y` holds the starting guess and receives the solution.
+  /// Returns false when Newton does not converge (the caller treats it as a recoverable failure).
+  bool solve_network(double time, const double* states, const int* modes, double* unknowns);
+  /// dx/dt for all ODE states (circuit states, then energy accounts) at a solved point.
+  void rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
+  /// Dense column-major Jacobian d(rates)/d(states) (ode_size²) at a solved point.
+  void jacobian(double time, const double* states, const int* modes, const double* unknowns, double* matrix);
+  /// Newton iterations spent so far (statistics).
+  long newton_iterations() const { return newton_iterations_; }
+
+  models::Point point(double time, const double* states, const int* modes, const double* unknowns) const;
+
+ private:
+  void assemble(const models::Point& point, bool derivatives);
+
+  const Circuit& circuit_;
+  int unknowns_;
+  int states_;
+  Eigen::VectorXd network_;
+  Eigen::MatrixXd network_by_unknown_;
+  Eigen::MatrixXd network_by_state_;
+  Eigen::VectorXd rate_;
+  Eigen::MatrixXd rate_by_state_;
+  Eigen::MatrixXd rate_by_unknown_;
+  Eigen::PartialPivLU<Eigen::MatrixXd> factor_;
+  Eigen::VectorXd step_;
+  long newton_iterations_ = 0;
+};
+
+}  // namespace linkrise::solver

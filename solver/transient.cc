@@ -1,0 +1,447 @@
+#include "solver/transient.h"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <memory>
+
+#include <cvode/cvode.h>
+#include <fmt/format.h>
+#include <nvector/nvector_serial.h>
+#include <sundials/sundials_context.h>
+#include <sunlinsol/sunlinsol_dense.h>
+#include <sunmatrix/sunmatrix_dense.h>
+
+#include "solver/equations.h"
+#include "solver/sundials_check.h"
+
+namespace linkrise::solver {
+
+double Probe::signal(int part, int index) const {
+  const auto& model = circuit->part(part);
+  std::vector<double> values(model.signals().size());
+  models::Point point;
+  point.time = time;
+  point.states = states;
+  point.unknowns = unknowns;
+  point.modes = modes;
+  point.ambient = circuit->spec().ambient;
+  model.signal_values(point, circuit->layout(part), values.data());
+  return values.at(index);
+}
+
+Options options_from(const Circuit& circuit) {
+  const auto& spec = circuit.spec();
+  Options options;
+  options.duration = spec.run.duration;
+  options.relative_tolerance = spec.run.relative_tolerance;
+  options.absolute_tolerance = spec.run.absolute_tolerance;
+  options.max_step = spec.run.max_step;
+  options.sample = spec.run.sample;
+  for (const auto& event : spec.events) {
+    options.commands.push_back(Command{event.at, circuit.find_part(event.target), event.action, "scheduled event"});
+  }
+  return options;
+}
+
+std::vector<std::string> waveform_headers(const Circuit& circuit) {
+  std::vector<std::string> headers;
+  for (const auto& node : circuit.node_names()) headers.push_back(fmt::format("{} [V]", node));
+  for (const auto& column : circuit.signal_columns()) headers.push_back(column.header);
+  return headers;
+}
+
+namespace {
+
+// Owns the SUNDIALS objects for one run.
+struct CvodeHandles {
+  SUNContext context = nullptr;
+  N_Vector states = nullptr;
+  N_Vector scratch = nullptr;
+  N_Vector tolerances = nullptr;
+  SUNMatrix matrix = nullptr;
+  SUNLinearSolver linear_solver = nullptr;
+  void* memory = nullptr;
+  ~CvodeHandles() {
+    if (memory) CVodeFree(&memory);
+    if (linear_solver) SUNLinSolFree(linear_solver);
+    if (matrix) SUNMatDestroy(matrix);
+    if (states) N_VDestroy(states);
+    if (scratch) N_VDestroy(scratch);
+    if (tolerances) N_VDestroy(tolerances);
+    if (context) SUNContext_Free(&context);
+  }
+};
+
+class Driver {
+ public:
+  Driver(const Circuit& circuit, const Options& options)
+      : circuit_(circuit),
+        options_(options),
+        equations_(circuit),
+        n_(circuit.ode_size()),
+        modes_(circuit.initial_modes()),
+        unknowns_(circuit.unknown_count(), 0.0),
+        scratch_unknowns_(circuit.unknown_count(), 0.0),
+        row_(waveform_headers(circuit).size(), 0.0) {
+    pending_ = options.commands;
+    std::stable_sort(pending_.begin(), pending_.end(),
+                     [](const Command& a, const Command& b) { return a.time < b.time; });
+    result_.steps = Waveform(waveform_headers(circuit));
+    result_.samples = Waveform(waveform_headers(circuit));
+  }
+
+  Result run();
+
+  // CVODE callbacks
+  int rhs(double t, const double* x, double* xdot) {
+    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
+      reset_guess();
+      return 1;  // recoverable: CVODE retries with a smaller step
+    }
+    equations_.rates(t, x, modes_.data(), unknowns_.data(), xdot);
+    return 0;
+  }
+  int jacobian(double t, const double* x, double* matrix) {
+    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
+      reset_guess();
+      return 1;
+    }
+    equations_.jacobian(t, x, modes_.data(), unknowns_.data(), matrix);
+    return 0;
+  }
+  int roots(double t, const double* x, double* out) {
+    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
+      reset_guess();
+      return 1;
+    }
+    models::Point point = equations_.point(t, x, modes_.data(), unknowns_.data());
+    for (int p = 0; p < circuit_.part_count(); ++p) {
+      if (circuit_.part(p).root_count() > 0)
+        circuit_.part(p).roots(point, circuit_.layout(p), out + circuit_.root_first(p));
+    }
+    double* watch_out = out + circuit_.root_count();
+    for (std::size_t w = 0; w < options_.watches.size(); ++w) {
+      const Watch& watch = options_.watches[w];
+      double a = point.node_voltage(watch.plus_a) - point.node_voltage(watch.minus_a);
+      double b = point.node_voltage(watch.plus_b) - point.node_voltage(watch.minus_b);
+      watch_out[w] = a - watch.ratio * b - watch.offset;
+    }
+    return 0;
+  }
+
+ private:
+  void reset_guess() { std::fill(unknowns_.begin(), unknowns_.end(), 0.0); }
+  double* x() { return N_VGetArrayPointer(handles_.states); }
+  // Solves the network at (t, states) into unknowns_; throws SolverError on failure.
+  void solve_at(double t, const double* states) {
+    if (!equations_.solve_network(t, states, modes_.data(), unknowns_.data())) {
+      reset_guess();
+      if (!equations_.solve_network(t, states, modes_.data(), unknowns_.data())) {
+        throw SolverError(fmt::format("the circuit equations have no solution at t = {:.9g} s (Newton did not "
+                                      "converge): check for a constant-power load without an operating point",
+                                      t),
+                          t);
+      }
+    }
+  }
+  void fill_row(double t, const double* states) {
+    models::Point point = equations_.point(t, states, modes_.data(), unknowns_.data());
+    std::size_t column = 0;
+    for (std::size_t n = 0; n < circuit_.node_names().size(); ++n) row_[column++] = unknowns_[n];
+    for (int p = 0; p < circuit_.part_count(); ++p) {
+      circuit_.part(p).signal_values(point, circuit_.layout(p), row_.data() + column);
+      column += circuit_.part(p).signals().size();
+    }
+  }
+  void record_step_row(double t, const double* states) {
+    if (!options_.record_steps) return;
+    solve_at(t, states);
+    fill_row(t, states);
+    result_.steps.add_row(t, row_);
+  }
+  // Grid rows in (recorded_until_, t] from dense output, then a step row at t (states at t given).
+  void record_until(double t, const double* states) {
+    if (options_.sample) {
+      double step = *options_.sample;
+      double* dense = N_VGetArrayPointer(handles_.scratch);
+      while (true) {
+        double grid = static_cast<double>(next_grid_index_) * step;
+        if (grid > t * (1.0 + 1e-14) || grid > options_.duration * (1.0 + 1e-14)) break;
+        if (grid < t) {
+          check(CVodeGetDky(handles_.memory, grid, 0, handles_.scratch), "CVodeGetDky", grid);
+          solve_at(grid, dense);
+          fill_row(grid, dense);
+        } else {
+          solve_at(t, states);
+          fill_row(t, states);
+        }
+        result_.samples.add_row(grid, row_);
+        ++next_grid_index_;
+      }
+    }
+    record_step_row(t, states);
+    recorded_until_ = t;
+  }
+  void initialise_cvode(double t0);
+  void reinitialise(double t) {
+    harvest_statistics();
+    check(CVodeReInit(handles_.memory, t, handles_.states), "CVodeReInit", t);
+    ++result_.statistics.reinitialisations;
+  }
+  void harvest_statistics();
+  // Applies every pending command at time t (states in x()). Returns true when a mode changed.
+  bool apply_commands(double t);
+  void stored_energies(double t, const double* states, std::vector<double>& out) {
+    solve_at(t, states);
+    models::Point point = equations_.point(t, states, modes_.data(), unknowns_.data());
+    out.resize(circuit_.part_count());
+    for (int p = 0; p < circuit_.part_count(); ++p) out[p] = circuit_.part(p).stored_energy(point, circuit_.layout(p));
+  }
+
+  const Circuit& circuit_;
+  const Options& options_;
+  Equations equations_;
+  int n_;
+  std::vector<int> modes_;
+  std::vector<double> unknowns_;
+  std::vector<double> scratch_unknowns_;
+  std::vector<double> row_;
+  std::vector<Command> pending_;
+  CvodeHandles handles_;
+  Result result_;
+  double recorded_until_ = 0.0;
+  long next_grid_index_ = 0;
+  double last_sample_ = -std::numeric_limits<double>::infinity();
+  Statistics harvested_;
+};
+
+// CVODE's own messages are replaced by check(), which names the call and the time.
+void quiet_error_handler(int, const char*, const char*, char*, void*) {}
+
+int rhs_callback(double t, N_Vector x, N_Vector xdot, void* user) {
+  return static_cast<Driver*>(user)->rhs(t, N_VGetArrayPointer(x), N_VGetArrayPointer(xdot));
+}
+int jacobian_callback(double t, N_Vector x, N_Vector, SUNMatrix matrix, void* user, N_Vector, N_Vector, N_Vector) {
+  return static_cast<Driver*>(user)->jacobian(t, N_VGetArrayPointer(x), SUNDenseMatrix_Data(matrix));
+}
+int root_callback(double t, N_Vector x, double* out, void* user) {
+  return static_cast<Driver*>(user)->roots(t, N_VGetArrayPointer(x), out);
+}
+
+void Driver::initialise_cvode(double t0) {
+  check(SUNContext_Create(nullptr, &handles_.context), "SUNContext_Create", t0);
+  handles_.states = N_VNew_Serial(n_, handles_.context);
+  check_pointer(handles_.states, "N_VNew_Serial");
+  handles_.scratch = N_VNew_Serial(n_, handles_.context);
+  check_pointer(handles_.scratch, "N_VNew_Serial");
+  handles_.tolerances = N_VNew_Serial(n_, handles_.context);
+  check_pointer(handles_.tolerances, "N_VNew_Serial");
+  const auto& info = circuit_.state_info();
+  double* tolerance = N_VGetArrayPointer(handles_.tolerances);
+  for (int i = 0; i < n_; ++i) {
+    tolerance[i] = options_.absolute_tolerance * (i < static_cast<int>(info.size()) ? info[i].tolerance_scale : 1.0);
+  }
+  handles_.memory = CVodeCreate(CV_BDF, handles_.context);
+  check_pointer(handles_.memory, "CVodeCreate");
+  std::copy(result_.initial_states.begin(), result_.initial_states.end(), x());
+  check(CVodeInit(handles_.memory, rhs_callback, t0, handles_.states), "CVodeInit", t0);
+  check(CVodeSetUserData(handles_.memory, this), "CVodeSetUserData", t0);
+  check(CVodeSVtolerances(handles_.memory, options_.relative_tolerance, handles_.tolerances), "CVodeSVtolerances", t0);
+  handles_.matrix = SUNDenseMatrix(n_, n_, handles_.context);
+  check_pointer(handles_.matrix, "SUNDenseMatrix");
+  handles_.linear_solver = SUNLinSol_Dense(handles_.states, handles_.matrix, handles_.context);
+  check_pointer(handles_.linear_solver, "SUNLinSol_Dense");
+  check(CVodeSetLinearSolver(handles_.memory, handles_.linear_solver, handles_.matrix), "CVodeSetLinearSolver", t0);
+  check(CVodeSetJacFn(handles_.memory, jacobian_callback), "CVodeSetJacFn", t0);
+  check(CVodeSetMaxNumSteps(handles_.memory, 100000), "CVodeSetMaxNumSteps", t0);
+  check(CVodeSetErrHandlerFn(handles_.memory, quiet_error_handler, nullptr), "CVodeSetErrHandlerFn", t0);
+  check(CVodeSetMaxHnilWarns(handles_.memory, -1), "CVodeSetMaxHnilWarns", t0);
+  if (options_.max_step > 0.0) check(CVodeSetMaxStep(handles_.memory, options_.max_step), "CVodeSetMaxStep", t0);
+  int root_total = circuit_.root_count() + static_cast<int>(options_.watches.size());
+  if (root_total > 0) {
+    check(CVodeRootInit(handles_.memory, root_total, root_callback), "CVodeRootInit", t0);
+    std::vector<int> directions(root_total, 0);
+    for (int r = 0; r < circuit_.root_count(); ++r) {
+      int owner = circuit_.root_owner(r);
+      directions[r] = circuit_.part(owner).root_direction(r - circuit_.root_first(owner));
+    }
+    check(CVodeSetRootDirection(handles_.memory, directions.data()), "CVodeSetRootDirection", t0);
+  }
+}
+
+void Driver::harvest_statistics() {
+  if (!handles_.memory) return;
+  long value = 0;
+  Statistics& s = harvested_;
+  CVodeGetNumSteps(handles_.memory, &value);
+  s.steps += value;
+  CVodeGetNumRhsEvals(handles_.memory, &value);
+  s.rhs_evaluations += value;
+  CVodeGetNumJacEvals(handles_.memory, &value);
+  s.jacobian_evaluations += value;
+  CVodeGetNumNonlinSolvIters(handles_.memory, &value);
+  s.nonlinear_iterations += value;
+  CVodeGetNumErrTestFails(handles_.memory, &value);
+  s.error_test_failures += value;
+  if (circuit_.root_count() + options_.watches.size() > 0) {
+    CVodeGetNumGEvals(handles_.memory, &value);
+    s.root_evaluations += value;
+  }
+}
+
+bool Driver::apply_commands(double t) {
+  bool any = false;
+  bool first = true;
+  while (!pending_.empty() && pending_.front().time <= t) {
+    Command command = pending_.front();
+    pending_.erase(pending_.begin());
+    if (first) {
+      record_step_row(t, x());  // the row before the switching
+      first = false;
+    }
+    const auto& part = circuit_.part(command.part);
+    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data());
+    if (!change.problem.empty()) throw SolverError(change.problem, t);
+    ++result_.statistics.events;
+    result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", command.action, part.name()), command.reason});
+    any = any || change.changed;
+  }
+  if (!first) record_step_row(t, x());  // the row after
+  return any;
+}
+
+Result Driver::run() {
+  auto started = std::chrono::steady_clock::now();
+  const double t0 = 0.0;
+  result_.initial_states = circuit_.initial_states();
+  try {
+    // Initial network, then let modes follow the initial voltages.
+    solve_at(t0, result_.initial_states.data());
+    {
+      models::Point point = equations_.point(t0, result_.initial_states.data(), modes_.data(), unknowns_.data());
+      bool changed = false;
+      for (int p = 0; p < circuit_.part_count(); ++p) {
+        changed = circuit_.part(p).settle(point, circuit_.layout(p), modes_.data()).changed || changed;
+      }
+      if (changed) solve_at(t0, result_.initial_states.data());
+    }
+    stored_energies(t0, result_.initial_states.data(), result_.initial_stored);
+    initialise_cvode(t0);
+    double t = t0;
+    record_until(t0, x());
+    if (apply_commands(t0)) reinitialise(t0);
+    long steps = 0;
+    const double end = options_.duration;
+    while (t < end) {
+      if (options_.supervisor && options_.supervisor->finished()) {
+        result_.outcome = Outcome::SupervisorFinished;
+        break;
+      }
+      double stop = pending_.empty() ? end : std::min(end, pending_.front().time);
+      check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
+      double reached = t;
+      int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
+      check(flag, "CVode", reached);
+      if (++steps > options_.max_steps) {
+        throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
+      }
+      // Supervisor samples and commands inside (t, reached], in time order; commands first on a tie.
+      bool stepped_back = false;
+      double* dense = N_VGetArrayPointer(handles_.scratch);
+      while (true) {
+        double command_time = pending_.empty() ? std::numeric_limits<double>::infinity() : pending_.front().time;
+        double sample_time = options_.supervisor ? options_.supervisor->next_sample(last_sample_)
+                                                 : std::numeric_limits<double>::infinity();
+        if (std::min(command_time, sample_time) > reached) break;
+        if (command_time <= sample_time) {
+          if (command_time < reached) {
+            check(CVodeGetDky(handles_.memory, command_time, 0, handles_.scratch), "CVodeGetDky", command_time);
+            result_.steps.truncate_after(command_time);
+            record_until(command_time, dense);
+            std::copy(dense, dense + n_, x());
+            ++result_.statistics.step_backs;
+          } else {
+            record_until(reached, x());
+          }
+          apply_commands(command_time);
+          reinitialise(command_time);
+          t = command_time;
+          stepped_back = true;
+          break;
+        }
+        check(CVodeGetDky(handles_.memory, sample_time, 0, handles_.scratch), "CVodeGetDky", sample_time);
+        solve_at(sample_time, dense);
+        Probe probe{&circuit_, sample_time, dense, unknowns_.data(), modes_.data()};
+        std::vector<Command> decided;
+        options_.supervisor->sample(probe, decided, result_.timeline);
+        for (auto& command : decided) {
+          command.time = std::max(command.time, sample_time);
+          auto position = std::upper_bound(pending_.begin(), pending_.end(), command,
+                                           [](const Command& a, const Command& b) { return a.time < b.time; });
+          pending_.insert(position, command);
+        }
+        last_sample_ = sample_time;
+      }
+      if (stepped_back) continue;
+      record_until(reached, x());
+      if (flag == CV_ROOT_RETURN) {
+        int total = circuit_.root_count() + static_cast<int>(options_.watches.size());
+        std::vector<int> found(total, 0);
+        check(CVodeGetRootInfo(handles_.memory, found.data()), "CVodeGetRootInfo", reached);
+        bool changed = false;
+        for (int r = 0; r < circuit_.root_count(); ++r) {
+          if (found[r] == 0) continue;
+          int owner = circuit_.root_owner(r);
+          auto change = circuit_.part(owner).on_root(r - circuit_.root_first(owner), found[r],
+                                                     circuit_.layout(owner), modes_.data());
+          if (change.changed) {
+            changed = true;
+            ++result_.statistics.events;
+            result_.timeline.push_back(TimelineEntry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
+                                                     found[r] > 0 ? "voltage rose through a threshold"
+                                                                  : "voltage fell through a threshold"});
+          }
+        }
+        for (std::size_t w = 0; w < options_.watches.size(); ++w) {
+          int direction = found[circuit_.root_count() + w];
+          if (direction != 0) result_.crossings.push_back(Crossing{reached, static_cast<int>(w), direction});
+        }
+        if (changed) {
+          record_step_row(reached, x());
+          reinitialise(reached);
+        }
+      }
+      t = reached;
+    }
+    result_.end_time = t;
+    result_.final_states.assign(x(), x() + n_);
+    stored_energies(t, result_.final_states.data(), result_.final_stored);
+  } catch (const SolverError& error) {
+    result_.outcome = Outcome::SolverFailure;
+    result_.message = error.what();
+    result_.end_time = error.time();
+    if (handles_.states) result_.final_states.assign(x(), x() + n_);
+  }
+  harvest_statistics();
+  Statistics& s = result_.statistics;
+  s.steps = harvested_.steps;
+  s.rhs_evaluations = harvested_.rhs_evaluations;
+  s.jacobian_evaluations = harvested_.jacobian_evaluations;
+  s.nonlinear_iterations = harvested_.nonlinear_iterations;
+  s.error_test_failures = harvested_.error_test_failures;
+  s.root_evaluations = harvested_.root_evaluations;
+  s.network_newton_iterations = equations_.newton_iterations();
+  result_.final_modes = modes_;
+  s.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  return std::move(result_);
+}
+
+}  // namespace
+
+Result simulate(const Circuit& circuit, const Options& options) {
+  Driver driver(circuit, options);
+  return driver.run();
+}
+
+}  // namespace linkrise::solver
