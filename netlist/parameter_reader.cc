@@ -90,6 +90,14 @@ double ParameterReader::required(const std::string& key, const Dimension& dimens
   known_.push_back(key);
   const Tree* node = block_.find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) {
+    // A misspelt key ("resistence") is the likelier cause: name it, with the did-you-mean, at its own place.
+    for (std::size_t i = 0; i < block_.entries.size(); ++i) {
+      const std::string& given = block_.entries[i].first;
+      if (std::find(known_.begin(), known_.end(), given) != known_.end()) continue;
+      if (closest_match(given, {key}) != key) continue;
+      throw InputError(i < block_.key_marks.size() ? block_.key_marks[i] : block_.mark,
+                       fmt::format("{} has no parameter '{}'", owner_, given), fmt::format("did you mean '{}'?", key));
+    }
     throw InputError(block_.mark, fmt::format("{} needs the parameter '{}' ({})", owner_, key, dimension.describe()),
                      fmt::format("add a line '{}: {}'", key, example_for(dimension)));
   }
