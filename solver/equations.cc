@@ -51,52 +51,68 @@ void Equations::assemble(const models::Point& point, bool derivatives) {
 }
 
 bool Equations::solve_network(double time, const double* states, const int* modes, double* unknowns) {
+  const int mode_total = circuit_.mode_count();
+  if (cache_valid_ && time == cache_time_ && std::equal(states, states + states_, cache_states_.begin()) &&
+      std::equal(modes, modes + mode_total, cache_modes_.begin())) {
+    std::copy(cache_unknowns_.begin(), cache_unknowns_.end(), unknowns);
+    return true;
+  }
+  bool solved = solve_network_uncached(time, states, modes, unknowns);
+  cache_valid_ = solved;
+  if (solved) {
+    cache_time_ = time;
+    cache_states_.assign(states, states + states_);
+    cache_modes_.assign(modes, modes + mode_total);
+    cache_unknowns_.assign(unknowns, unknowns + unknowns_);
+  }
+  return solved;
+}
+
+bool Equations::solve_network_uncached(double time, const double* states, const int* modes, double* unknowns) {
   Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
-  const int limit = circuit_.linear_network() ? 2 : 60;
-  for (int iteration = 0; iteration < limit; ++iteration) {
+  const bool linear = circuit_.linear_network();
+  const int nodes = static_cast<int>(circuit_.node_names().size());
+  for (int iteration = 0; iteration < 60; ++iteration) {
     assemble(point(time, states, modes, unknowns), true);
     if (!network_.allFinite() || !network_by_unknown_.allFinite()) return false;
     factor_.compute(network_by_unknown_);
     step_ = factor_.solve(-network_);
     if (!step_.allFinite()) return false;
     ++newton_iterations_;
-    if (circuit_.linear_network()) {
+    if (linear) {
       y += step_;
       return true;
     }
-    // Damp the step when it would raise the residual (diode knees, constant power at low voltage).
-    double before = network_.norm();
-    Eigen::VectorXd start = y;
-    double scale = 1.0;
-    bool decreased = false;
-    for (int halving = 0; halving < 12; ++halving) {
-      y = start + scale * step_;
-      assemble(point(time, states, modes, unknowns), false);
-      if (network_.allFinite() && network_.norm() <= before * (1.0 - 1e-4 * scale)) {
-        decreased = true;
-        break;
-      }
-      scale *= 0.5;
-    }
-    if (!decreased) y = start + step_;  // at the roundoff floor the residual cannot fall further
-    // Converged when the step is small against the size of the voltages and of the currents; the two kinds
-    // of unknown are scaled apart because conductances in one circuit span more than ten decades.
-    const int nodes = static_cast<int>(circuit_.node_names().size());
+    // Voltages and currents are scaled apart because conductances in one circuit span more than ten decades.
     double voltage_scale = 0.0, current_scale = 0.0;
     for (int i = 0; i < unknowns_; ++i) {
-      (i < nodes ? voltage_scale : current_scale) =
-          std::max(i < nodes ? voltage_scale : current_scale, std::fabs(y[i]));
+      double& scale = i < nodes ? voltage_scale : current_scale;
+      scale = std::max(scale, std::fabs(y[i]) + std::fabs(step_[i]));
     }
-    bool converged = true;
+    bool small = true;
+    bool large = false;
     for (int i = 0; i < unknowns_; ++i) {
       double size = i < nodes ? voltage_scale : current_scale;
-      double applied = decreased ? scale * step_[i] : step_[i];
-      if (std::fabs(applied) > 1e-10 * size + 1e-13) {
-        converged = false;
-        break;
-      }
+      double magnitude = std::fabs(step_[i]);
+      if (magnitude > 1e-8 * size + 1e-12) small = false;
+      if (magnitude > 0.1 * size + 1.0) large = true;
     }
-    if (converged) return true;
+    if (large) {
+      // A long step (cold start, diode knee, constant power at low voltage): damp it until the residual falls.
+      double before = network_.norm();
+      Eigen::VectorXd start = y;
+      double fraction = 1.0;
+      for (int halving = 0; halving < 12; ++halving) {
+        y = start + fraction * step_;
+        assemble(point(time, states, modes, unknowns), false);
+        if (network_.allFinite() && network_.norm() < before) break;
+        fraction *= 0.5;
+      }
+      continue;
+    }
+    y += step_;
+    // Newton converges quadratically: after a step this small the remaining error is far below it.
+    if (small) return true;
   }
   return false;
 }

@@ -32,6 +32,7 @@ class Equations {
 
  private:
   void assemble(const models::Point& point, bool derivatives);
+  bool solve_network_uncached(double time, const double* states, const int* modes, double* unknowns);
 
   const Circuit& circuit_;
   int unknowns_;
@@ -45,6 +46,13 @@ class Equations {
   Eigen::PartialPivLU<Eigen::MatrixXd> factor_;
   Eigen::VectorXd step_;
   long newton_iterations_ = 0;
+  // The last solved point: CVODE evaluates roots and the driver records rows at states it has just
+  // solved for, so a repeated point returns the stored solution.
+  bool cache_valid_ = false;
+  double cache_time_ = 0.0;
+  std::vector<double> cache_states_;
+  std::vector<int> cache_modes_;
+  std::vector<double> cache_unknowns_;
 };
 
 }  // namespace linkrise::solver

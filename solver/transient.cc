@@ -150,8 +150,7 @@ class Driver {
     std::size_t column = 0;
     for (std::size_t n = 0; n < circuit_.node_names().size(); ++n) row_[column++] = unknowns_[n];
     for (int p = 0; p < circuit_.part_count(); ++p) {
-      circuit_.part(p).signal_values(point, circuit_.layout(p), row_.data() + column);
-      column += circuit_.part(p).signals().size();
+      circuit_.part(p).signal_values(point, circuit_.layout(p), row_.data() + column + circuit_.signal_first(p));
     }
   }
   void record_step_row(double t, const double* states) {
