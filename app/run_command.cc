@@ -9,9 +9,12 @@
 #include "app/exit_codes.h"
 #include "app/output_files.h"
 #include "app/run_summary.h"
+#include "app/verdict_summary.h"
 #include "app/waveform_csv.h"
 #include "netlist/parameter_reader.h"
+#include "netlist/sequence_spec.h"
 #include "solver/circuit.h"
+#include "solver/sequence_controller.h"
 #include "solver/transient.h"
 
 namespace linkrise::app {
@@ -28,22 +31,33 @@ int run_command(const RunArguments& arguments) {
     }
     if (arguments.relative_tolerance) options.relative_tolerance = *arguments.relative_tolerance;
     if (arguments.absolute_tolerance) options.absolute_tolerance = *arguments.absolute_tolerance;
+    std::optional<netlist::SequenceSpec> sequence = netlist::read_sequence(spec);
+    std::optional<solver::SequenceController> controller;
+    if (sequence) solver::attach(controller.emplace(circuit, *sequence), options);
     solver::Result result = solver::simulate(circuit, options);
     analysis::EnergyAudit audit = analysis::audit_energy(circuit, result);
     if (result.outcome == solver::Outcome::SolverFailure) {
       std::cerr << fmt::format("linkrise: solver failure in '{}': {}\n", arguments.case_file, result.message);
       return kExitSolverFailure;
     }
+    std::optional<solver::SequenceReport> sequence_report;
+    if (controller) sequence_report = controller->report(result.end_time);
+    const solver::SequenceReport* sequence_data = sequence_report ? &*sequence_report : nullptr;
+    analysis::Evaluation evaluation = analysis::evaluate(circuit, result, audit, sequence_data);
+    nlohmann::json summary = run_summary(circuit, result, audit);
+    add_verdict(summary, evaluation);
+    if (sequence_data) add_sequence(summary, *sequence_data, result, evaluation);
     OutputSet outputs(arguments.output_directory);
     outputs.add("waveforms.csv", waveform_csv(options.sample ? result.samples : result.steps));
-    outputs.add("summary.json", run_summary(circuit, result, audit).dump(2) + "\n");
+    outputs.add("summary.json", summary.dump(2) + "\n");
     outputs.commit();
     if (!arguments.quiet) {
       std::cout << terminal_summary(circuit, result, audit);
+      std::cout << verdict_terminal(evaluation, sequence_data);
       std::cout << fmt::format("  wrote     {} and {}\n", outputs.path("waveforms.csv").string(),
                                outputs.path("summary.json").string());
     }
-    return kExitOk;
+    return evaluation.pass ? kExitOk : kExitLimitFailed;
   } catch (const netlist::InputError& error) {
     std::cerr << error.what() << "\n";
     return kExitInputError;

@@ -9,11 +9,18 @@ using netlist::Dimension;
 
 class Contactor final : public Part {
  public:
+  const ContactorTiming& timing() const { return timing_; }
+
   explicit Contactor(const netlist::PartSpec& spec) : Part(spec) {
     auto reader = open_parameters(spec);
     closed_resistance_ = reader.quantity("closed_resistance", Dimension::resistance(), Bound::Positive, 0.3e-3);
     open_resistance_ = reader.quantity("open_resistance", Dimension::resistance(), Bound::Positive, 100e6);
     initially_closed_ = reader.word("initial", {"open", "closed"}, "open") == "closed";
+    timing_.closing_delay = reader.quantity("closing_delay", Dimension::time(), Bound::NonNegative, 0.0);
+    timing_.opening_delay = reader.quantity("opening_delay", Dimension::time(), Bound::NonNegative, 0.0);
+    timing_.bounce_count = reader.count("bounce_count", 0, 0);
+    timing_.bounce_interval =
+        reader.quantity("bounce_interval", Dimension::time(), Bound::Positive, timing_.bounce_interval);
     if (open_resistance_ <= closed_resistance_) {
       reader.fail("open_resistance", "must be larger than closed_resistance",
                   "an open contact is an insulator: use e.g. '100 MOhm'");
@@ -56,8 +63,14 @@ class Contactor final : public Part {
   double closed_resistance_ = 0.0;
   double open_resistance_ = 0.0;
   bool initially_closed_ = false;
+  ContactorTiming timing_;
 };
 }  // namespace
 
 std::unique_ptr<Part> make_contactor(const netlist::PartSpec& spec) { return std::make_unique<Contactor>(spec); }
+
+std::optional<ContactorTiming> contactor_timing(const Part& part) {
+  if (const auto* contactor = dynamic_cast<const Contactor*>(&part)) return contactor->timing();
+  return std::nullopt;
+}
 }  // namespace linkrise::models

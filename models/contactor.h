@@ -4,12 +4,29 @@
 //
 // Parameters: closed_resistance (Ohm, > 0, default 0.3 mOhm), open_resistance (Ohm, > closed, default 100 MOhm),
 //             initial: open | closed (default open).
+//   Actuation, used by the sequence controller only (scheduled events move the contact at their own time):
+//   closing_delay (s, >= 0, default 0): coil energised -> contacts touch;
+//   opening_delay (s, >= 0, default 0): coil released -> contacts part;
+//   bounce_count (whole number, default 0): after the first touch the contacts part and touch again this
+//     many times; bounce_interval (s, > 0, default 0.2 ms): each open gap and each touch before the next gap.
 // Modes: 0 = open, 1 = closed.  Equation: i = v / R(mode).  Heat: v² / R (W).
 // Commands: close, open.  Extra signal: closed [1] (0 or 1).
 #include <memory>
+#include <optional>
 
 #include "models/part.h"
 
 namespace linkrise::models {
+
+struct ContactorTiming {
+  double closing_delay = 0.0;    // s
+  double opening_delay = 0.0;    // s
+  int bounce_count = 0;
+  double bounce_interval = 2e-4;  // s
+};
+
 std::unique_ptr<Part> make_contactor(const netlist::PartSpec& spec);
-}
+/// The actuation timing of a contactor; std::nullopt when `part` is not a contactor.
+std::optional<ContactorTiming> contactor_timing(const Part& part);
+
+}  // namespace linkrise::models

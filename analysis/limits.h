@@ -1,0 +1,39 @@
+#pragma once
+// Judging metrics against limits: the case's `limits:` block and the ratings declared on parts.
+//
+// For a maximum, margin = bound − value; for a minimum, margin = value − bound (in the metric's unit; positive
+// inside the bound). relative_margin = margin / |bound|. A limit passes when margin >= required·|bound|
+// (required margin 0 unless the limit sets `margin:`). A metric that was not reached in the run (NaN, e.g.
+// the main current of a sequence that never closed) is reported as not judged and does not fail; the
+// sequence outcome judges that run.
+#include <string>
+#include <vector>
+
+#include "analysis/metrics.h"
+#include "netlist/limit_spec.h"
+#include "solver/circuit.h"
+
+namespace linkrise::analysis {
+
+struct JudgedLimit {
+  std::string metric;
+  std::string bound;  // "max" or "min"
+  std::string unit;
+  std::string source;  // "limits block" or "rating of <part>"
+  double limit = 0.0;
+  double value = 0.0;
+  double margin = 0.0;
+  double relative_margin = 0.0;
+  double required_margin = 0.0;  // fraction
+  bool judged = true;
+  bool pass = true;
+};
+
+/// Limits from the ratings parts declare (Part::ratings()), as "<part>.<metric>" maxima.
+std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit);
+
+/// Judges every bound of every limit. Throws netlist::InputError (at the limit's position) for a metric
+/// the run does not have or a bound whose unit does not fit the metric.
+std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& limits, const MetricSet& metrics);
+
+}  // namespace linkrise::analysis

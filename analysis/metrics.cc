@@ -1,0 +1,164 @@
+#include "analysis/metrics.h"
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+#include "analysis/part_metrics.h"
+#include "analysis/trace.h"
+#include "netlist/parameter_reader.h"
+
+namespace linkrise::analysis {
+
+void MetricSet::add(std::string name, double value, std::string unit, std::string definition) {
+  list_.push_back(Metric{std::move(name), value, std::move(unit), std::move(definition)});
+}
+
+void MetricSet::append(const MetricSet& other) { list_.insert(list_.end(), other.list_.begin(), other.list_.end()); }
+
+const Metric* MetricSet::find(const std::string& name) const {
+  for (const auto& metric : list_) {
+    if (metric.name == name) return &metric;
+  }
+  return nullptr;
+}
+
+double MetricSet::value(const std::string& name) const {
+  const Metric* metric = find(name);
+  return metric ? metric->value : std::nan("");
+}
+
+std::vector<std::string> MetricSet::names() const {
+  std::vector<std::string> names;
+  for (const auto& metric : list_) names.push_back(metric.name);
+  return names;
+}
+
+netlist::Dimension metric_dimension(const std::string& unit) {
+  using netlist::Dimension;
+  if (unit == "s") return Dimension::time();
+  if (unit == "V") return Dimension::voltage();
+  if (unit == "A") return Dimension::current();
+  if (unit == "A²s") return Dimension::current().power(2) * Dimension::time();
+  if (unit == "W") return Dimension::power_();
+  if (unit == "J") return Dimension::energy();
+  if (unit == "degC" || unit == "K") return Dimension::temperature();
+  if (unit == "1") return Dimension::none();
+  throw std::logic_error(fmt::format("metric unit '{}' has no dimension", unit));
+}
+
+std::string format_metric(double value, const std::string& unit) {
+  if (std::isnan(value)) return "-";
+  if (unit == "degC") return fmt::format("{:.4g} degC", value);
+  if (unit == "1") return fmt::format("{:g}", value);
+  return netlist::format_si(value, unit);
+}
+
+namespace {
+const double kNaN = std::nan("");
+
+double or_nan(const std::optional<Extremum>& extremum) { return extremum ? extremum->value : kNaN; }
+bool reached(double time) { return !std::isnan(time); }
+}  // namespace
+
+MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::SequenceReport& report,
+                           const StallDiagnostic& stall) {
+  MetricSet m;
+  const auto& spec = report.spec;
+  const solver::AttemptRecord* attempt = report.last();
+  const bool rows = waveform.row_count() >= 2;
+  const double end = rows ? waveform.times().back() : 0.0;
+  const double start = attempt ? attempt->start : kNaN;
+  const double closed = attempt ? attempt->main_closed : kNaN;
+
+  Trace pack, link, main_current, pre_current;
+  if (rows) {
+    pack = Trace::node_pair(waveform, spec.pack.plus, spec.pack.minus, report.ground);
+    link = Trace::node_pair(waveform, spec.link.plus, spec.link.minus, report.ground);
+    main_current = Trace::column(waveform, spec.main + ".current");
+    pre_current = Trace::column(waveform, spec.precharge + ".current");
+  }
+
+  m.add("sequence.attempts", report.attempts, "1", "pre-charge attempts started (retries included)");
+
+  double threshold = kNaN;
+  if (rows && reached(start)) {
+    double ratio = spec.rule == netlist::ClosingRule::Ratio ? spec.rule_value : 1.0;
+    double offset = spec.rule == netlist::ClosingRule::Ratio ? 0.0 : -spec.rule_value;
+    if (auto crossing = link.minus_scaled(pack, ratio, offset).first_rise_through_zero(start)) {
+      threshold = *crossing - start;
+    }
+  }
+  m.add("sequence.time_to_threshold", threshold, "s",
+        "from the start of the final attempt to the first moment the link meets the closing level (ratio or "
+        "difference; the rate condition is not part of it), at the exact crossing");
+  m.add("sequence.decision_time", attempt ? attempt->decision : kNaN, "s",
+        "run time of the BMS sample that decided to close the main contactor");
+  m.add("sequence.main_close_time", closed, "s", "run time at which the main contacts first touched");
+  m.add("sequence.precharge_time", closed - start, "s",
+        "from the start of the final attempt to the first touch of the main contacts");
+
+  bool after_close = rows && reached(closed);
+  m.add("sequence.voltage_step_at_close", after_close ? pack.minus(link).at(closed, false) : kNaN, "V",
+        "sensed pack minus sensed link voltage just before the main contacts touched");
+  m.add("sequence.peak_main_current", after_close ? or_nan(main_current.absolute().maximum(closed, end)) : kNaN, "A",
+        "largest |current| through the main contactor from its closure to the end of the run");
+  m.add("sequence.main_i2t", after_close ? main_current.squared().integral(closed, end) : kNaN, "A²s",
+        "∫ i² dt of the main contactor current from its closure to the end of the run");
+  m.add("sequence.peak_precharge_current",
+        rows ? or_nan(pre_current.absolute().maximum(waveform.times().front(), end)) : kNaN, "A",
+        "largest |current| through the pre-charge contactor over the run (all attempts)");
+  double overshoot = kNaN;
+  if (after_close) overshoot = std::max(0.0, or_nan(link.minus(pack).maximum(closed, end)));
+  m.add("sequence.link_overshoot", overshoot, "V",
+        "largest amount by which the sensed link voltage exceeds the sensed pack voltage after the main "
+        "closure (0 when it never does)");
+  m.add("sequence.minimum_pack_voltage", rows ? or_nan(pack.minimum(waveform.times().front(), end)) : kNaN, "V",
+        "lowest sensed pack terminal voltage over the run");
+  m.add("sequence.detection_time", report.first_fault_time, "s", "run time at which the first fault was raised");
+  m.add("sequence.stall", stall.applicable && stall.stalls ? 1.0 : 0.0, "1",
+        "1 when a constant-power load leaves no equilibrium at or above the closing level (quadratic "
+        "v = [Vs + √(Vs² − 4PR)]/2), else 0");
+  m.add("sequence.stall_equilibrium", stall.applicable ? stall.equilibrium : kNaN, "V",
+        "link equilibrium [Vs + √(Vs² − 4PR)]/2 with the loads that drew in the final attempt; NaN when there "
+        "is none or no load drew");
+  return m;
+}
+
+namespace {
+std::string part_definition(const std::string& metric) {
+  if (metric == "peak_temperature") return "highest element temperature of the part over the run";
+  if (metric == "peak_power") return "largest instantaneous power dissipated in the part";
+  if (metric == "energy") return "heat dissipated in the part over the run (the solver's energy account)";
+  if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
+  if (metric == "peak_voltage") return "largest |voltage| across the part";
+  return "per-part figure (analysis/part_metrics.h)";
+}
+}  // namespace
+
+MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit) {
+  MetricSet m;
+  if (result.steps.row_count() == 0) return m;
+  for (const auto& part : all_resistive_metrics(circuit, result, audit)) {
+    for (const auto& metric : part.named()) {
+      m.add(part.part + "." + metric.name, metric.value, metric.unit, part_definition(metric.name));
+    }
+  }
+  return m;
+}
+
+std::vector<std::pair<std::string, double>> constant_power_loads(const solver::Circuit& circuit) {
+  std::vector<std::pair<std::string, double>> loads;
+  for (const auto& spec : circuit.spec().parts) {
+    if (spec.kind != "constant_power_load") continue;
+    const netlist::Tree* power = spec.block.find("power");
+    if (power == nullptr) continue;
+    loads.emplace_back(spec.name, netlist::ParameterReader::read_value(*power, netlist::Dimension::power_(),
+                                                                        netlist::Bound::NonNegative, "load power"));
+  }
+  return loads;
+}
+
+}  // namespace linkrise::analysis

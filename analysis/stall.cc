@@ -1,0 +1,86 @@
+#include "analysis/stall.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "analysis/trace.h"
+#include "netlist/units.h"
+
+namespace linkrise::analysis {
+
+double constant_power_equilibrium(double source_voltage, double resistance, double power) {
+  double discriminant = source_voltage * source_voltage - 4.0 * power * resistance;
+  if (discriminant < 0.0) return std::nan("");
+  return 0.5 * (source_voltage + std::sqrt(discriminant));
+}
+
+StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
+                               const std::vector<std::pair<std::string, double>>& loads) {
+  using netlist::format_si;
+  StallDiagnostic d;
+  const solver::AttemptRecord* attempt = report.last();
+  if (attempt == nullptr || waveform.row_count() < 2) {
+    d.explanation = "no pre-charge attempt was made";
+    return d;
+  }
+  const auto& spec = report.spec;
+  double start = attempt->start;
+  double end = !std::isnan(attempt->decision)     ? attempt->decision
+               : !std::isnan(attempt->fault_time) ? attempt->fault_time
+                                                  : waveform.times().back();
+  Trace pack = Trace::node_pair(waveform, spec.pack.plus, spec.pack.minus, report.ground);
+  Trace link = Trace::node_pair(waveform, spec.link.plus, spec.link.minus, report.ground);
+  Trace current = Trace::column(waveform, spec.precharge + ".current");
+  for (const auto& [name, power] : loads) {
+    int column = waveform.column(name + ".drawing");
+    if (column < 0) continue;
+    bool drew = false;
+    for (std::size_t r = 0; r < waveform.row_count() && !drew; ++r) {
+      double t = waveform.time(r);
+      drew = t >= start && t <= end && waveform.value(r, column) > 0.5;
+    }
+    if (drew) d.load_power += power;
+  }
+  d.source_voltage = pack.at(start);
+  d.closing_level = spec.closing_level(d.source_voltage);
+  if (d.load_power <= 0.0) {
+    d.explanation = "no constant-power load drew during the final attempt, so none can stall it";
+    return d;
+  }
+  double i = std::fabs(current.at(end));
+  if (!(i > 1e-9)) {
+    d.explanation = "no pre-charge current flowed at the end of the attempt, so the path resistance is unknown";
+    return d;
+  }
+  d.applicable = true;
+  // Vs − link over the current: the whole path (source resistance, contactors, resistor, cable).
+  d.path_resistance = (d.source_voltage - link.at(end)) / i;
+  d.maximum_power = d.source_voltage * d.source_voltage / (4.0 * d.path_resistance);
+  d.equilibrium = constant_power_equilibrium(d.source_voltage, d.path_resistance, d.load_power);
+  if (std::isnan(d.equilibrium)) {
+    d.stalls = true;
+    d.explanation = fmt::format(
+        "stall: the loads draw {} but the path ({} from {}) can deliver at most Vs²/(4R) = {}; there is no "
+        "equilibrium and the link collapses",
+        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.source_voltage, "V"),
+        format_si(d.maximum_power, "W"));
+  } else if (d.equilibrium < d.closing_level) {
+    d.stalls = true;
+    d.explanation = fmt::format(
+        "stall: with {} drawn through {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, below the closing "
+        "level {}; only the timeout ends the attempt",
+        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.equilibrium, "V"),
+        format_si(d.closing_level, "V"));
+  } else {
+    d.explanation = fmt::format(
+        "no stall: with {} drawn through {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, above the "
+        "closing level {}",
+        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.equilibrium, "V"),
+        format_si(d.closing_level, "V"));
+  }
+  return d;
+}
+
+}  // namespace linkrise::analysis

@@ -1,0 +1,35 @@
+#pragma once
+// Does a constant-power load stall the pre-charge below the closing level?
+//
+// A link fed from a source Vs through a path resistance R, with a load drawing constant power P, settles
+// where the resistor current feeds the load: v·(Vs − v)/R = P, so v = [Vs + √(Vs² − 4PR)]/2 (the upper root
+// is the operating point; Simpson-Porco, Dörfler & Bullo, arXiv:1503.04769). When P > Vs²/(4R) there is no
+// equilibrium at all: the load takes more than the path can deliver and the link collapses. Either way, if
+// no equilibrium lies at or above the closing level, the charge stalls and only the timeout can end it.
+#include <string>
+
+#include "solver/sequence_report.h"
+#include "solver/waveform.h"
+
+namespace linkrise::analysis {
+
+/// The upper equilibrium of a constant-power load behind a resistance, V; NaN when P > Vs²/(4R).
+double constant_power_equilibrium(double source_voltage, double resistance, double power);
+
+struct StallDiagnostic {
+  bool applicable = false;  // false: no constant-power load drew, or no pre-charge current to measure R
+  double source_voltage = 0.0;   // V, pack at the start of the final attempt
+  double path_resistance = 0.0;  // Ohm, (Vs − link)/i through the pre-charge contactor, end of the charge
+  double load_power = 0.0;       // W, constant-power loads that drew during the final attempt
+  double maximum_power = 0.0;    // W, Vs²/(4R)
+  double equilibrium = 0.0;      // V, NaN when there is none
+  double closing_level = 0.0;    // V, the closing rule's level at Vs
+  bool stalls = false;
+  std::string explanation;
+};
+
+/// `loads`: names and rated powers (W) of the case's constant-power loads.
+StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
+                               const std::vector<std::pair<std::string, double>>& loads);
+
+}  // namespace linkrise::analysis

@@ -1,0 +1,38 @@
+#include "analysis/verdict.h"
+
+#include <fmt/format.h>
+
+
+namespace linkrise::analysis {
+
+Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit,
+                    const solver::SequenceReport* report) {
+  Evaluation evaluation;
+  if (report != nullptr) {
+    evaluation.stall = diagnose_stall(result.steps, *report, constant_power_loads(circuit));
+    evaluation.metrics.append(sequence_metrics(result.steps, *report, *evaluation.stall));
+  }
+  evaluation.metrics.append(part_metrics(circuit, result, audit));
+
+  std::vector<netlist::LimitSpec> limits = netlist::read_limits(circuit.spec());
+  for (auto& rating : rating_limits(circuit)) limits.push_back(std::move(rating));
+  evaluation.limits = judge_limits(limits, evaluation.metrics);
+
+  for (const auto& limit : evaluation.limits) {
+    if (limit.pass) continue;
+    std::string where = limit.margin < 0.0 ? (limit.bound == "max" ? "above" : "below")
+                                           : fmt::format("within, but short of the {:g} % margin to,",
+                                                         100.0 * limit.required_margin);
+    evaluation.failures.push_back(fmt::format("{} = {} is {} its {} {} ({})", limit.metric,
+                                              format_metric(limit.value, limit.unit), where, limit.bound,
+                                              format_metric(limit.limit, limit.unit), limit.source));
+  }
+  if (report != nullptr && report->outcome != report->spec.expected_outcome) {
+    evaluation.failures.push_back(fmt::format("the sequence ended '{}' after {} attempt(s), expected '{}'",
+                                              report->outcome, report->attempts, report->spec.expected_outcome));
+  }
+  evaluation.pass = evaluation.failures.empty();
+  return evaluation;
+}
+
+}  // namespace linkrise::analysis

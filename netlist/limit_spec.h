@@ -1,0 +1,33 @@
+#pragma once
+// The `limits:` block: bounds on metrics, judged after the run (analysis/limits.h).
+//
+//   limits:
+//     r_pre.energy: {max: 150 J}
+//     sequence.precharge_time: {max: 250 ms, margin: 10 %}   # must stay 10 % of the bound inside it
+//     sequence.minimum_pack_voltage: {min: 600 V}
+//
+// Keys are metric names (docs/sequence-and-limits.md); each entry has `min`, `max` or both, with units, and
+// an optional required `margin` (a fraction of the bound). Metric names and units are checked against the
+// run's metrics when judging.
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "netlist/case.h"
+#include "netlist/units.h"
+
+namespace linkrise::netlist {
+
+struct LimitSpec {
+  std::string metric;
+  std::optional<Quantity> minimum, maximum;
+  double margin = 0.0;  // required margin, fraction of |bound|
+  std::string source = "limits block";
+  SourceMark mark;  // the metric key
+  SourceMark minimum_mark, maximum_mark;
+};
+
+/// Reads the case's `limits:` block (empty when absent). Throws InputError on a malformed entry.
+std::vector<LimitSpec> read_limits(const Case& spec);
+
+}  // namespace linkrise::netlist

@@ -1,0 +1,217 @@
+#include "netlist/sequence_spec.h"
+
+#include <algorithm>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "netlist/parameter_reader.h"
+
+namespace linkrise::netlist {
+
+const std::vector<std::string>& sequence_outcomes() {
+  static const std::vector<std::string> outcomes = {"closed", "timeout", "no_rise", "too_fast", "unfinished"};
+  return outcomes;
+}
+
+std::string SequenceSpec::rule_text() const {
+  std::string text = rule == ClosingRule::Ratio ? fmt::format("link >= {:g} % of pack", 100.0 * rule_value)
+                                                : fmt::format("pack - link <= {:g} V", rule_value);
+  if (max_rate) text += fmt::format(" and |d(link)/dt| <= {:g} V/s", *max_rate);
+  return text;
+}
+
+namespace {
+
+std::vector<std::string> part_names(const Case& spec) {
+  std::vector<std::string> names;
+  for (const auto& part : spec.parts) names.push_back(part.name);
+  return names;
+}
+
+std::vector<std::string> node_names(const Case& spec) {
+  std::set<std::string> nodes;
+  for (const auto& part : spec.parts) nodes.insert(part.nodes.begin(), part.nodes.end());
+  return {nodes.begin(), nodes.end()};
+}
+
+std::string did_you_mean(const std::string& word, const std::vector<std::string>& candidates,
+                         const std::string& otherwise) {
+  std::string suggestion = closest_match(word, candidates);
+  return suggestion.empty() ? otherwise : fmt::format("did you mean '{}'?", suggestion);
+}
+
+// A part name that must name a contactor of the case.
+std::string contactor_name(const Case& spec, const Tree& node, const std::string& what) {
+  if (!node.is_scalar()) throw InputError(node.mark, fmt::format("the sequence's {} must be a part name", what));
+  const PartSpec* part = spec.find_part(node.text);
+  if (part == nullptr) {
+    throw InputError(node.mark, fmt::format("the sequence's {} '{}' is not in the parts list", what, node.text),
+                     did_you_mean(node.text, part_names(spec), "name one of the case's contactors"));
+  }
+  if (part->kind != "contactor") {
+    throw InputError(node.mark,
+                     fmt::format("the sequence's {} '{}' is a {}, not a contactor", what, node.text, part->kind),
+                     "name a part of kind 'contactor'");
+  }
+  return node.text;
+}
+
+NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string& key) {
+  const Tree* node = reader.child(key);
+  if (node == nullptr) {
+    throw InputError(reader.mark(key), fmt::format("the sequence needs '{}', the sensed node pair", key),
+                     fmt::format("add '{}: [plus_node, minus_node]'", key));
+  }
+  if (!node->is_list() || node->items.size() != 2 || !node->items[0].is_scalar() || !node->items[1].is_scalar()) {
+    throw InputError(node->mark, fmt::format("the sequence's '{}' must list two nodes [plus, minus]", key),
+                     fmt::format("write '{}: [plus_node, minus_node]'", key));
+  }
+  auto nodes = node_names(spec);
+  for (const Tree& item : node->items) {
+    if (std::find(nodes.begin(), nodes.end(), item.text) == nodes.end()) {
+      throw InputError(item.mark, fmt::format("the sequence's '{}' names node '{}', which no part connects", key,
+                                              item.text),
+                       did_you_mean(item.text, nodes, "name a node that appears in some part's 'nodes'"));
+    }
+  }
+  if (node->items[0].text == node->items[1].text) {
+    throw InputError(node->mark, fmt::format("the sequence's '{}' names the same node twice", key),
+                     "name the plus and the minus node");
+  }
+  return NodePair{node->items[0].text, node->items[1].text};
+}
+
+}  // namespace
+
+std::optional<SequenceSpec> read_sequence(const Case& spec) {
+  const Tree* block = spec.section("sequence");
+  if (block == nullptr) return std::nullopt;
+  ParameterReader reader(*block, "the sequence block");
+  SequenceSpec sequence;
+  sequence.mark = block->mark;
+
+  const Tree* start_closed = reader.child("start_closed");
+  if (start_closed == nullptr || !start_closed->is_list() || start_closed->items.empty()) {
+    throw InputError(start_closed ? start_closed->mark : block->mark,
+                     "the sequence needs 'start_closed', the contactors closed when an attempt starts",
+                     "add e.g. 'start_closed: [k_neg, k_pre]'");
+  }
+  for (const Tree& item : start_closed->items) {
+    std::string name = contactor_name(spec, item, "start_closed contactor");
+    if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), name) != sequence.start_closed.end()) {
+      throw InputError(item.mark, fmt::format("contactor '{}' is listed twice in start_closed", name),
+                       "list each contactor once");
+    }
+    sequence.start_closed.push_back(name);
+  }
+  auto required_contactor = [&](const std::string& key, const std::string& what, const std::string& example) {
+    const Tree* node = reader.child(key);
+    if (node == nullptr) {
+      throw InputError(block->mark, fmt::format("the sequence needs '{}' ({})", key, what),
+                       fmt::format("add '{}: {}'", key, example));
+    }
+    return contactor_name(spec, *node, fmt::format("'{}' contactor", key));
+  };
+  sequence.main = required_contactor("main", "the main contactor", "k_main");
+  sequence.precharge = required_contactor("precharge", "the pre-charge contactor", "k_pre");
+  if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.main) !=
+      sequence.start_closed.end()) {
+    reader.fail("main", fmt::format("'{}' is also in start_closed; the main contactor closes only on the decision",
+                                    sequence.main),
+                "remove it from start_closed");
+  }
+  if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.precharge) ==
+      sequence.start_closed.end()) {
+    reader.fail("precharge", fmt::format("'{}' is not in start_closed, so the pre-charge path never closes",
+                                         sequence.precharge),
+                fmt::format("add '{}' to start_closed", sequence.precharge));
+  }
+  {
+    const Tree* node = reader.child("resistor");
+    if (node == nullptr) {
+      throw InputError(block->mark, "the sequence needs 'resistor', the pre-charge resistor it judges",
+                       "add e.g. 'resistor: r_pre'");
+    }
+    if (!node->is_scalar() || spec.find_part(node->text) == nullptr) {
+      throw InputError(node->mark, fmt::format("the sequence's resistor '{}' is not in the parts list", node->text),
+                       did_you_mean(node->text, part_names(spec), "name the pre-charge resistor part"));
+    }
+    sequence.resistor = node->text;
+  }
+  sequence.overlap = reader.quantity("overlap", Dimension::time(), Bound::NonNegative, 0.0);
+  sequence.pack = node_pair(spec, reader, "pack");
+  sequence.link = node_pair(spec, reader, "link");
+
+  const Tree* rule = reader.child("close_when");
+  if (rule == nullptr) {
+    throw InputError(block->mark, "the sequence needs 'close_when', the rule for closing the main contactor",
+                     "add 'close_when: {ratio: 95 %}' or 'close_when: {difference: 20 V}'");
+  }
+  {
+    ParameterReader rule_reader(*rule, "the sequence's close_when");
+    auto ratio = rule_reader.optional("ratio", Dimension::none(), Bound::Fraction);
+    auto difference = rule_reader.optional("difference", Dimension::voltage(), Bound::Positive);
+    sequence.max_rate = rule_reader.optional("max_rate", Dimension::voltage() / Dimension::time(), Bound::Positive);
+    rule_reader.finish();
+    if (ratio.has_value() == difference.has_value()) {
+      throw InputError(rule->mark, "close_when needs exactly one of 'ratio' (link/pack) or 'difference' (pack - link)",
+                       "write 'close_when: {ratio: 95 %}' or 'close_when: {difference: 20 V}'");
+    }
+    if (ratio) {
+      if (!(*ratio > 0.0)) rule_reader.fail("ratio", "must be above 0 %", "write e.g. '95 %'");
+      sequence.rule = ClosingRule::Ratio;
+      sequence.rule_value = *ratio;
+    } else {
+      sequence.rule = ClosingRule::Difference;
+      sequence.rule_value = *difference;
+    }
+  }
+  sequence.sample_period = reader.required("sample_period", Dimension::time(), Bound::Positive);
+  sequence.start = reader.quantity("start", Dimension::time(), Bound::NonNegative, 0.0);
+  sequence.minimum_time = reader.quantity("minimum_time", Dimension::time(), Bound::NonNegative, 0.0);
+  sequence.timeout = reader.required("timeout", Dimension::time(), Bound::Positive);
+  if (const Tree* rise = reader.child("rise_check")) {
+    ParameterReader rise_reader(*rise, "the sequence's rise_check");
+    sequence.rise_fraction = rise_reader.required("above", Dimension::none(), Bound::Fraction);
+    sequence.rise_by = rise_reader.required("by", Dimension::time(), Bound::Positive);
+    rise_reader.finish();
+    if (!(sequence.rise_by < sequence.timeout)) {
+      rise_reader.fail("by", "must come before the timeout, or the timeout fires first",
+                       "shorten 'by' or lengthen 'timeout'");
+    }
+  }
+  sequence.attempts = reader.count("attempts", 1, 1);
+  auto cool_down = reader.optional("cool_down", Dimension::time(), Bound::NonNegative);
+  if (sequence.attempts > 1 && !cool_down) {
+    reader.fail("attempts", fmt::format("{} attempts need a 'cool_down' between them", sequence.attempts),
+                "add e.g. 'cool_down: 2 s'");
+  }
+  sequence.cool_down = cool_down.value_or(0.0);
+  sequence.expected_outcome = reader.word("expected_outcome", sequence_outcomes(), "closed");
+  reader.finish();
+
+  if (!(sequence.sample_period < sequence.timeout)) {
+    reader.fail("sample_period", "must be shorter than the timeout", "use a period of a few milliseconds");
+  }
+  if (!(sequence.minimum_time < sequence.timeout)) {
+    reader.fail("minimum_time", "must be shorter than the timeout, or no attempt can ever close",
+                "shorten minimum_time or lengthen timeout");
+  }
+  if (sequence.start > spec.run.duration) {
+    reader.fail("start", "lies after the end of the run", "start earlier or lengthen 'run: duration'");
+  }
+  // A contactor moved by both the controller and a scheduled event has no defined state.
+  std::vector<std::string> moved = sequence.start_closed;
+  moved.push_back(sequence.main);
+  for (const auto& event : spec.events) {
+    if (std::find(moved.begin(), moved.end(), event.target) != moved.end()) {
+      throw InputError(event.mark,
+                       fmt::format("contactor '{}' is moved by the sequence and also by this event", event.target),
+                       "remove the event; the sequence controller decides when it moves");
+    }
+  }
+  return sequence;
+}
+
+}  // namespace linkrise::netlist

@@ -1,0 +1,74 @@
+#pragma once
+// The `sequence:` block: how the BMS runs the pre-charge (read by solver/sequence_controller).
+//
+//   sequence:
+//     start_closed: [k_neg, k_pre]   # contactors the BMS closes when an attempt starts
+//     precharge: k_pre               # the pre-charge contactor: opened after the overlap and on a fault
+//     main: k_main                   # closed when the closing rule is met
+//     resistor: r_pre                # the pre-charge resistor (judged in the detection matrix)
+//     overlap: 20 ms                 # main contact closed -> pre-charge coil released
+//     pack: [pack_plus, pack_minus]  # sensed node pair (plus, minus) for the pack voltage
+//     link: [link_plus, bus_minus]   # sensed node pair for the DC-link voltage
+//     close_when: {ratio: 95 %}      # link >= ratio * pack, or {difference: 20 V}: pack - link <= 20 V;
+//                                    # optional max_rate: 500 V/s (|link change| per sample / period)
+//     sample_period: 1 ms            # BMS decision period; samples at start + k * period
+//     start: 0 s                     # first attempt (default 0 s)
+//     minimum_time: 30 ms            # rule met earlier than this after the attempt start -> fault too_fast
+//     rise_check: {above: 20 %, by: 50 ms}  # link below 20 % of pack at the first sample >= 50 ms -> no_rise
+//     timeout: 500 ms                # rule still not met this long after the attempt start -> timeout
+//     attempts: 3                    # total attempts (default 1); after a fault the next one starts
+//     cool_down: 2 s                 # at the first sample this long after the fault (required if attempts > 1)
+//     expected_outcome: closed       # what `linkrise run` treats as a pass (default closed)
+//
+// All times of an attempt are measured from its start (the sample at which the coils are energised).
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "netlist/case.h"
+
+namespace linkrise::netlist {
+
+enum class ClosingRule { Ratio, Difference };
+
+struct NodePair {
+  std::string plus, minus;
+};
+
+struct SequenceSpec {
+  std::vector<std::string> start_closed;
+  std::string precharge;
+  std::string main;
+  std::string resistor;
+  double overlap = 0.0;  // s
+  NodePair pack, link;
+  ClosingRule rule = ClosingRule::Ratio;
+  double rule_value = 0.95;          // fraction (ratio) or V (difference)
+  std::optional<double> max_rate;    // V/s
+  double sample_period = 1e-3;       // s
+  double start = 0.0;                // s
+  double minimum_time = 0.0;         // s; 0 = no too-fast check
+  std::optional<double> rise_fraction;  // fraction of pack
+  double rise_by = 0.0;              // s
+  double timeout = 0.0;              // s
+  int attempts = 1;
+  double cool_down = 0.0;            // s
+  std::string expected_outcome = "closed";
+  SourceMark mark;
+
+  /// The closing level on the link for a given pack voltage: ratio·pack or pack − difference.
+  double closing_level(double pack_voltage) const {
+    return rule == ClosingRule::Ratio ? rule_value * pack_voltage : pack_voltage - rule_value;
+  }
+  /// Plain words for reports, e.g. "link >= 95 % of pack" or "pack - link <= 20 V".
+  std::string rule_text() const;
+};
+
+/// The outcomes a sequence can end with.
+const std::vector<std::string>& sequence_outcomes();
+
+/// Reads and validates the case's `sequence:` block against its parts and nodes; std::nullopt when the case
+/// has none. Throws InputError with the position of the first problem.
+std::optional<SequenceSpec> read_sequence(const Case& spec);
+
+}  // namespace linkrise::netlist

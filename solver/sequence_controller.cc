@@ -1,0 +1,243 @@
+#include "solver/sequence_controller.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "models/contactor.h"
+#include "netlist/units.h"
+
+namespace linkrise::solver {
+namespace {
+using netlist::format_si;
+
+int contactor_index(const Circuit& circuit, const std::string& name, const netlist::SourceMark& mark) {
+  int index = circuit.find_part(name);
+  if (index < 0 || !models::contactor_timing(circuit.part(index))) {
+    throw netlist::InputError(mark, fmt::format("the sequence names '{}', which is not a contactor", name),
+                              "name a part of kind 'contactor'");
+  }
+  return index;
+}
+
+models::ContactorTiming timing_of(const Circuit& circuit, int part) {
+  return *models::contactor_timing(circuit.part(part));
+}
+}  // namespace
+
+SequenceController::SequenceController(const Circuit& circuit, netlist::SequenceSpec spec)
+    : circuit_(circuit), spec_(std::move(spec)) {
+  main_ = contactor_index(circuit, spec_.main, spec_.mark);
+  precharge_ = contactor_index(circuit, spec_.precharge, spec_.mark);
+  for (const auto& name : spec_.start_closed) start_closed_.push_back(contactor_index(circuit, name, spec_.mark));
+  pack_plus_ = circuit.node_index(spec_.pack.plus);
+  pack_minus_ = circuit.node_index(spec_.pack.minus);
+  link_plus_ = circuit.node_index(spec_.link.plus);
+  link_minus_ = circuit.node_index(spec_.link.minus);
+  next_attempt_ = spec_.start;
+}
+
+double SequenceController::next_sample(double time) const {
+  if (done_ || phase_ == Phase::Closed) return std::numeric_limits<double>::infinity();
+  if (time < spec_.start) return spec_.start;
+  // Samples are start + k·period computed from k (never accumulated), so they are the same in every run.
+  long index = static_cast<long>(std::floor((time - spec_.start) / spec_.sample_period));
+  while (tick(index) <= time) ++index;
+  return tick(index);
+}
+
+std::vector<Watch> SequenceController::watches() const {
+  Watch watch;
+  watch.name = "closing level";
+  watch.plus_a = link_plus_;
+  watch.minus_a = link_minus_;
+  watch.plus_b = pack_plus_;
+  watch.minus_b = pack_minus_;
+  if (spec_.rule == netlist::ClosingRule::Ratio) {
+    watch.ratio = spec_.rule_value;  // link - ratio·pack
+  } else {
+    watch.ratio = 1.0;  // link - pack + difference
+    watch.offset = -spec_.rule_value;
+  }
+  return {watch};
+}
+
+void SequenceController::schedule_close(int part, double coil_time, const std::string& why,
+                                        std::vector<Command>& commands, double& touch) const {
+  auto timing = timing_of(circuit_, part);
+  touch = coil_time + timing.closing_delay;
+  std::string delay = timing.closing_delay > 0.0
+                          ? fmt::format("{} after the coil was energised", format_si(timing.closing_delay, "s"))
+                          : "coil energised";
+  commands.push_back(Command{touch, part, "close", fmt::format("{} ({})", why, delay)});
+  for (int bounce = 1; bounce <= timing.bounce_count; ++bounce) {
+    double gap = touch + (2.0 * bounce - 1.0) * timing.bounce_interval;
+    commands.push_back(Command{gap, part, "open", fmt::format("contact bounce {} of {}", bounce, timing.bounce_count)});
+    commands.push_back(Command{gap + timing.bounce_interval, part, "close",
+                               fmt::format("contact bounce {} of {} ends", bounce, timing.bounce_count)});
+  }
+}
+
+void SequenceController::start_attempt(double time, std::vector<Command>& commands,
+                                       std::vector<TimelineEntry>& timeline) {
+  AttemptRecord record;
+  record.number = static_cast<int>(history_.size()) + 1;
+  record.start = time;
+  std::string names;
+  double last_touch = time;
+  for (int part : start_closed_) {
+    double touch = time;
+    schedule_close(part, time, fmt::format("attempt {} start", record.number), commands, touch);
+    last_touch = std::max(last_touch, touch);
+    names += (names.empty() ? "" : ", ") + circuit_.part(part).name();
+  }
+  record.contacts_closed = last_touch;
+  timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
+                                   fmt::format("coils of {} energised", names)});
+  history_.push_back(record);
+  phase_ = Phase::Charging;
+  have_previous_ = false;
+  rise_checked_ = false;
+}
+
+void SequenceController::raise_fault(double time, const std::string& fault, const std::string& reason,
+                                     std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) {
+  AttemptRecord& record = history_.back();
+  record.fault = fault;
+  record.fault_time = time;
+  record.reason = reason;
+  timeline.push_back(TimelineEntry{time, fmt::format("fault {}", fault), reason});
+  double latest = time;
+  for (int part : start_closed_) {
+    double parted = time + timing_of(circuit_, part).opening_delay;
+    commands.push_back(Command{parted, part, "open", fmt::format("fault {}: pre-charge path opened", fault)});
+    latest = std::max(latest, parted);
+  }
+  if (static_cast<int>(history_.size()) < spec_.attempts) {
+    phase_ = Phase::Waiting;
+    next_attempt_ = time + spec_.cool_down;
+    timeline.push_back(TimelineEntry{time, "cool-down",
+                                     fmt::format("attempt {} of {} at the first sample after {}",
+                                                 history_.size() + 1, spec_.attempts,
+                                                 format_si(spec_.cool_down, "s"))});
+  } else {
+    phase_ = Phase::Faulted;
+    last_command_ = latest;
+  }
+}
+
+void SequenceController::sample(const Probe& probe, std::vector<Command>& commands,
+                                 std::vector<TimelineEntry>& timeline) {
+  const double t = probe.time;
+  const double pack = probe.voltage(pack_plus_, pack_minus_);
+  const double link = probe.voltage(link_plus_, link_minus_);
+  switch (phase_) {
+    case Phase::Closed:
+      return;
+    case Phase::Faulted:
+      if (t > last_command_) done_ = true;
+      return;
+    case Phase::Waiting:
+      if (due(t, next_attempt_)) start_attempt(t, commands, timeline);
+      previous_link_ = link;
+      have_previous_ = true;
+      return;
+    case Phase::Charging:
+      break;
+  }
+  AttemptRecord& record = history_.back();
+  const double elapsed = t - record.start;
+  double rate = have_previous_ ? std::fabs(link - previous_link_) / spec_.sample_period : 0.0;
+  bool level_met = pack > 0.0 && link >= spec_.closing_level(pack);
+  bool rate_met = !spec_.max_rate || (have_previous_ && rate <= *spec_.max_rate);
+  previous_link_ = link;
+  have_previous_ = true;
+
+  if (level_met && rate_met) {
+    if (spec_.minimum_time > 0.0 && !due(elapsed, spec_.minimum_time)) {
+      raise_fault(t, "too_fast",
+                  fmt::format("link {} met '{}' after {}, before the minimum pre-charge time {} (capacitance "
+                              "missing?)",
+                              format_si(link, "V"), spec_.rule_text(), format_si(elapsed, "s"),
+                              format_si(spec_.minimum_time, "s")),
+                  commands, timeline);
+      return;
+    }
+    record.decision = t;
+    record.reason = fmt::format("link {} met '{}' (pack {}) after {}", format_si(link, "V"), spec_.rule_text(),
+                                format_si(pack, "V"), format_si(elapsed, "s"));
+    timeline.push_back(TimelineEntry{t, fmt::format("decide to close {}", spec_.main), record.reason});
+    double touch = t;
+    schedule_close(main_, t, "closing decision", commands, touch);
+    record.main_closed = touch;
+    auto pre = timing_of(circuit_, precharge_);
+    double coil_off = touch + spec_.overlap;
+    record.released = coil_off + pre.opening_delay;
+    commands.push_back(Command{record.released, precharge_, "open",
+                               fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
+                                           pre.opening_delay > 0.0
+                                               ? fmt::format(", then opening delay {}", format_si(pre.opening_delay, "s"))
+                                               : "")});
+    phase_ = Phase::Closed;
+    return;
+  }
+  if (spec_.rise_fraction && !rise_checked_ && due(elapsed, spec_.rise_by)) {
+    rise_checked_ = true;
+    double level = *spec_.rise_fraction * pack;
+    if (!(link >= level)) {
+      raise_fault(t, "no_rise",
+                  fmt::format("link {} is below {:g} % of pack ({}) {} after the start (short or reversed "
+                              "connection?)",
+                              format_si(link, "V"), 100.0 * *spec_.rise_fraction, format_si(level, "V"),
+                              format_si(elapsed, "s")),
+                  commands, timeline);
+      return;
+    }
+  }
+  if (due(elapsed, spec_.timeout)) {
+    raise_fault(t, "timeout",
+                fmt::format("'{}' not met within {}: link {}, pack {}", spec_.rule_text(),
+                            format_si(spec_.timeout, "s"), format_si(link, "V"), format_si(pack, "V")),
+                commands, timeline);
+  }
+}
+
+SequenceReport SequenceController::report(double end_time) const {
+  SequenceReport report;
+  report.spec = spec_;
+  report.ground = circuit_.spec().ground;
+  report.history = history_;
+  auto clear_after = [end_time](double& time) {
+    if (!(time <= end_time)) time = kNotReached;
+  };
+  for (auto& record : report.history) {
+    clear_after(record.contacts_closed);
+    clear_after(record.main_closed);
+    clear_after(record.released);
+  }
+  report.attempts = static_cast<int>(report.history.size());
+  for (const auto& record : report.history) {
+    if (!record.fault.empty()) {
+      report.first_fault = record.fault;
+      report.first_fault_time = record.fault_time;
+      break;
+    }
+  }
+  if (const AttemptRecord* last = report.last()) {
+    if (!std::isnan(last->main_closed)) {
+      report.outcome = "closed";
+    } else if (!last->fault.empty() && phase_ == Phase::Faulted) {
+      report.outcome = last->fault;
+    }
+  }
+  return report;
+}
+
+void attach(SequenceController& controller, Options& options) {
+  options.supervisor = &controller;
+  for (auto& watch : controller.watches()) options.watches.push_back(watch);
+}
+
+}  // namespace linkrise::solver

@@ -1,0 +1,69 @@
+#pragma once
+// The BMS pre-charge sequence as a Supervisor of the transient driver.
+//
+// The controller acts only at its samples (start + k·sample_period), as a BMS task does. At each sample it
+// reads the sensed pack and link voltages and:
+//  - starts an attempt (first sample at or after `start`, or after the cool-down): energises the coils of the
+//    start_closed contactors; each contact touches after its closing_delay (then bounces, if configured);
+//  - while charging, in this order: closing rule met -> "too_fast" fault if earlier than minimum_time, else
+//    the decision; rise check due (first sample at or after rise_check.by) and link below the level ->
+//    "no_rise"; timeout reached -> "timeout";
+//  - on the decision: main coil energised, main contacts touch after its closing_delay; the pre-charge coil
+//    is released `overlap` after that touch and its contacts part after its opening_delay;
+//  - on a fault: every start_closed coil is released (contacts part after their opening delays); with
+//    attempts left the next attempt starts at the first sample cool_down after the fault. States (link
+//    charge, temperatures) carry across: it is one continuous simulation.
+// After the last fault the controller reports finished() once its contacts have parted, so the run stops.
+#include <vector>
+
+#include "netlist/sequence_spec.h"
+#include "solver/circuit.h"
+#include "solver/sequence_report.h"
+#include "solver/transient.h"
+
+namespace linkrise::solver {
+
+class SequenceController final : public Supervisor {
+ public:
+  /// Throws netlist::InputError when a named part is not a contactor of the circuit.
+  SequenceController(const Circuit& circuit, netlist::SequenceSpec spec);
+
+  double next_sample(double time) const override;
+  void sample(const Probe& probe, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) override;
+  bool finished() const override { return done_; }
+
+  /// Level watches for the closing level, so the crossing time is a waveform row (exact metrics).
+  std::vector<Watch> watches() const;
+  /// The report; events scheduled after `end_time` (never reached in the run) are cleared.
+  SequenceReport report(double end_time) const;
+
+ private:
+  enum class Phase { Waiting, Charging, Closed, Faulted };
+  double tick(long index) const { return spec_.start + static_cast<double>(index) * spec_.sample_period; }
+  bool due(double elapsed, double limit) const { return elapsed >= limit - 1e-9 * spec_.sample_period; }
+  void schedule_close(int part, double coil_time, const std::string& why, std::vector<Command>& commands,
+                      double& touch) const;
+  void start_attempt(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
+  void raise_fault(double time, const std::string& fault, const std::string& reason, std::vector<Command>& commands,
+                   std::vector<TimelineEntry>& timeline);
+
+  const Circuit& circuit_;
+  netlist::SequenceSpec spec_;
+  int main_ = -1, precharge_ = -1;
+  std::vector<int> start_closed_;
+  int pack_plus_ = -1, pack_minus_ = -1, link_plus_ = -1, link_minus_ = -1;
+
+  Phase phase_ = Phase::Waiting;
+  double next_attempt_ = 0.0;
+  double previous_link_ = 0.0;
+  bool have_previous_ = false;
+  bool rise_checked_ = false;
+  double last_command_ = 0.0;
+  bool done_ = false;
+  std::vector<AttemptRecord> history_;
+};
+
+/// Installs a controller on driver options: supervisor and closing-level watches.
+void attach(SequenceController& controller, Options& options);
+
+}  // namespace linkrise::solver

@@ -1,0 +1,39 @@
+#pragma once
+// What the BMS sequence controller did in one run, as plain data for the analyser and the reports.
+// Times are absolute run times in s; NaN means "did not happen within the run".
+#include <limits>
+#include <string>
+#include <vector>
+
+#include "netlist/sequence_spec.h"
+
+namespace linkrise::solver {
+
+constexpr double kNotReached = std::numeric_limits<double>::quiet_NaN();
+
+struct AttemptRecord {
+  int number = 1;
+  double start = kNotReached;        // coils of the start_closed contactors energised (a BMS sample)
+  double contacts_closed = kNotReached;  // the last start_closed contact touched
+  double decision = kNotReached;     // sample at which the closing rule was met
+  double main_closed = kNotReached;  // main contacts first touched
+  double released = kNotReached;     // pre-charge contacts parted after the overlap
+  double fault_time = kNotReached;   // sample at which a fault was raised
+  std::string fault;                 // "", "timeout", "no_rise", "too_fast"
+  std::string reason;                // why it ended (decision or fault), in words
+};
+
+struct SequenceReport {
+  netlist::SequenceSpec spec;  // the configuration the controller ran
+  std::string ground;          // the case's ground node (it has no waveform column)
+  std::string outcome = "unfinished";  // closed | timeout | no_rise | too_fast | unfinished
+  int attempts = 0;
+  std::vector<AttemptRecord> history;
+  double first_fault_time = kNotReached;
+  std::string first_fault;
+
+  const AttemptRecord* last() const { return history.empty() ? nullptr : &history.back(); }
+  bool fault() const { return outcome != "closed" && outcome != "unfinished"; }
+};
+
+}  // namespace linkrise::solver
