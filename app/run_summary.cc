@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "analysis/part_metrics.h"
 #include "netlist/units.h"
 
 namespace linkrise::app {
@@ -66,6 +67,19 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
     if (energy.stored_start != 0.0 || energy.stored_end != 0.0) {
       entry["stored_energy_start"] = quantity(energy.stored_start, "J");
       entry["stored_energy_end"] = quantity(energy.stored_end, "J");
+    }
+    if (analysis::is_resistive(circuit, p)) {
+      for (const auto& metric : analysis::resistive_metrics(circuit, result, audit, p).named()) {
+        entry[metric.name] = quantity(metric.value, metric.unit);
+      }
+    }
+    if (auto ratings = part.ratings(); !ratings.empty()) {
+      nlohmann::json list = nlohmann::json::object();
+      for (const auto& rating : ratings) {
+        list[rating.metric] = quantity(rating.value, rating.unit);
+        if (!rating.note.empty()) list[rating.metric]["note"] = rating.note;
+      }
+      entry["ratings"] = list;
     }
     parts[part.name()] = entry;
   }

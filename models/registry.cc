@@ -11,6 +11,8 @@
 #include "models/dc_source.h"
 #include "models/diode.h"
 #include "models/inductive_branch.h"
+#include "models/ntc_thermistor.h"
+#include "models/ptc_thermistor.h"
 #include "models/resistor.h"
 #include "models/switched_load.h"
 
@@ -23,6 +25,8 @@ const std::vector<std::pair<std::string, Factory>>& table() {
       {"dc_source", make_dc_source},
       {"cell_string", make_cell_string},
       {"resistor", make_resistor},
+      {"ptc_thermistor", make_ptc_thermistor},
+      {"ntc_thermistor", make_ntc_thermistor},
       {"inductor", make_inductor},
       {"cable", make_cable},
       {"capacitor", make_capacitor},

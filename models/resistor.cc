@@ -1,5 +1,8 @@
 #include "models/resistor.h"
 
+#include "models/resistance_law.h"
+#include "models/thermal_resistor.h"
+
 namespace linkrise::models {
 namespace {
 using netlist::Bound;
@@ -7,11 +10,7 @@ using netlist::Dimension;
 
 class Resistor final : public Part {
  public:
-  explicit Resistor(const netlist::PartSpec& spec) : Part(spec) {
-    auto reader = open_parameters(spec);
-    resistance_ = reader.required("resistance", Dimension::resistance(), Bound::Positive);
-    reader.finish();
-  }
+  Resistor(const netlist::PartSpec& spec, double resistance) : Part(spec), resistance_(resistance) {}
 
  private:
   double do_current(const Point& point, const Layout& layout) const override {
@@ -31,5 +30,20 @@ class Resistor final : public Part {
 };
 }  // namespace
 
-std::unique_ptr<Part> make_resistor(const netlist::PartSpec& spec) { return std::make_unique<Resistor>(spec); }
+std::unique_ptr<Part> make_resistor(const netlist::PartSpec& spec) {
+  auto reader = open_parameters(spec);
+  double resistance = reader.required("resistance", Dimension::resistance(), Bound::Positive);
+  auto tcr = reader.optional("tcr", Dimension::per_kelvin(), Bound::Any);
+  if (!tcr && !reader.has("thermal") && !reader.has("ratings")) {
+    reader.accept("thermal");  // known keys, so a misspelt one gets its did-you-mean
+    reader.accept("ratings");
+    reader.finish();
+    return std::make_unique<Resistor>(spec, resistance);
+  }
+  LinearTcrParameters law{};
+  law.reference_resistance = resistance;
+  law.temperature_coefficient = tcr.value_or(0.0);
+  return finish_thermal_resistor(spec, reader,
+                                 law_or_fail(make_resistance_law(law), reader, tcr ? "tcr" : "resistance"));
+}
 }  // namespace linkrise::models

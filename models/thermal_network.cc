@@ -88,6 +88,30 @@ void ThermalNetwork::initial_states(double ambient, std::span<double> states) co
     std::fill(states.begin(), states.end(), ambient);  // absolute node temperatures
 }
 
+void ThermalNetwork::warm_states(double ambient, double temperature, std::span<double> states) const {
+  if (const auto* terms = std::get_if<std::vector<FosterTerm>>(&parameters_)) {
+    const double total = foster_total_resistance(*terms);
+    for (std::size_t i = 0; i < terms->size(); ++i)
+      states[i] = (temperature - ambient) * (*terms)[i].thermal_resistance / total;
+  } else {
+    std::fill(states.begin(), states.end(), temperature);
+  }
+}
+
+std::vector<std::string> ThermalNetwork::state_names() const {
+  return std::visit(Overloaded{[](const OneNodeParameters&) { return std::vector<std::string>{"temperature"}; },
+                               [](const TwoNodeParameters&) {
+                                 return std::vector<std::string>{"temperature", "body_temperature"};
+                               },
+                               [](const std::vector<FosterTerm>& terms) {
+                                 std::vector<std::string> names;
+                                 for (std::size_t i = 0; i < terms.size(); ++i)
+                                   names.push_back("temperature_rise_" + std::to_string(i + 1));
+                                 return names;
+                               }},
+                    parameters_);
+}
+
 void ThermalNetwork::derivatives(std::span<const double> x, double power, double ambient,
                                  std::span<double> out) const {
   std::visit(Overloaded{

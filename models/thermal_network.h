@@ -65,6 +65,11 @@ class ThermalNetwork {
 
   // The network at rest at ambient (no stored heat).
   void initial_states(double ambient, std::span<double> states) const;
+  // A hot start: every node at `temperature` (K). A Foster network has no nodes; its rise above ambient is
+  // split over the terms in proportion to R_i, the shape of a steady state, so T_element = temperature.
+  void warm_states(double ambient, double temperature, std::span<double> states) const;
+  // Names of the states, e.g. {"temperature", "body_temperature"} or {"temperature_rise_1", ...}.
+  std::vector<std::string> state_names() const;
 
   // out = d(states)/dt for dissipated power P (W) and ambient temperature Ta (K).
   void derivatives(std::span<const double> states, double power, double ambient,

@@ -1,0 +1,96 @@
+#include "analysis/part_metrics.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include "models/thermal_resistor.h"
+
+namespace linkrise::analysis {
+
+std::vector<PartMetric> ResistiveMetrics::named() const {
+  std::vector<PartMetric> list;
+  if (peak_temperature) list.push_back({"peak_temperature", "degC", *peak_temperature});
+  list.push_back({"peak_power", "W", peak_power});
+  list.push_back({"energy", "J", energy});
+  list.push_back({"current_squared_time", "A²s", current_squared_time});
+  list.push_back({"peak_voltage", "V", peak_voltage});
+  return list;
+}
+
+bool is_resistive(const solver::Circuit& circuit, int part) {
+  const auto& p = circuit.part(part);
+  auto channels = p.power_channels();
+  return channels.heat && !channels.source && !channels.load && p.branch_count() == 0;
+}
+
+double peak_absolute(const solver::Waveform& waveform, int column) {
+  double peak = 0.0;
+  for (std::size_t r = 0; r < waveform.row_count(); ++r) peak = std::max(peak, std::fabs(waveform.value(r, column)));
+  return peak;
+}
+
+std::optional<double> peak_value(const solver::Waveform& waveform, int column) {
+  if (waveform.row_count() == 0) return std::nullopt;
+  double peak = waveform.value(0, column);
+  for (std::size_t r = 1; r < waveform.row_count(); ++r) peak = std::max(peak, waveform.value(r, column));
+  return peak;
+}
+
+double square_integral_trapezoid(const solver::Waveform& waveform, int column) {
+  double sum = 0.0;
+  for (std::size_t r = 1; r < waveform.row_count(); ++r) {
+    double a = waveform.value(r - 1, column), b = waveform.value(r, column);
+    sum += 0.5 * (a * a + b * b) * (waveform.time(r) - waveform.time(r - 1));
+  }
+  return sum;
+}
+
+namespace {
+// Index of the part's ∫i² dt state in the ODE vector, or -1.
+int current_squared_state(const solver::Circuit& circuit, int part) {
+  int first = circuit.layout(part).state;
+  if (first < 0) return -1;
+  auto states = circuit.part(part).states(circuit.spec().ambient);
+  for (std::size_t k = 0; k < states.size(); ++k) {
+    if (states[k].name == models::current_squared_state) return first + static_cast<int>(k);
+  }
+  return -1;
+}
+}  // namespace
+
+ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver::Result& result,
+                                   const EnergyAudit& audit, int part) {
+  ResistiveMetrics metrics;
+  const auto& p = circuit.part(part);
+  metrics.part = p.name();
+  const solver::Waveform& rows = result.steps;
+  const int first = static_cast<int>(circuit.node_names().size()) + circuit.signal_first(part);
+  const int current = first, voltage = first + 1, power = first + 2;
+  if (rows.row_count() > 0) {
+    metrics.peak_power = peak_absolute(rows, power);
+    metrics.peak_voltage = peak_absolute(rows, voltage);
+    int temperature = rows.column(p.name() + ".temperature");
+    if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
+  }
+  if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;
+  int state = current_squared_state(circuit, part);
+  if (state >= 0 && result.final_states.size() > static_cast<std::size_t>(state) &&
+      result.initial_states.size() > static_cast<std::size_t>(state)) {
+    metrics.current_squared_time = result.final_states[state] - result.initial_states[state];
+    metrics.current_squared_integrated = true;
+  } else if (rows.row_count() > 0) {
+    metrics.current_squared_time = square_integral_trapezoid(rows, current);
+  }
+  return metrics;
+}
+
+std::vector<ResistiveMetrics> all_resistive_metrics(const solver::Circuit& circuit, const solver::Result& result,
+                                                    const EnergyAudit& audit) {
+  std::vector<ResistiveMetrics> list;
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    if (is_resistive(circuit, p)) list.push_back(resistive_metrics(circuit, result, audit, p));
+  }
+  return list;
+}
+
+}  // namespace linkrise::analysis

@@ -1,0 +1,66 @@
+#pragma once
+// Per-part figures of the parts that turn current into heat (pre-charge resistors, thermistors, contactors,
+// cables, diodes): the values a resistor's ratings are judged against.
+//
+// Which parts: those whose only power flow is heat and that have no branch unknown (capacitors with ESR and
+// cell strings are excluded). Metric names are those of models::Rating, so a rating on metric m of part p is
+// judged against the metric "<p>.<m>":
+//   peak_temperature      degC  largest element temperature over the recorded rows (parts with a temperature)
+//   peak_power            W     largest |p| over the recorded rows
+//   energy                J     heat absorbed over the run, from the part's integrated energy account
+//   current_squared_time  A²·s  ∫ i² dt (I²t)
+//   peak_voltage          V     largest |v| over the recorded rows
+// Peaks are row maxima: a peak between two solver steps is missed by at most the change over one step.
+// I²t comes from the part's own integrated ∫i² dt state where it has one (electro-thermal parts, see
+// models/thermal_resistor.h), as accurate as the solver; otherwise from the trapezoid rule over the rows,
+// whose error for a current decaying as e^(−t/τ) is about (h/τ)²/12 of the integral per step of length h
+// (a few 0.1 % on solver rows, where h/τ stays near 0.1–0.3), exact at switching instants because each has a
+// row before and after.
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "analysis/energy_audit.h"
+#include "solver/circuit.h"
+#include "solver/transient.h"
+#include "solver/waveform.h"
+
+namespace linkrise::analysis {
+
+struct PartMetric {
+  std::string name;  // e.g. "peak_temperature"
+  std::string unit;  // e.g. "degC"
+  double value = 0.0;
+};
+
+struct ResistiveMetrics {
+  std::string part;
+  std::optional<double> peak_temperature;  // degC; absent when the part has no temperature signal
+  double peak_power = 0.0;                 // W
+  double energy = 0.0;                     // J
+  double current_squared_time = 0.0;       // A²·s
+  bool current_squared_integrated = false; // true: from the part's ∫i² dt state; false: trapezoid over rows
+  double peak_voltage = 0.0;               // V
+
+  /// The values as named metrics, in the order listed in the header comment.
+  std::vector<PartMetric> named() const;
+};
+
+/// True for the parts these metrics describe (only heat, no branch unknown).
+bool is_resistive(const solver::Circuit& circuit, int part);
+
+/// The metrics of part `part` from a run: waveform rows from result.steps, energy from `audit`.
+ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver::Result& result,
+                                   const EnergyAudit& audit, int part);
+/// The same for every resistive part, in part order.
+std::vector<ResistiveMetrics> all_resistive_metrics(const solver::Circuit& circuit, const solver::Result& result,
+                                                    const EnergyAudit& audit);
+
+/// Largest |value| of a column over all rows (0 for an empty waveform).
+double peak_absolute(const solver::Waveform& waveform, int column);
+/// Largest value of a column over all rows; nullopt for an empty waveform.
+std::optional<double> peak_value(const solver::Waveform& waveform, int column);
+/// ∫ value² dt over the rows by the trapezoid rule (see the accuracy note above).
+double square_integral_trapezoid(const solver::Waveform& waveform, int column);
+
+}  // namespace linkrise::analysis

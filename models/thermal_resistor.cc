@@ -1,0 +1,284 @@
+#include "models/thermal_resistor.h"
+
+#include <cmath>
+#include <limits>
+#include <span>
+
+#include <fmt/format.h>
+
+namespace linkrise::models {
+namespace {
+using netlist::Bound;
+using netlist::Dimension;
+
+constexpr double celsius_offset = 273.15;
+constexpr double temperature_tolerance_scale = 1e3;
+constexpr double current_squared_tolerance_scale = 1e2;
+
+ThermalNetwork network_or_fail(std::variant<ThermalNetwork, std::string> created,
+                               const netlist::ParameterReader& reader, const std::string& key) {
+  if (auto* problem = std::get_if<std::string>(&created)) {
+    reader.fail(key, fmt::format("the thermal network is not valid ({})", *problem),
+                "check the heat capacities and thermal resistances");
+  }
+  return std::get<ThermalNetwork>(std::move(created));
+}
+
+/// A thermal resistance to ambient, or the word `adiabatic` (+infinity: no cooling at all).
+double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::string& key, bool required) {
+  const netlist::Tree* node = reader.child(key);
+  if (node == nullptr) {
+    if (!required) return std::numeric_limits<double>::infinity();
+    reader.fail(key, "is missing", fmt::format("add '{}: 8 K/W', or '{}: adiabatic' for no cooling", key, key));
+  }
+  if (node->is_scalar() && node->text == "adiabatic") return std::numeric_limits<double>::infinity();
+  return netlist::ParameterReader::read_value(*node, Dimension::thermal_resistance(), Bound::Positive,
+                                              fmt::format("{} parameter '{}'", reader.owner(), key));
+}
+
+std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
+  if (block.has("foster")) {
+    const netlist::Tree* list = block.child("foster");
+    if (!list->is_list() || list->items.empty()) {
+      block.fail("foster", "must be a list of terms",
+                 "write '- {thermal_resistance: 0.5 K/W, time_constant: 2 s}' per term");
+    }
+    std::vector<FosterTerm> terms;
+    for (std::size_t i = 0; i < list->items.size(); ++i) {
+      netlist::ParameterReader term(list->items[i], fmt::format("{} Foster term {}", block.owner(), i + 1));
+      FosterTerm t{};
+      t.thermal_resistance = term.required("thermal_resistance", Dimension::thermal_resistance(), Bound::Positive);
+      t.time_constant = term.required("time_constant", Dimension::time(), Bound::Positive);
+      term.finish();
+      terms.push_back(t);
+    }
+    for (const char* other : {"heat_capacity", "element_heat_capacity"}) {
+      if (block.has(other)) {
+        block.fail(other, "cannot be combined with a Foster list",
+                   "describe the network either by heat capacities or by Foster terms, not both");
+      }
+    }
+    return network_or_fail(ThermalNetwork::create(std::move(terms)), block, "foster");
+  }
+  if (block.has("element_heat_capacity")) {
+    if (block.has("heat_capacity")) {
+      block.fail("heat_capacity", "cannot be combined with a two-node network (element_heat_capacity)",
+                 "give either heat_capacity + thermal_resistance, or the four two-node values");
+    }
+    TwoNodeParameters p{};
+    p.element_heat_capacity = block.required("element_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
+    p.element_to_body_resistance =
+        block.required("element_to_body_resistance", Dimension::thermal_resistance(), Bound::Positive);
+    p.body_heat_capacity = block.required("body_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
+    p.body_to_ambient_resistance = resistance_or_adiabatic(block, "body_to_ambient_resistance", true);
+    return network_or_fail(ThermalNetwork::create(p), block, "element_heat_capacity");
+  }
+  OneNodeParameters p{};
+  p.heat_capacity = block.required("heat_capacity", Dimension::heat_capacity(), Bound::Positive);
+  p.thermal_resistance = resistance_or_adiabatic(block, "thermal_resistance", true);
+  return network_or_fail(ThermalNetwork::create(p), block, "heat_capacity");
+}
+
+std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
+  std::vector<Rating> ratings;
+  if (auto t = block.optional("max_temperature", Dimension::temperature(), Bound::Positive)) {
+    ratings.push_back({"peak_temperature", "degC", *t - celsius_offset, "maximum element temperature"});
+  }
+  auto energy = block.optional("pulse_energy", Dimension::energy(), Bound::Positive);
+  auto length = block.optional("pulse_length", Dimension::time(), Bound::Positive);
+  if (length && !energy) {
+    block.fail("pulse_length", "is given without pulse_energy", "add 'pulse_energy: 150 J' for that pulse length");
+  }
+  if (energy) {
+    ratings.push_back({"energy", "J", *energy,
+                       length ? fmt::format("pulse length {}", netlist::format_si(*length, "s")) : std::string()});
+  }
+  if (auto p = block.optional("continuous_power", Dimension::power_(), Bound::Positive)) {
+    ratings.push_back({"peak_power", "W", *p, "continuous rating (steady dissipation, not a pulse rating)"});
+  }
+  if (auto v = block.optional("max_voltage", Dimension::voltage(), Bound::Positive)) {
+    ratings.push_back({"peak_voltage", "V", *v, "maximum voltage across the part"});
+  }
+  block.finish();
+  return ratings;
+}
+
+class ThermalResistor final : public Part {
+ public:
+  ThermalResistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options)
+      : Part(spec), law_(std::move(law)), options_(std::move(options)) {
+    thermal_count_ = options_.network ? static_cast<int>(options_.network->state_count()) : 0;
+  }
+
+ private:
+  // Element temperature (K).
+  double temperature(const Point& point, const Layout& layout) const {
+    if (!options_.network) return point.ambient;
+    return options_.network->element_temperature(thermal_states(point, layout), point.ambient);
+  }
+  std::span<const double> thermal_states(const Point& point, const Layout& layout) const {
+    return std::span<const double>(point.states + layout.state, static_cast<std::size_t>(thermal_count_));
+  }
+  int current_squared_index(const Layout& layout) const { return layout.state + thermal_count_; }
+
+  std::vector<StateInfo> do_states(double ambient) const override {
+    std::vector<StateInfo> states;
+    if (options_.network) {
+      const ThermalNetwork& network = *options_.network;
+      std::vector<double> initial(network.state_count());
+      network.warm_states(ambient, options_.has_initial_temperature ? options_.initial_temperature : ambient,
+                          initial);
+      auto names = network.state_names();
+      for (std::size_t i = 0; i < initial.size(); ++i) {
+        states.push_back({names[i], "K", initial[i], temperature_tolerance_scale});
+      }
+    }
+    states.push_back({current_squared_state, "A²s", 0.0, current_squared_tolerance_scale});
+    return states;
+  }
+
+  double do_current(const Point& point, const Layout& layout) const override {
+    return point.voltage(layout) / law_.resistance(temperature(point, layout));
+  }
+  Link do_link() const override { return Link::Conductive; }
+  PowerChannels do_power_channels() const override { return {false, true, false}; }
+  std::vector<Rating> do_ratings() const override { return options_.ratings; }
+  std::vector<SignalInfo> do_extra_signals() const override {
+    return {{"temperature", "degC"}, {"resistance", "Ohm"}};
+  }
+  void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
+    double t = temperature(point, layout);
+    out[0] = t - celsius_offset;
+    out[1] = law_.resistance(t);
+  }
+
+  void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
+    const double t = temperature(point, layout);
+    const ResistanceAndSlope law = law_.evaluate(t);
+    const double r = law.resistance;
+    const double v = point.voltage(layout);
+    const double g = 1.0 / r;
+    const double i = v * g;
+    const double power = v * i;
+    stamp.terminal_current(layout, i, g);
+
+    // I²t quadrature: d/dt = i², with ∂/∂v = 2i·g and ∂/∂T = 2i·∂i/∂T.
+    const int q = current_squared_index(layout);
+    stamp.rate(q, i * i);
+    stamp.rate_by_unknown(q, layout.node[0], 2.0 * i * g);
+    stamp.rate_by_unknown(q, layout.node[1], -2.0 * i * g);
+
+    if (!options_.network) return;
+    const ThermalNetwork& network = *options_.network;
+    const int n = thermal_count_;
+    const int s = layout.state;
+    std::vector<double> rate(static_cast<std::size_t>(n));
+    network.derivatives(thermal_states(point, layout), power, point.ambient, rate);
+    for (int k = 0; k < n; ++k) stamp.rate(s + k, rate[k]);
+    if (!stamp.wants_derivatives()) return;
+
+    // Chain rule through T = T_element(x): ∂i/∂T and ∂P/∂T.
+    const double current_by_temperature = -v * law.derivative * g * g;
+    const double power_by_temperature = v * current_by_temperature;
+    const double power_by_voltage = 2.0 * i;
+    std::vector<double> gradient(static_cast<std::size_t>(n)), by_power(static_cast<std::size_t>(n)),
+        by_state(static_cast<std::size_t>(n * n));
+    network.element_temperature_gradient(gradient);
+    network.power_jacobian(by_power);
+    network.state_jacobian(by_state);
+    for (int j = 0; j < n; ++j) {
+      stamp.terminal_current_by_state(layout, s + j, current_by_temperature * gradient[j]);
+      stamp.rate_by_state(q, s + j, 2.0 * i * current_by_temperature * gradient[j]);
+    }
+    for (int k = 0; k < n; ++k) {
+      for (int j = 0; j < n; ++j) {
+        stamp.rate_by_state(s + k, s + j, by_state[k * n + j] + by_power[k] * power_by_temperature * gradient[j]);
+      }
+      stamp.rate_by_unknown(s + k, layout.node[0], by_power[k] * power_by_voltage);
+      stamp.rate_by_unknown(s + k, layout.node[1], -by_power[k] * power_by_voltage);
+    }
+  }
+
+  Powers do_powers(const Point& point, const Layout& layout) const override {
+    double v = point.voltage(layout);
+    return Powers{0.0, v * v / law_.resistance(temperature(point, layout)), 0.0};
+  }
+
+  ResistanceLaw law_;
+  ThermalOptions options_;
+  int thermal_count_ = 0;
+};
+}  // namespace
+
+ThermalOptions read_thermal_options(netlist::ParameterReader& reader) {
+  ThermalOptions options;
+  if (const netlist::Tree* thermal = reader.child("thermal")) {
+    netlist::ParameterReader block(*thermal, fmt::format("{} block 'thermal'", reader.owner()));
+    options.network = read_network(block);
+    if (auto t = block.optional("initial_temperature", Dimension::temperature(), Bound::Positive)) {
+      options.initial_temperature = *t;
+      options.has_initial_temperature = true;
+    }
+    block.finish();
+  }
+  if (const netlist::Tree* ratings = reader.child("ratings")) {
+    netlist::ParameterReader block(*ratings, fmt::format("{} block 'ratings'", reader.owner()));
+    options.ratings = read_ratings(block);
+  }
+  return options;
+}
+
+ResistanceLaw law_or_fail(Created<ResistanceLaw> created, const netlist::ParameterReader& reader,
+                          const std::string& key) {
+  if (auto* problem = std::get_if<std::string>(&created)) {
+    reader.fail(key, fmt::format("the resistance law is not valid ({})", *problem),
+                "check the value against the rule named in the message");
+  }
+  return std::get<ResistanceLaw>(std::move(created));
+}
+
+std::optional<ResistanceLaw> read_resistance_table(netlist::ParameterReader& reader, const std::string& key) {
+  if (!reader.has(key)) return std::nullopt;
+  auto rows = reader.table(key, {Dimension::temperature(), Dimension::resistance()});
+  std::vector<TablePoint> points;
+  for (const auto& row : rows) points.push_back({row[0], row[1]});
+  return law_or_fail(make_resistance_law(points), reader, key);
+}
+
+int choose_form(const netlist::ParameterReader& reader, const std::vector<std::vector<std::string>>& forms,
+                bool required, const std::string& fix) {
+  int chosen = -1;
+  std::string chosen_key;
+  for (std::size_t f = 0; f < forms.size(); ++f) {
+    for (const auto& key : forms[f]) {
+      if (!reader.has(key)) continue;
+      if (chosen >= 0 && chosen != static_cast<int>(f)) {
+        reader.fail(key, fmt::format("cannot be combined with '{}': they belong to different ways of describing "
+                                     "the part", chosen_key),
+                    fix);
+      }
+      if (chosen < 0) chosen_key = key;
+      chosen = static_cast<int>(f);
+    }
+  }
+  if (chosen < 0 && required) {
+    std::string list;
+    for (const auto& form : forms) list += (list.empty() ? "'" : ", '") + form.front() + "'";
+    throw netlist::InputError(reader.mark(""), fmt::format("{} needs one of: {}", reader.owner(), list), fix);
+  }
+  return chosen;
+}
+
+std::unique_ptr<Part> make_thermal_resistor(const netlist::PartSpec& spec, ResistanceLaw law,
+                                            ThermalOptions options) {
+  return std::make_unique<ThermalResistor>(spec, std::move(law), std::move(options));
+}
+
+std::unique_ptr<Part> finish_thermal_resistor(const netlist::PartSpec& spec, netlist::ParameterReader& reader,
+                                              ResistanceLaw law) {
+  ThermalOptions options = read_thermal_options(reader);
+  reader.finish();
+  return make_thermal_resistor(spec, std::move(law), std::move(options));
+}
+
+}  // namespace linkrise::models
