@@ -126,6 +126,15 @@ class Driver {
       double a = point.node_voltage(watch.plus_a) - point.node_voltage(watch.minus_a);
       double b = point.node_voltage(watch.plus_b) - point.node_voltage(watch.minus_b);
       watch_out[w] = a - watch.ratio * b - watch.offset;
+      // A root function exactly zero at a root and just after it makes CVODE stop with "root found at and very
+      // near t" (a voltage difference rounds to 0.0 as its ringing decays): count an exact zero as one rounding
+      // step above it. Not the smallest double: CVODE's root search divides by differences of root values.
+      if (watch_out[w] == 0.0) {
+        watch_out[w] = 1e-15 * (1.0 + std::fabs(a) + std::fabs(watch.ratio * b) + std::fabs(watch.offset));
+      }
+    }
+    for (int r = 0; r < circuit_.root_count(); ++r) {
+      if (out[r] == 0.0) out[r] = 1e-15;  // part roots are voltages in V
     }
     return 0;
   }
@@ -296,7 +305,8 @@ bool Driver::apply_commands(double t) {
     Command command = pending_.front();
     pending_.erase(pending_.begin());
     if (first) {
-      record_step_row(t, x());  // the row before the switching
+      // The row before the switching, unless the step that reached t has just recorded it.
+      if (result_.steps.row_count() == 0 || result_.steps.times().back() != t) record_step_row(t, x());
       first = false;
     }
     const auto& part = circuit_.part(command.part);

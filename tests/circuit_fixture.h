@@ -22,6 +22,21 @@ inline netlist::Case case_from(const std::string& yaml) {
   return netlist::read_case(netlist::parse_yaml(yaml, kTestFile), kTestFile);
 }
 
+/// A circuit from YAML text with its run options (from the case), ready to be adjusted and simulated.
+struct Simulation {
+  explicit Simulation(const std::string& yaml) : circuit(case_from(yaml)), options(solver::options_from(circuit)) {}
+  /// Tight solver tolerances for comparisons with closed forms.
+  Simulation& tight(double rtol = 1e-10, double atol = 1e-12) {
+    options.relative_tolerance = rtol;
+    options.absolute_tolerance = atol;
+    return *this;
+  }
+  solver::Result run() const { return solver::simulate(circuit, options); }
+
+  solver::Circuit circuit;
+  solver::Options options;
+};
+
 /// Runs `action`, which must throw netlist::InputError; returns the error (a failed expectation otherwise).
 inline netlist::InputError input_error(const std::function<void()>& action) {
   try {
