@@ -14,10 +14,11 @@ build: deps
 	@cmake --build $(BUILD) -j $(JOBS)
 
 demo: build
-	$(BUILD)/linkrise run cases/demo_storage_rack.yaml -o out/demo
+	$(BUILD)/linkrise run cases/demo_storage_rack.yaml -o out/demo --report out/demo/report.html
 
 test: build
 	cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
+	$(BUILD)/linkrise check cases --junit $(BUILD)/check-junit.xml
 
 bench: build
 	$(BUILD)/linkrise_bench

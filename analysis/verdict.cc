@@ -28,8 +28,10 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
                                               format_metric(limit.limit, limit.unit), limit.source));
   }
   if (report != nullptr && report->outcome != report->spec.expected_outcome) {
-    evaluation.failures.push_back(fmt::format("the sequence ended '{}' after {} attempt(s), expected '{}'",
-                                              report->outcome, report->attempts, report->spec.expected_outcome));
+    evaluation.failures.push_back(fmt::format(
+        "the sequence ended '{}' after {} attempt(s), expected '{}'{}", report->outcome, report->attempts,
+        report->spec.expected_outcome,
+        report->outcome == "unfinished" ? " (the run ended first: lengthen 'run: duration')" : ""));
   }
   evaluation.pass = evaluation.failures.empty();
   return evaluation;

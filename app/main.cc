@@ -3,7 +3,9 @@
 
 #include <CLI/CLI.hpp>
 
+#include "app/check_command.h"
 #include "app/exit_codes.h"
+#include "app/faults_command.h"
 #include "app/run_command.h"
 
 int main(int argc, char** argv) {
@@ -19,7 +21,24 @@ int main(int argc, char** argv) {
   run_cli->add_option("--sample", run.sample, "uniform output grid, e.g. '100 us'");
   run_cli->add_option("--rtol", run.relative_tolerance, "relative tolerance (overrides the case)");
   run_cli->add_option("--atol", run.absolute_tolerance, "absolute tolerance (overrides the case)");
+  run_cli->add_option("--report", run.report, "also write a self-contained HTML report to this file");
   run_cli->add_flag("-q,--quiet", run.quiet, "print nothing on success");
+
+  CheckArguments check;
+  auto* check_cli = cli.add_subcommand("check", "re-run the stored cases and compare them with their golden results");
+  check_cli->add_option("paths", check.paths, "case files or directories (default: cases)");
+  check_cli->add_option("--junit", check.junit_file, "also write a JUnit XML report to this file");
+  check_cli->add_flag("--update", check.update, "rewrite the golden results, listing every value that changed");
+  check_cli->add_flag("--all", check.show_all, "list unchanged items too");
+  check_cli->add_option("-j,--jobs", check.jobs, "parallel cases (default: one per core)");
+
+  FaultsArguments faults;
+  auto* faults_cli =
+      cli.add_subcommand("faults", "run the built-in and the case's fault scenarios; write the detection matrix");
+  faults_cli->add_option("case", faults.case_file, "case file (YAML) with a sequence block")->required();
+  faults_cli->add_option("-o,--output", faults.output_directory, "output directory")->capture_default_str();
+  faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
+  faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");
 
   try {
     cli.parse(argc, argv);
@@ -29,6 +48,8 @@ int main(int argc, char** argv) {
   }
   try {
     if (run_cli->parsed()) return run_command(run);
+    if (check_cli->parsed()) return check_command(check);
+    if (faults_cli->parsed()) return faults_command(faults);
   } catch (const std::exception& error) {
     std::cerr << "linkrise: " << error.what() << "\n";
     return kExitInputError;

@@ -8,6 +8,7 @@
 #include "analysis/energy_audit.h"
 #include "app/exit_codes.h"
 #include "app/output_files.h"
+#include "app/report_html.h"
 #include "app/run_summary.h"
 #include "app/verdict_summary.h"
 #include "app/waveform_csv.h"
@@ -50,12 +51,17 @@ int run_command(const RunArguments& arguments) {
     OutputSet outputs(arguments.output_directory);
     outputs.add("waveforms.csv", waveform_csv(options.sample ? result.samples : result.steps));
     outputs.add("summary.json", summary.dump(2) + "\n");
+    // Built before anything is committed, so a failure leaves no half-written set.
+    std::string report;
+    if (arguments.report) report = run_report_html({circuit, result, audit});
     outputs.commit();
+    if (arguments.report) write_file_atomically(*arguments.report, report);
     if (!arguments.quiet) {
       std::cout << terminal_summary(circuit, result, audit);
       std::cout << verdict_terminal(evaluation, sequence_data);
       std::cout << fmt::format("  wrote     {} and {}\n", outputs.path("waveforms.csv").string(),
                                outputs.path("summary.json").string());
+      if (arguments.report) std::cout << fmt::format("  report    {}\n", *arguments.report);
     }
     return evaluation.pass ? kExitOk : kExitLimitFailed;
   } catch (const netlist::InputError& error) {

@@ -11,6 +11,7 @@ struct RunArguments {
   std::optional<std::string> sample;  // a time such as "1 ms"
   std::optional<double> relative_tolerance;
   std::optional<double> absolute_tolerance;
+  std::optional<std::string> report;  // HTML report file (self-contained)
   bool quiet = false;
 };
 

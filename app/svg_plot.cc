@@ -353,28 +353,76 @@ void axes(std::string& out, const PlotArea& area, const AxisTicks& x_axis,
   }
 }
 
+// Shortens text to fit an estimated width, ending it with an ellipsis.
+std::string fit_text(const std::string& text, double font_size, double width) {
+  if (text_width(text, font_size) <= width) return text;
+  std::string out;
+  for (std::size_t i = 0; i < text.size();) {
+    std::size_t length = 1;
+    const auto c = static_cast<unsigned char>(text[i]);
+    if (c >= 0xF0) length = 4;
+    else if (c >= 0xE0) length = 3;
+    else if (c >= 0xC0) length = 2;
+    const std::string next = out + text.substr(i, length);
+    if (text_width(next + "\u2026", font_size) > width) break;
+    out = next;
+    i += length;
+  }
+  return out + "\u2026";
+}
+
 void vertical_markers(std::string& out, const PlotArea& area,
                       const AxisMap& x_map, const std::vector<Marker>& markers) {
   const double low = std::min(x_map.data_low, x_map.data_high);
   const double high = std::max(x_map.data_low, x_map.data_high);
+  struct Placed {
+    double pixel;
+    std::string label;
+  };
+  std::vector<Placed> placed;
   for (const Marker& marker : markers) {
     if (!std::isfinite(marker.value) || marker.value < low ||
         marker.value > high) {
       continue;
     }
-    const double px = x_map.to_pixel(marker.value);
+    placed.push_back({x_map.to_pixel(marker.value), marker.label});
+  }
+  std::stable_sort(placed.begin(), placed.end(),
+                   [](const Placed& a, const Placed& b) { return a.pixel < b.pixel; });
+  for (const Placed& marker : placed) {
     out += fmt::format(
         "<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\" stroke=\"{3}\" "
         "stroke-width=\"1.2\" stroke-dasharray=\"3 3\"/>\n",
-        coord(px), coord(area.top), coord(area.bottom), marker_colour);
-    if (!marker.label.empty()) {
-      // Rotated along the line so neighbouring markers' labels do not collide.
-      const double x = px - 4.0;
+        coord(marker.pixel), coord(area.top), coord(area.bottom), marker_colour);
+  }
+  // Markers closer than a label's height share one label (events 1 ms apart
+  // on a 500 ms axis), placed at the group's first line, so none overprint.
+  const double spacing = note_font + 3.0;
+  for (std::size_t first = 0; first < placed.size();) {
+    std::size_t last = first;
+    std::string label = placed[first].label;
+    while (last + 1 < placed.size() &&
+           placed[last + 1].pixel - placed[last].pixel < spacing) {
+      ++last;
+      if (!placed[last].label.empty() && placed[last].label != label) {
+        label += label.empty() ? "" : ", ";
+        label += placed[last].label;
+      }
+    }
+    if (!label.empty()) {
+      // Rotated along the line so neighbouring markers' labels do not collide;
+      // left of the line, unless that would cross the y axis.
+      const double left = placed[first].pixel - 4.0;
+      const double x = left - note_font < area.left
+                           ? placed[last].pixel + 4.0 + note_font * 0.8
+                           : left;
       const double y = area.top + 6.0;
-      text_element(out, x, y, "end", note_font, marker_colour, marker.label,
+      text_element(out, x, y, "end", note_font, marker_colour,
+                   fit_text(label, note_font, area.height() - 12.0),
                    std::string(halo) + fmt::format(" transform=\"rotate(-90 {} {})\"",
                                       coord(x), coord(y)));
     }
+    first = last + 1;
   }
 }
 

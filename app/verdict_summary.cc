@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include <fmt/format.h>
 
@@ -87,7 +88,7 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
                        report->attempts, report->spec.expected_outcome, report->spec.rule_text());
     if (evaluation.stall && evaluation.stall->applicable) out += fmt::format("  stall     {}\n", evaluation.stall->explanation);
   }
-  out += fmt::format("  {:<34} {:>14}   {:<18} {:>12}  {}\n", "metric", "value", "limit", "margin", "");
+  out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", "metric", "value", "limit", "margin", "");
   // Compact: the sequence metrics, the sequence resistor's, and every metric with a limit; the rest are in
   // summary.json.
   std::string resistor = report != nullptr ? report->spec.resistor + "." : std::string();
@@ -102,17 +103,20 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
       continue;
     }
     std::string limit_text, margin_text, mark;
+    double smallest = std::numeric_limits<double>::infinity();
     for (const auto& limit : evaluation.limits) {
       if (limit.metric != metric.name) continue;
       if (!limit_text.empty()) limit_text += ", ";
       limit_text += fmt::format("{} {}", limit.bound, analysis::format_metric(limit.limit, limit.unit));
-      if (limit.judged) {
+      // The tightest limit's margin, relative to its bound.
+      if (limit.judged && !(limit.relative_margin >= smallest)) {
+        smallest = limit.relative_margin;
         margin_text = std::isnan(limit.relative_margin) ? analysis::format_metric(limit.margin, limit.unit)
                                                         : fmt::format("{:+.1f} %", 100.0 * limit.relative_margin);
       }
       mark = !limit.judged ? "not judged" : limit.pass ? (mark == "FAIL" ? "FAIL" : "ok") : "FAIL";
     }
-    out += fmt::format("  {:<34} {:>14}   {:<18} {:>12}  {}\n", metric.name,
+    out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", metric.name,
                        analysis::format_metric(metric.value, metric.unit), limit_text, margin_text, mark);
   }
   if (hidden > 0) out += fmt::format("  ({} more metrics without limits in summary.json)\n", hidden);

@@ -72,6 +72,13 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
   Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
   const bool linear = circuit_.linear_network();
   const int nodes = static_cast<int>(circuit_.node_names().size());
+  // Damped Newton first. A line search on residuals of mixed units can stall: with a capacitor pinning a node
+  // above a constant-power load's resistive floor, each damped step creeps towards the floor's kink and stops
+  // short. Plain Newton from the same guess then lands on the pinned voltage at once.
+  const Eigen::VectorXd guess = y;
+  for (int attempt = 0; attempt < 2; ++attempt) {
+  const bool damped = attempt == 0;
+  if (!damped) y = guess;
   for (int iteration = 0; iteration < 60; ++iteration) {
     assemble(point(time, states, modes, unknowns), true);
     if (!network_.allFinite() || !network_by_unknown_.allFinite()) return false;
@@ -97,7 +104,7 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
       if (magnitude > 1e-8 * size + 1e-12) small = false;
       if (magnitude > 0.1 * size + 1.0) large = true;
     }
-    if (large) {
+    if (large && damped) {
       // A long step (cold start, diode knee, constant power at low voltage): damp it until the residual falls.
       double before = network_.norm();
       Eigen::VectorXd start = y;
@@ -113,6 +120,7 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
     y += step_;
     // Newton converges quadratically: after a step this small the remaining error is far below it.
     if (small) return true;
+  }
   }
   return false;
 }

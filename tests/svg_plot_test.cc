@@ -10,139 +10,15 @@
 
 #include <gtest/gtest.h>
 
+#include "tests/xml_check.h"
+
 namespace linkrise::app {
 namespace {
 
-// ---------------------------------------------------------------------------
-// Minimal XML checker: enough of XML to prove the renderer's output parses
-// (balanced tags, quoted attributes, valid entities) and to read attributes.
-
-struct Element {
-  std::string name;
-  std::map<std::string, std::string> attributes;
-  std::string text;  // direct character data, entities left as written
-};
-
-struct ParseResult {
-  bool ok = true;
-  std::string error;
-  std::vector<Element> elements;  // in document order
-  std::string root;
-};
-
-bool valid_entity_at(const std::string& s, std::size_t at) {
-  static const char* named[] = {"&amp;", "&lt;", "&gt;", "&quot;", "&apos;"};
-  for (const char* entity : named) {
-    if (s.compare(at, std::char_traits<char>::length(entity), entity) == 0) {
-      return true;
-    }
-  }
-  return false;
-}
-
-bool is_name_char(char c) {
-  return std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' ||
-         c == ':' || c == '.';
-}
-
-ParseResult parse_xml(const std::string& s) {
-  ParseResult result;
-  std::vector<std::string> open;
-  std::vector<std::size_t> open_index;
-  std::size_t i = 0;
-  const auto fail = [&](const std::string& why) {
-    result.ok = false;
-    result.error = why + " at offset " + std::to_string(i);
-    return result;
-  };
-  bool root_closed = false;
-  while (i < s.size()) {
-    if (s[i] != '<') {
-      if (s[i] == '&' && !valid_entity_at(s, i)) return fail("bad entity");
-      if (s[i] == '>') return fail("raw '>' in text");
-      const bool space = std::isspace(static_cast<unsigned char>(s[i]));
-      if (open.empty() && !space) return fail("text outside root");
-      if (!open_index.empty()) result.elements[open_index.back()].text += s[i];
-      ++i;
-      continue;
-    }
-    if (root_closed) return fail("content after root");
-    ++i;
-    const bool closing = i < s.size() && s[i] == '/';
-    if (closing) ++i;
-    std::string name;
-    while (i < s.size() && is_name_char(s[i])) name += s[i++];
-    if (name.empty()) return fail("empty tag name");
-    if (closing) {
-      if (i >= s.size() || s[i] != '>') return fail("bad closing tag");
-      ++i;
-      if (open.empty() || open.back() != name) {
-        return fail("mismatched </" + name + ">");
-      }
-      open.pop_back();
-      open_index.pop_back();
-      if (open.empty()) root_closed = true;
-      continue;
-    }
-    Element element;
-    element.name = name;
-    bool self_closing = false;
-    while (true) {
-      while (i < s.size() && std::isspace(static_cast<unsigned char>(s[i]))) ++i;
-      if (i >= s.size()) return fail("unterminated tag");
-      if (s[i] == '>') {
-        ++i;
-        break;
-      }
-      if (s[i] == '/') {
-        if (i + 1 >= s.size() || s[i + 1] != '>') return fail("bad '/'");
-        i += 2;
-        self_closing = true;
-        break;
-      }
-      std::string attribute;
-      while (i < s.size() && is_name_char(s[i])) attribute += s[i++];
-      if (attribute.empty()) return fail("bad attribute name");
-      if (element.attributes.count(attribute)) return fail("duplicate attribute");
-      if (i + 1 >= s.size() || s[i] != '=' || s[i + 1] != '"') {
-        return fail("attribute without quoted value");
-      }
-      i += 2;
-      std::string value;
-      while (i < s.size() && s[i] != '"') {
-        if (s[i] == '<') return fail("'<' in attribute");
-        if (s[i] == '&' && !valid_entity_at(s, i)) return fail("bad entity");
-        value += s[i++];
-      }
-      if (i >= s.size()) return fail("unterminated attribute");
-      ++i;
-      element.attributes[attribute] = value;
-    }
-    if (open.empty()) {
-      if (!result.root.empty()) return fail("second root");
-      result.root = name;
-    }
-    result.elements.push_back(element);
-    if (self_closing) {
-      if (open.empty()) root_closed = true;
-    } else {
-      open.push_back(name);
-      open_index.push_back(result.elements.size() - 1);
-    }
-  }
-  if (!open.empty()) return fail("unclosed <" + open.back() + ">");
-  if (result.root.empty()) return fail("no root");
-  return result;
-}
-
-std::vector<const Element*> find_all(const ParseResult& doc,
-                                     const std::string& name) {
-  std::vector<const Element*> found;
-  for (const Element& e : doc.elements) {
-    if (e.name == name) found.push_back(&e);
-  }
-  return found;
-}
+using xml_check::Element;
+using xml_check::find_all;
+using xml_check::parse_xml;
+using xml_check::ParseResult;
 
 std::vector<Point> parse_points(const std::string& text) {
   std::vector<Point> points;

@@ -1,0 +1,192 @@
+#include "app/check_command.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <filesystem>
+#include <iostream>
+#include <thread>
+
+#include <fmt/format.h>
+
+#include "app/case_evaluation.h"
+#include "app/exit_codes.h"
+#include "app/golden.h"
+#include "app/junit_xml.h"
+#include "app/output_files.h"
+#include "netlist/input_error.h"
+
+namespace linkrise::app {
+
+namespace fs = std::filesystem;
+
+std::vector<std::string> find_case_files(const std::vector<std::string>& paths) {
+  std::vector<std::string> files;
+  auto is_case = [](const fs::path& path) {
+    std::string name = path.filename().string();
+    return path.extension() == ".yaml" && !name.ends_with(".golden.yaml");
+  };
+  for (const auto& path : paths) {
+    if (fs::is_directory(path)) {
+      for (const auto& entry : fs::recursive_directory_iterator(path)) {
+        if (entry.is_regular_file() && is_case(entry.path())) files.push_back(entry.path().string());
+      }
+    } else {
+      files.push_back(path);
+    }
+  }
+  std::sort(files.begin(), files.end());
+  files.erase(std::unique(files.begin(), files.end()), files.end());
+  return files;
+}
+
+namespace {
+
+struct CaseCheck {
+  std::string file;
+  CaseEvaluation evaluation;
+  bool has_golden = false;
+  std::string golden_problem;  // unreadable golden file
+  Golden golden;
+  std::vector<Comparison> rows;
+  bool pass = false;
+};
+
+void check_one(CaseCheck& check) {
+  check.evaluation = evaluate_case_file(check.file);
+  fs::path golden_file = golden_path(check.file);
+  if (fs::exists(golden_file)) {
+    try {
+      check.golden = read_golden(golden_file);
+      check.has_golden = true;
+    } catch (const netlist::InputError& error) {
+      check.golden_problem = error.what();
+    }
+  }
+  if (check.evaluation.status != CaseEvaluation::Status::Evaluated || !check.has_golden) {
+    check.pass = false;
+    return;
+  }
+  check.rows = compare_with_golden(check.golden, check.evaluation.outcome, check.evaluation.verdict,
+                                   check.evaluation.metrics);
+  check.pass = std::all_of(check.rows.begin(), check.rows.end(), [](const Comparison& row) { return row.pass; });
+}
+
+std::string deviation_text(const Comparison& row) {
+  if (row.allowed == 0.0 && row.deviation == 0.0) return "";
+  return fmt::format("{:+.3g} (±{:.3g})", row.deviation, row.allowed);
+}
+
+std::string case_name(const std::string& file) { return fs::path(file).filename().string(); }
+
+}  // namespace
+
+int check_command(const CheckArguments& arguments) {
+  std::vector<std::string> files = find_case_files(arguments.paths);
+  if (files.empty()) {
+    std::cerr << "linkrise check: no case files found under the given paths\n";
+    return kExitInputError;
+  }
+  std::vector<CaseCheck> checks(files.size());
+  for (std::size_t i = 0; i < files.size(); ++i) checks[i].file = files[i];
+  unsigned workers = arguments.jobs > 0 ? static_cast<unsigned>(arguments.jobs)
+                                        : std::max(1u, std::thread::hardware_concurrency());
+  workers = std::min<unsigned>(workers, static_cast<unsigned>(files.size()));
+  std::atomic<std::size_t> next{0};
+  std::vector<std::thread> pool;
+  for (unsigned w = 0; w < workers; ++w) {
+    pool.emplace_back([&] {
+      for (std::size_t i = next++; i < checks.size(); i = next++) check_one(checks[i]);
+    });
+  }
+  for (auto& thread : pool) thread.join();
+
+  // Table of changes (all rows with --all), then one line per case.
+  std::string table = fmt::format("{:<34} {:<34} {:>18} {:>18} {:>22} {}\n", "case", "item", "expected", "actual",
+                                  "deviation (allowed)", "status");
+  bool any_row = false;
+  int failed = 0;
+  std::vector<JunitCase> junit;
+  for (auto& check : checks) {
+    JunitCase item;
+    item.name = case_name(check.file);
+    item.seconds = check.evaluation.seconds;
+    std::string detail;
+    if (check.evaluation.status != CaseEvaluation::Status::Evaluated) {
+      item.error = true;
+      item.message = fmt::format("{}: {}", status_word(check.evaluation.status), check.evaluation.message);
+      detail = check.evaluation.message;
+      table += fmt::format("{:<34} {:<34} {:>18} {:>18} {:>22} {}\n", item.name, "(evaluation)", "-",
+                           status_word(check.evaluation.status), "", "ERROR");
+      any_row = true;
+    } else if (!check.has_golden) {
+      item.failed = true;
+      item.message = check.golden_problem.empty() ? "no golden results; run `linkrise check --update` to create them"
+                                                  : check.golden_problem;
+      detail = item.message;
+      table += fmt::format("{:<34} {:<34} {:>18} {:>18} {:>22} {}\n", item.name, "(golden file)", "-",
+                           check.golden_problem.empty() ? "missing" : "unreadable", "",
+                           check.golden_problem.empty() ? "NEW" : "ERROR");
+      any_row = true;
+    } else {
+      for (const auto& row : check.rows) {
+        std::string line = fmt::format("{:<34} {:<34} {:>18} {:>18} {:>22} {}\n", item.name, row.item, row.expected,
+                                       row.actual, deviation_text(row), row.pass ? "ok" : "CHANGED");
+        if (!row.pass) detail += line;
+        if (!row.pass || arguments.show_all) {
+          table += line;
+          any_row = true;
+        }
+      }
+      if (!check.pass) {
+        item.failed = true;
+        item.message = "results moved beyond tolerance";
+      }
+    }
+    if (!check.pass) ++failed;
+    item.detail = detail;
+    junit.push_back(item);
+  }
+  if (any_row) std::cout << table;
+  // The closing line has the plain "N passed, N failed" form that CI log readers recognise.
+  std::cout << fmt::format("check: {} passed, {} failed\n", checks.size() - failed, failed);
+
+  if (!arguments.junit_file.empty()) write_file_atomically(arguments.junit_file, junit_xml("linkrise check", junit));
+
+  if (arguments.update) {
+    int errors = 0;
+    for (auto& check : checks) {
+      if (check.evaluation.status != CaseEvaluation::Status::Evaluated) {
+        std::cout << fmt::format("not updated {}: {}\n", case_name(check.file), check.evaluation.message);
+        ++errors;
+        continue;
+      }
+      Golden updated = golden_from(check.evaluation.outcome, check.evaluation.verdict, check.evaluation.metrics,
+                                   check.has_golden ? &check.golden : nullptr);
+      std::vector<Comparison> changes;
+      if (check.has_golden) {
+        for (const auto& row : compare_with_golden(check.golden, check.evaluation.outcome, check.evaluation.verdict,
+                                                   check.evaluation.metrics)) {
+          bool exact = row.actual == row.expected || (row.deviation == 0.0 && row.pass);
+          if (!exact) changes.push_back(row);
+        }
+        if (changes.empty() && check.golden.metrics.size() == updated.metrics.size()) {
+          continue;  // nothing moved: leave the file alone
+        }
+        std::cout << fmt::format("updating {}:\n", golden_path(check.file).string());
+        for (const auto& row : changes) {
+          std::cout << fmt::format("  {:<34} {} -> {}\n", row.item, row.expected, row.actual);
+        }
+      } else {
+        std::cout << fmt::format("creating {} with {} metric(s), outcome {}, verdict {}\n",
+                                 golden_path(check.file).string(), updated.metrics.size(), updated.outcome,
+                                 updated.verdict);
+      }
+      write_file_atomically(golden_path(check.file), golden_text(updated, case_name(check.file)));
+    }
+    return errors > 0 ? kExitLimitFailed : kExitOk;
+  }
+  return failed > 0 ? kExitLimitFailed : kExitOk;
+}
+
+}  // namespace linkrise::app

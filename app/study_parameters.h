@@ -1,0 +1,47 @@
+#pragma once
+// Parameter paths for the studies, from the command line and the case file. Every variation is a
+// netlist::Override (netlist/overrides.h) applied to the case tree: one mechanism for variants, sweeps,
+// corners, Monte Carlo and the fault scenarios.
+//
+// Command-line forms (quote values with spaces):
+//   --set r_pre.resistance=56Ohm              one override, applied before anything else
+//   --vary r_pre.resistance=22Ohm,33Ohm,47Ohm  a list of values, written as in a case file
+//   --vary "link.capacitance=0.5mF..2mF:log:7" a range: A..B[:lin|:log][:N]  (default lin, N = 5 points,
+//                                             both ends included; log needs two positive ends)
+#include <string>
+#include <vector>
+
+#include "netlist/overrides.h"
+#include "netlist/tree.h"
+#include "netlist/units.h"
+
+namespace linkrise::app {
+
+/// Where a command-line option is reported in messages: "command line, option N".
+netlist::SourceMark option_mark(const std::string& option, int position);
+
+/// "path=value" -> an override. Throws InputError (at `mark`) without '=' or with an empty side.
+netlist::Override parse_assignment(const std::string& text, const netlist::SourceMark& mark);
+
+/// A varied parameter: its path and the value texts of its points, in order.
+struct VariedParameter {
+  std::string path;
+  std::vector<std::string> values;  // case-file text, e.g. "33 Ohm" or "0.000707106781 F"
+  netlist::SourceMark mark;
+};
+
+/// Parses a --vary argument (list or range, see above). Throws InputError for a bad range.
+VariedParameter parse_variation(const std::string& text, const netlist::SourceMark& mark);
+
+/// Case-file text for a value in SI units of `dimension`: "<number> <symbol>", or degC for an absolute
+/// temperature, a bare number for a dimensionless value. 17 significant digits, so the text round-trips.
+std::string quantity_text(double value, const netlist::Dimension& dimension, bool absolute_temperature);
+
+/// The quantity a path holds in the case tree. Throws InputError (at `mark`) when the path is unset or not a
+/// single quantity ("give it a value in the case").
+netlist::Quantity value_at(const netlist::Tree& root, const std::string& path, const netlist::SourceMark& mark);
+
+/// A value for people: SI prefix and unit; degC for absolute temperatures; a plain number when dimensionless.
+std::string display_quantity(const netlist::Quantity& quantity);
+
+}  // namespace linkrise::app

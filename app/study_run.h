@@ -1,0 +1,75 @@
+#pragma once
+// Runs the points of a study — variants, sweep points, corners, Monte Carlo samples — on the worker pool.
+// Each point is the base case tree with its overrides applied (netlist/overrides.h), evaluated end to end by
+// evaluate_case_tree (app/case_evaluation.h). Only the outcome, the verdict and one number per metric are
+// kept per point: no waveform outlives its evaluation.
+#include <cstddef>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "app/case_evaluation.h"
+#include "netlist/overrides.h"
+#include "netlist/tree.h"
+
+namespace linkrise::app {
+
+struct MetricColumn {
+  std::string name;
+  std::string unit;
+};
+
+struct PointResult {
+  CaseEvaluation::Status status = CaseEvaluation::Status::Evaluated;
+  std::string message;
+  std::string outcome;
+  std::string verdict;
+  std::vector<double> values;  // one per StudyResults::columns; NaN when not reached or absent
+  bool evaluated() const { return status == CaseEvaluation::Status::Evaluated; }
+};
+
+struct StudyResults {
+  std::vector<MetricColumn> columns;
+  std::vector<PointResult> points;
+  /// Column index of a metric, or -1.
+  int column(const std::string& name) const;
+  /// The value of a metric at a point (NaN when absent).
+  double value(std::size_t point, const std::string& name) const;
+  /// The first point that was bad input (e.g. an override out of a parameter's range), or -1.
+  long first_input_error() const;
+  bool any_solver_failure() const;
+};
+
+/// The overrides of point i.
+using OverridesOf = std::function<std::vector<netlist::Override>(std::size_t)>;
+
+/// Evaluates `count` points on `jobs` threads (0: one per core); results are in index order and independent of
+/// the thread count. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
+/// keeps the memory per sample to one number per column); otherwise they are the union over the points in
+/// point order. An override that names an unknown path throws InputError.
+StudyResults run_study(const netlist::Tree& base, const std::string& file, std::size_t count,
+                       const OverridesOf& overrides_of, int jobs, const std::string& progress_label = "",
+                       const std::vector<MetricColumn>* fixed_columns = nullptr);
+
+/// The base tree with overrides applied.
+netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes);
+
+/// Which way a metric improves: larger for minimum_* values and the stall equilibrium; smaller for everything
+/// else (times, peaks, energies, temperatures, i²t, steps, overshoot, attempts).
+bool larger_is_better(const std::string& metric);
+
+/// Metrics a terminal table shows by default: those the case judges in `limits:`, then the sequence
+/// resistor's temperature and energy, then the first metrics up to `at_least`.
+std::vector<std::string> headline_metrics(const netlist::Tree& root, const std::vector<MetricColumn>& columns,
+                                          std::size_t at_least = 6);
+
+/// Splits "a,b,c" (a --metrics option) and checks every name against the columns (InputError with a
+/// did-you-mean).
+std::vector<std::string> chosen_metrics(const std::string& list, const std::vector<MetricColumn>& columns,
+                                        const netlist::SourceMark& mark);
+
+/// CSV helpers: a quoted text cell and a number cell (9 significant digits, empty for NaN).
+std::string csv_text(const std::string& text);
+std::string csv_number(double value);
+
+}  // namespace linkrise::app

@@ -1,0 +1,69 @@
+#include "netlist/scenario_spec.h"
+
+#include <algorithm>
+
+#include <fmt/format.h>
+
+#include "netlist/case.h"
+#include "netlist/parameter_reader.h"
+#include "netlist/sequence_spec.h"
+
+namespace linkrise::netlist {
+
+std::vector<ScenarioSpec> read_scenarios(const Tree& root, const std::vector<std::string>& built_in) {
+  std::vector<ScenarioSpec> scenarios;
+  const Tree* block = root.find("scenarios");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return scenarios;
+  if (!block->is_list()) {
+    throw InputError(block->mark, "'scenarios' must be a list of '- name: ...' entries",
+                     "write '- {name: low_resistance, set: {r_pre.resistance: 20 Ohm}, expect: closed}'");
+  }
+  for (const Tree& item : block->items) {
+    ParameterReader reader(item, "a scenario");
+    ScenarioSpec scenario;
+    scenario.mark = item.mark;
+    auto name = reader.text("name");
+    if (!name) throw InputError(item.mark, "a scenario needs a 'name'", "add 'name: <letters, digits, _>'");
+    if (!valid_part_name(*name)) {
+      throw InputError(reader.mark("name"), fmt::format("scenario name '{}' may only use letters, digits and '_'", *name),
+                       "rename it, e.g. 'hot_ambient'");
+    }
+    scenario.name = *name;
+    if (std::any_of(scenarios.begin(), scenarios.end(), [&](const ScenarioSpec& s) { return s.name == *name; })) {
+      throw InputError(reader.mark("name"), fmt::format("scenario '{}' is defined twice", *name),
+                       "give each scenario its own name");
+    }
+    if (const Tree* set = reader.child("set")) {
+      if (!set->is_map()) {
+        throw InputError(set->mark, "a scenario's 'set' must be a block of '<path>: <value>' lines",
+                         "write e.g. 'set: {r_pre.resistance: 20 Ohm, ambient: 50 degC}'");
+      }
+      for (std::size_t i = 0; i < set->entries.size(); ++i) {
+        const auto& [path, value] = set->entries[i];
+        SourceMark mark = i < set->key_marks.size() ? set->key_marks[i] : set->mark;
+        if (!value.is_scalar()) {
+          throw InputError(value.mark, fmt::format("override '{}' must be a single value", path),
+                           "write e.g. '47 Ohm' or '95 %'");
+        }
+        scenario.overrides.push_back(Override{path, value.text, mark});
+      }
+    }
+    bool is_built_in = std::find(built_in.begin(), built_in.end(), scenario.name) != built_in.end();
+    if (reader.has("expect")) {
+      scenario.expected = reader.word("expect", sequence_outcomes(), "closed");
+    } else {
+      reader.accept("expect");
+      if (!is_built_in) {
+        throw InputError(item.mark, fmt::format("scenario '{}' needs 'expect', the outcome the BMS should reach",
+                                                scenario.name),
+                         "add e.g. 'expect: no_rise' (closed, timeout, no_rise, too_fast)");
+      }
+    }
+    scenario.note = reader.text("note").value_or("");
+    reader.finish();
+    scenarios.push_back(std::move(scenario));
+  }
+  return scenarios;
+}
+
+}  // namespace linkrise::netlist
