@@ -149,14 +149,23 @@ MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& res
   return m;
 }
 
-std::vector<std::pair<std::string, double>> constant_power_loads(const solver::Circuit& circuit) {
-  std::vector<std::pair<std::string, double>> loads;
+std::vector<ConstantPowerLoad> constant_power_loads(const solver::Circuit& circuit) {
+  std::vector<ConstantPowerLoad> loads;
   for (const auto& spec : circuit.spec().parts) {
     if (spec.kind != "constant_power_load") continue;
     const netlist::Tree* power = spec.block.find("power");
     if (power == nullptr) continue;
-    loads.emplace_back(spec.name, netlist::ParameterReader::read_value(*power, netlist::Dimension::power_(),
-                                                                        netlist::Bound::NonNegative, "load power"));
+    ConstantPowerLoad load;
+    load.name = spec.name;
+    load.power = netlist::ParameterReader::read_value(*power, netlist::Dimension::power_(), netlist::Bound::NonNegative,
+                                                      "load power");
+    // The part's own reader has validated both; 10 V is its documented default (models/switched_load.h).
+    const netlist::Tree* floor = spec.block.find("resistive_below");
+    load.resistive_below = floor == nullptr ? 10.0
+                                            : netlist::ParameterReader::read_value(*floor, netlist::Dimension::voltage(),
+                                                                                   netlist::Bound::Positive,
+                                                                                   "resistive_below");
+    loads.push_back(load);
   }
   return loads;
 }

@@ -60,7 +60,7 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
 /// Per-part metrics of the resistive parts (from analysis/part_metrics.h), with definitions.
 MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit);
 
-/// The rated power (W) of each constant-power load in the circuit, for the stall diagnostic.
-std::vector<std::pair<std::string, double>> constant_power_loads(const solver::Circuit& circuit);
+/// The constant-power loads of the circuit (rated power, resistive floor), for the stall diagnostic.
+std::vector<ConstantPowerLoad> constant_power_loads(const solver::Circuit& circuit);
 
 }  // namespace linkrise::analysis

@@ -16,8 +16,14 @@ double constant_power_equilibrium(double source_voltage, double resistance, doub
   return 0.5 * (source_voltage + std::sqrt(discriminant));
 }
 
+double constant_power_lower_root(double source_voltage, double resistance, double power) {
+  double discriminant = source_voltage * source_voltage - 4.0 * power * resistance;
+  if (discriminant < 0.0) return std::nan("");
+  return 0.5 * (source_voltage - std::sqrt(discriminant));
+}
+
 StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
-                               const std::vector<std::pair<std::string, double>>& loads) {
+                               const std::vector<ConstantPowerLoad>& loads) {
   using netlist::format_si;
   StallDiagnostic d;
   const solver::AttemptRecord* attempt = report.last();
@@ -33,15 +39,18 @@ StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::S
   Trace pack = Trace::node_pair(waveform, spec.pack.plus, spec.pack.minus, report.ground);
   Trace link = Trace::node_pair(waveform, spec.link.plus, spec.link.minus, report.ground);
   Trace current = Trace::column(waveform, spec.precharge + ".current");
-  for (const auto& [name, power] : loads) {
-    int column = waveform.column(name + ".drawing");
+  for (const auto& load : loads) {
+    int column = waveform.column(load.name + ".drawing");
     if (column < 0) continue;
     bool drew = false;
     for (std::size_t r = 0; r < waveform.row_count() && !drew; ++r) {
       double t = waveform.time(r);
       drew = t >= start && t <= end && waveform.value(r, column) > 0.5;
     }
-    if (drew) d.load_power += power;
+    if (drew) {
+      d.load_power += load.power;
+      d.resistive_below = std::max(d.resistive_below, load.resistive_below);
+    }
   }
   d.source_voltage = pack.at(start);
   d.closing_level = spec.closing_level(d.source_voltage);
@@ -59,6 +68,7 @@ StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::S
   d.path_resistance = (d.source_voltage - link.at(end)) / i;
   d.maximum_power = d.source_voltage * d.source_voltage / (4.0 * d.path_resistance);
   d.equilibrium = constant_power_equilibrium(d.source_voltage, d.path_resistance, d.load_power);
+  d.lower_root = constant_power_lower_root(d.source_voltage, d.path_resistance, d.load_power);
   if (std::isnan(d.equilibrium)) {
     d.stalls = true;
     d.explanation = fmt::format(

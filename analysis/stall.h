@@ -7,6 +7,7 @@
 // equilibrium at all: the load takes more than the path can deliver and the link collapses. Either way, if
 // no equilibrium lies at or above the closing level, the charge stalls and only the timeout can end it.
 #include <string>
+#include <vector>
 
 #include "solver/sequence_report.h"
 #include "solver/waveform.h"
@@ -15,6 +16,17 @@ namespace linkrise::analysis {
 
 /// The upper equilibrium of a constant-power load behind a resistance, V; NaN when P > Vs²/(4R).
 double constant_power_equilibrium(double source_voltage, double resistance, double power);
+/// The lower root [Vs − √(Vs² − 4PR)]/2, V (NaN when none): unstable — below it the load takes more current
+/// than the path delivers, so a link charging from 0 V against a load that already draws cannot pass it.
+double constant_power_lower_root(double source_voltage, double resistance, double power);
+
+/// A constant-power load of the case: its rated power and the voltage below which the model draws as a
+/// resistor instead (models/switched_load.h, `resistive_below`).
+struct ConstantPowerLoad {
+  std::string name;
+  double power = 0.0;          // W
+  double resistive_below = 0.0;  // V
+};
 
 struct StallDiagnostic {
   bool applicable = false;  // false: no constant-power load drew, or no pre-charge current to measure R
@@ -23,13 +35,15 @@ struct StallDiagnostic {
   double load_power = 0.0;       // W, constant-power loads that drew during the final attempt
   double maximum_power = 0.0;    // W, Vs²/(4R)
   double equilibrium = 0.0;      // V, NaN when there is none
+  double lower_root = 0.0;       // V, the unstable lower root, NaN when there is none
+  double resistive_below = 0.0;  // V, the highest constant-power onset among the loads that drew
   double closing_level = 0.0;    // V, the closing rule's level at Vs
   bool stalls = false;
   std::string explanation;
 };
 
-/// `loads`: names and rated powers (W) of the case's constant-power loads.
+/// `loads`: the case's constant-power loads.
 StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
-                               const std::vector<std::pair<std::string, double>>& loads);
+                               const std::vector<ConstantPowerLoad>& loads);
 
 }  // namespace linkrise::analysis

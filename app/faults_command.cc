@@ -19,6 +19,7 @@
 #include "netlist/overrides.h"
 #include "netlist/scenario_spec.h"
 #include "netlist/sequence_spec.h"
+#include "netlist/units.h"
 
 namespace linkrise::app {
 
@@ -162,13 +163,25 @@ std::vector<Planned> plan(const Tree& root, const netlist::Case& nominal, const 
   return planned;
 }
 
-// The outcome the quadratic equilibrium predicts for a constant-power load (analysis/stall.h).
-std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const netlist::SequenceSpec& sequence) {
-  if (!stall.applicable || !stall.stalls) return "closed";
-  if (sequence.rise_fraction &&
-      (std::isnan(stall.equilibrium) || stall.equilibrium < *sequence.rise_fraction * stall.source_voltage)) {
-    return "no_rise";
+// The outcome the quadratic predicts for constant-power loads that draw from 0 V on (analysis/stall.h). The link
+// must first climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2: where the loads are still constant-power
+// there (the root lies above their resistive floor) it cannot, and stays near 0 V. Past it, the link settles at the
+// upper root, which must reach the closing level.
+std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const netlist::SequenceSpec& sequence,
+                               std::string& explanation) {
+  explanation = stall.explanation;
+  if (!stall.applicable) return "closed";
+  const std::string caught = sequence.rise_fraction ? "no_rise" : "timeout";
+  if (std::isnan(stall.equilibrium)) return caught;
+  if (stall.lower_root >= stall.resistive_below) {
+    explanation = fmt::format(
+        "stall at the bottom: drawing from 0 V, the loads take more than the path delivers below the lower root "
+        "[Vs − √(Vs² − 4PR)]/2 = {}, so the link cannot climb past it",
+        netlist::format_si(stall.lower_root, "V"));
+    return caught;
   }
+  if (!stall.stalls) return "closed";
+  if (sequence.rise_fraction && stall.equilibrium < *sequence.rise_fraction * stall.source_voltage) return "no_rise";
   return "timeout";
 }
 
@@ -188,8 +201,7 @@ void run_row(Planned& p) {
   row.attempts = report.attempts;
   row.detection_time = report.first_fault_time;
   if (p.expect_from_stall && evaluation.stall) {
-    row.expected = outcome_from_stall(*evaluation.stall, sequence);
-    row.note = evaluation.stall->explanation;
+    row.expected = outcome_from_stall(*evaluation.stall, sequence, row.note);
   }
   row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
   row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
