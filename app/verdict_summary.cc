@@ -88,7 +88,7 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
                        report->attempts, report->spec.expected_outcome, report->spec.rule_text());
     if (evaluation.stall && evaluation.stall->applicable) out += fmt::format("  stall     {}\n", evaluation.stall->explanation);
   }
-  out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", "metric", "value", "limit", "margin", "");
+  std::string table;
   // Compact: the sequence metrics, the sequence resistor's, and every metric with a limit; the rest are in
   // summary.json.
   std::string resistor = report != nullptr ? report->spec.resistor + "." : std::string();
@@ -116,10 +116,15 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
       }
       mark = !limit.judged ? "not judged" : limit.pass ? (mark == "FAIL" ? "FAIL" : "ok") : "FAIL";
     }
-    out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", metric.name,
+    table += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", metric.name,
                        analysis::format_metric(metric.value, metric.unit), limit_text, margin_text, mark);
   }
-  if (hidden > 0) out += fmt::format("  ({} more metrics without limits in summary.json)\n", hidden);
+  if (!table.empty()) {
+    out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", "metric", "value", "limit", "margin", "") + table;
+  }
+  if (hidden > 0) {
+    out += fmt::format("  ({} {}metrics without limits in summary.json)\n", hidden, table.empty() ? "" : "more ");
+  }
   out += fmt::format("  verdict   {}\n", evaluation.pass ? "PASS" : "FAIL");
   for (const auto& failure : evaluation.failures) out += fmt::format("    - {}\n", failure);
   return out;
