@@ -141,14 +141,16 @@ Comparison compare_circuit(const Circuit& circuit, const std::string& label) {
   Comparison result;
   std::mt19937 random(20240611);
   std::uniform_real_distribution<double> unit(-1.0, 1.0);
-  // States: the initial ones, those at the end of a run, and random ones around the initial ones. The initial
-  // states are nudged by 1e-4 of their scale: an initial SOC often sits on a breakpoint of an OCV table, where the
-  // rates have a kink and no derivative to compare.
-  std::vector<double> nudged = circuit.initial_states();
-  for (int j = 0; j < circuit.part_state_count(); ++j) nudged[j] += 1e-4 * state_scale(circuit.state_info()[j]);
-  std::vector<std::vector<double>> points = {nudged};
+  // States: the initial ones, those at the end of a run, and random ones around the initial ones. The first two
+  // are nudged by 1e-4 of each state's scale: an initial SOC often sits on a breakpoint of an OCV table (and a
+  // short run barely leaves it), where the rates have a kink and no derivative to compare.
+  auto nudged = [&](std::vector<double> x) {
+    for (int j = 0; j < circuit.part_state_count(); ++j) x[j] += 1e-4 * state_scale(circuit.state_info()[j]);
+    return x;
+  };
+  std::vector<std::vector<double>> points = {nudged(circuit.initial_states())};
   auto run = linkrise::solver::simulate(circuit, linkrise::solver::options_from(circuit));
-  if (run.outcome != linkrise::solver::Outcome::SolverFailure) points.push_back(run.final_states);
+  if (run.outcome != linkrise::solver::Outcome::SolverFailure) points.push_back(nudged(run.final_states));
   for (int k = 0; k < 6; ++k) {
     std::vector<double> x = circuit.initial_states();
     for (int j = 0; j < circuit.part_state_count(); ++j) {
@@ -176,7 +178,9 @@ Comparison compare_circuit(const Circuit& circuit, const std::string& label) {
 std::vector<fs::path> stored_cases() {
   std::vector<fs::path> files;
   for (const auto& entry : fs::directory_iterator(fs::path(LINKRISE_SOURCE_DIR) / "cases")) {
-    if (entry.path().extension() == ".yaml") files.push_back(entry.path());
+    // Golden results (<case>.golden.yaml) sit beside the cases and are not cases themselves.
+    if (entry.path().extension() == ".yaml" && !entry.path().string().ends_with(".golden.yaml"))
+      files.push_back(entry.path());
   }
   std::sort(files.begin(), files.end());
   return files;

@@ -440,3 +440,35 @@ TEST(Transient, ScheduledEventsHappenExactlyAtTheirTimes) {
     ASSERT_NEAR(steps.value(r, link), expected, kWaveformTolerance * kV) << "t = " << t;
   }
 }
+
+TEST(Transient, ConstantPowerLoadBeyondMaximumPowerCollapsesTheLink) {
+  // P = 50 kW > Vs²/(4R) = 40 kW: no operating point above the floor (check-values.md, maximum power transfer).
+  // From C·dv/dt = (Vs - v)/R - P/v, with u = v - Vs/2 and a² = P·R - Vs²/4 > 0:
+  //   t(v) = R·C·[F(v0) - F(v)],  F(v) = ½·ln(u² + a²) + Vs/(2a)·atan(u/a)   [derived: separable ODE].
+  // Below its 1 mV floor the load is a 2e-11 Ohm resistor, so the link settles at Vs·Rf/(R + Rf) [Ohm's law].
+  // (Regression: the network Newton once stalled at the floor's kink here and the run failed.)
+  const double Vs = 400, R = 1, C = 1e-3, P = 50e3, v0 = 390, Vr = 1e-3;
+  const double a = std::sqrt(P * R - Vs * Vs / 4);
+  auto F = [&](double v) {
+    double u = v - Vs / 2;
+    return 0.5 * std::log(u * u + a * a) + Vs / (2 * a) * std::atan(u / a);
+  };
+  Simulation sim(
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 400 V, series_resistance: 1 Ohm}\n"
+      "  - {name: link, kind: capacitor, nodes: [plus, gnd], capacitance: 1 mF, initial_voltage: 390 V}\n"
+      "  - {name: inverter, kind: constant_power_load, nodes: [plus, gnd], power: 50 kW, resistive_below: 1 mV}\n"
+      "run: {duration: 20 ms}\n");
+  // Default tolerances (rtol 1e-7), as a user runs it: the crossing time to 100 rtol.
+  sim.options.watches.push_back(level_watch(sim.circuit, "plus", 100.0));
+  Result result = sim.run();
+  ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
+  ASSERT_EQ(result.crossings.size(), 1u);
+  const double t_100 = R * C * (F(v0) - F(100.0));
+  EXPECT_NEAR(result.crossings.front().time, t_100, 1e-5 * t_100);
+  const double floor_resistance = Vr * Vr / P;
+  const double v_end = Vs * floor_resistance / (R + floor_resistance);
+  auto link = column(result.steps, "plus");
+  EXPECT_NEAR(link.back(), v_end, 1e-3 * v_end);
+}

@@ -1,0 +1,197 @@
+// The built `linkrise` binary end to end: outputs of the demo case, exit codes 0 / 2 / 3, no output on failure.
+// Numbers are regression-checked with digit tolerances, never by byte equality of floating text.
+#include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+namespace {
+namespace fs = std::filesystem;
+
+struct Outcome {
+  int exit_code = -1;
+  std::string out, err;
+};
+
+std::string slurp(const fs::path& path) {
+  std::ifstream stream(path);
+  std::stringstream text;
+  text << stream.rdbuf();
+  return text.str();
+}
+
+class Cli : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    directory_ = fs::temp_directory_path() /
+                 ("linkrise_cli_test_" + std::to_string(getpid()) + "_" +
+                  ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    fs::remove_all(directory_);
+    fs::create_directories(directory_);
+  }
+  void TearDown() override { fs::remove_all(directory_); }
+
+  Outcome run(const std::string& arguments) const {
+    fs::path out = directory_ / "stdout.txt", err = directory_ / "stderr.txt";
+    std::string command = std::string("\"") + LINKRISE_BINARY + "\" " + arguments + " >\"" + out.string() + "\" 2>\"" +
+                          err.string() + "\"";
+    int status = std::system(command.c_str());
+    Outcome outcome;
+    outcome.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+    outcome.out = slurp(out);
+    outcome.err = slurp(err);
+    fs::remove(out);
+    fs::remove(err);
+    return outcome;
+  }
+  fs::path write_case(const std::string& name, const std::string& text) const {
+    fs::path path = directory_ / name;
+    std::ofstream(path) << text;
+    return path;
+  }
+  static std::vector<std::string> split(const std::string& line) {
+    std::vector<std::string> cells;
+    std::stringstream stream(line);
+    for (std::string cell; std::getline(stream, cell, ',');) cells.push_back(cell);
+    return cells;
+  }
+  static std::vector<std::string> lines(const std::string& text) {
+    std::vector<std::string> result;
+    std::stringstream stream(text);
+    for (std::string line; std::getline(stream, line);) result.push_back(line);
+    return result;
+  }
+  static bool empty_directory(const fs::path& path) { return !fs::exists(path) || fs::is_empty(path); }
+
+  fs::path directory_;
+};
+
+// Every number in the summary sits in a {value, unit} pair.
+void expect_units(const nlohmann::json& node, const std::string& where) {
+  if (node.is_object()) {
+    if (node.contains("value")) {
+      EXPECT_TRUE(node.contains("unit") && node["unit"].is_string()) << where;
+      return;
+    }
+    for (auto it = node.begin(); it != node.end(); ++it) {
+      if (it.key() == "version") continue;
+      expect_units(it.value(), where + "." + it.key());
+    }
+  } else if (node.is_array()) {
+    for (std::size_t i = 0; i < node.size(); ++i) expect_units(node[i], where + "[" + std::to_string(i) + "]");
+  } else {
+    EXPECT_FALSE(node.is_number()) << "bare number at " << where;
+  }
+}
+
+const char* const kDemo = LINKRISE_SOURCE_DIR "/cases/demo_storage_rack.yaml";
+}  // namespace
+
+TEST_F(Cli, DemoCaseWritesWaveformsAndSummary) {
+  fs::path output = directory_ / "demo";
+  Outcome result = run(std::string("run \"") + kDemo + "\" -o \"" + output.string() + "\"");
+  ASSERT_EQ(result.exit_code, 0) << result.err;
+  EXPECT_NE(result.out.find("energy"), std::string::npos) << result.out;
+
+  auto csv = lines(slurp(output / "waveforms.csv"));
+  ASSERT_GT(csv.size(), 100u);
+  auto header = split(csv.front());
+  ASSERT_FALSE(header.empty());
+  EXPECT_EQ(header.front(), "time [s]");
+  auto has = [&](const std::string& column) { return std::find(header.begin(), header.end(), column) != header.end(); };
+  EXPECT_TRUE(has("link_plus [V]"));
+  EXPECT_TRUE(has("pack_plus [V]"));
+  EXPECT_TRUE(has("k_main.current [A]"));
+  EXPECT_TRUE(has("r_pre.power [W]"));
+  EXPECT_TRUE(has("rack.soc [%]"));
+  for (std::size_t r = 1; r < csv.size(); ++r) ASSERT_EQ(split(csv[r]).size(), header.size()) << "row " << r;
+
+  nlohmann::json summary = nlohmann::json::parse(slurp(output / "summary.json"));
+  EXPECT_EQ(summary["tool"]["name"], "linkrise");
+  EXPECT_EQ(summary["outcome"], "completed");
+  expect_units(summary, "summary");
+  EXPECT_EQ(summary["energy_audit"]["relative_residual"]["unit"], "1");
+  EXPECT_LE(summary["energy_audit"]["relative_residual"]["value"].get<double>(), 1e-6);
+  EXPECT_EQ(summary["parts"]["link"]["stored_energy_end"]["unit"], "J");
+
+  // Regression with digit tolerances. The link's stored energy is ½·C·V² of its final voltage [practice]
+  // (the ESR drop of the converter's and bleed's < 1 A is below 1e-5 of it).
+  auto last = split(csv.back());
+  int link_column = static_cast<int>(std::find(header.begin(), header.end(), "link_plus [V]") - header.begin());
+  double v_link = std::stod(last[link_column]);
+  double stored = summary["parts"]["link"]["stored_energy_end"]["value"].get<double>();
+  EXPECT_NEAR(stored, 0.5 * 1.5e-3 * v_link * v_link, 1e-3 * stored);
+  // The link ends near the rack's open-circuit voltage at 50 % SOC, 176 × 3.70 V = 651.2 V, less the drops of the
+  // converter's and bleed's current [Ohm's law].
+  EXPECT_NEAR(v_link, 651.2, 1.0);
+  // Peak pre-charge current: the rack's OCV over the loop resistance at the first instant (capacitor at 0 V,
+  // polarisation pair uncharged): 47 + 0.020 + 176 × 0.5 m + 2.9 m + 2 m + 0.3 m (k_neg default) Ohm [Ohm's law].
+  double loop = 47.0 + 0.020 + 176 * 0.5e-3 + 2.9e-3 + 2e-3 + 0.3e-3;
+  EXPECT_NEAR(summary["parts"]["r_pre"]["peak_current"]["value"].get<double>(), 651.2 / loop, 1e-3 * 651.2 / loop);
+}
+
+TEST_F(Cli, SampleOptionGivesAUniformGrid) {
+  fs::path output = directory_ / "sampled";
+  Outcome result = run(std::string("run \"") + kDemo + "\" --sample \"10 ms\" -q -o \"" + output.string() + "\"");
+  ASSERT_EQ(result.exit_code, 0) << result.err;
+  EXPECT_TRUE(result.out.empty()) << "--quiet prints nothing: " << result.out;
+  auto csv = lines(slurp(output / "waveforms.csv"));
+  ASSERT_EQ(csv.size(), 1u + 51u);  // header, then 0, 10 ms ... 500 ms
+  for (std::size_t r = 1; r < csv.size(); ++r) {
+    EXPECT_NEAR(std::stod(split(csv[r]).front()), 0.01 * static_cast<double>(r - 1), 1e-12) << "row " << r;
+  }
+}
+
+TEST_F(Cli, BadCaseExitsWithTwoAndWritesNothing) {
+  fs::path output = directory_ / "bad_out";
+  fs::create_directories(output);
+  fs::path file = write_case("bad.yaml",
+                             "ground: gnd\n"
+                             "parts:\n"
+                             "  - name: source\n"
+                             "    kind: dc_source\n"
+                             "    nodes: [plus, gnd]\n"
+                             "    voltage: 400 V\n"
+                             "  - name: r1\n"
+                             "    kind: resistor\n"
+                             "    nodes: [plus, gnd]\n"
+                             "    resistance: 47 mF\n"
+                             "run: {duration: 1 s}\n");
+  Outcome result = run("run \"" + file.string() + "\" -o \"" + output.string() + "\"");
+  EXPECT_EQ(result.exit_code, 2) << result.err;
+  EXPECT_NE(result.err.find(file.string() + ":10:17:"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("fix:"), std::string::npos) << result.err;
+  EXPECT_TRUE(empty_directory(output)) << "no output after an input error";
+
+  Outcome missing = run("run \"" + (directory_ / "no_such_case.yaml").string() + "\" -o \"" + output.string() + "\"");
+  EXPECT_EQ(missing.exit_code, 2) << missing.err;
+  EXPECT_NE(missing.err.find("cannot open"), std::string::npos) << missing.err;
+  EXPECT_TRUE(empty_directory(output));
+}
+
+TEST_F(Cli, SolverFailureExitsWithThreeAndItsOwnMessage) {
+  // A 1 ps step limit over a 1 s run needs 1e12 steps: the driver's step limit stops it [by construction].
+  fs::path output = directory_ / "failed_out";
+  fs::path file = write_case("step_limit.yaml",
+                             "ground: gnd\n"
+                             "parts:\n"
+                             "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, "
+                             "series_resistance: 1 Ohm}\n"
+                             "  - {name: c1, kind: capacitor, nodes: [plus, gnd], capacitance: 1 uF}\n"
+                             "run: {duration: 1 s, max_step: 1 ps}\n");
+  Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
+  EXPECT_EQ(result.exit_code, 3) << result.err;
+  EXPECT_NE(result.err.find("solver failure"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("steps before t ="), std::string::npos) << result.err;
+  EXPECT_EQ(result.err.find("error:"), std::string::npos) << "not reported as an input error: " << result.err;
+  EXPECT_TRUE(empty_directory(output));
+}
