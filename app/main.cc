@@ -7,6 +7,7 @@
 #include "app/exit_codes.h"
 #include "app/faults_command.h"
 #include "app/run_command.h"
+#include "app/study_commands.h"
 
 int main(int argc, char** argv) {
   using namespace linkrise::app;
@@ -40,6 +41,8 @@ int main(int argc, char** argv) {
   faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
   faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");
 
+  StudyCommands studies(cli);  // compare, sweep, spread, window (app/study_commands.h)
+
   try {
     cli.parse(argc, argv);
   } catch (const CLI::ParseError& error) {
@@ -50,6 +53,7 @@ int main(int argc, char** argv) {
     if (run_cli->parsed()) return run_command(run);
     if (check_cli->parsed()) return check_command(check);
     if (faults_cli->parsed()) return faults_command(faults);
+    if (auto code = studies.dispatch()) return *code;
   } catch (const std::exception& error) {
     std::cerr << "linkrise: " << error.what() << "\n";
     return kExitInputError;

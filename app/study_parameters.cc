@@ -48,6 +48,14 @@ netlist::Override parse_assignment(const std::string& text, const SourceMark& ma
   return netlist::Override{path, value, mark};
 }
 
+std::vector<netlist::Override> parse_settings(const std::vector<std::string>& settings) {
+  std::vector<netlist::Override> overrides;
+  for (std::size_t i = 0; i < settings.size(); ++i) {
+    overrides.push_back(parse_assignment(settings[i], option_mark("--set", static_cast<int>(i) + 1)));
+  }
+  return overrides;
+}
+
 std::string quantity_text(double value, const netlist::Dimension& dimension, bool absolute_temperature) {
   if (absolute_temperature) return fmt::format("{:.17g} degC", value - 273.15);
   std::string unit = dimension.symbol();
@@ -139,6 +147,12 @@ std::string display_quantity(const netlist::Quantity& quantity) {
   std::string unit = quantity.dimension.symbol();
   if (quantity.dimension == netlist::Dimension::none()) return fmt::format("{:.4g}", quantity.value);
   return netlist::format_si(quantity.value, unit);
+}
+
+std::string display_text(const std::string& text) {
+  std::string problem;
+  auto quantity = netlist::parse_quantity(text, problem);
+  return quantity ? display_quantity(*quantity) : text;
 }
 
 }  // namespace linkrise::app

@@ -23,6 +23,9 @@ netlist::SourceMark option_mark(const std::string& option, int position);
 /// "path=value" -> an override. Throws InputError (at `mark`) without '=' or with an empty side.
 netlist::Override parse_assignment(const std::string& text, const netlist::SourceMark& mark);
 
+/// Every --set option, in order, as overrides.
+std::vector<netlist::Override> parse_settings(const std::vector<std::string>& settings);
+
 /// A varied parameter: its path and the value texts of its points, in order.
 struct VariedParameter {
   std::string path;
@@ -43,5 +46,7 @@ netlist::Quantity value_at(const netlist::Tree& root, const std::string& path, c
 
 /// A value for people: SI prefix and unit; degC for absolute temperatures; a plain number when dimensionless.
 std::string display_quantity(const netlist::Quantity& quantity);
+/// A case-file value text for people: display_quantity when it is a quantity, else the text itself.
+std::string display_text(const std::string& text);
 
 }  // namespace linkrise::app

@@ -37,6 +37,16 @@ bool StudyResults::any_solver_failure() const {
                      [](const PointResult& p) { return p.status == CaseEvaluation::Status::SolverFailure; });
 }
 
+void reject_input_errors(const StudyResults& results, const std::string& file,
+                         const std::function<std::string(std::size_t)>& label_of) {
+  long bad = results.first_input_error();
+  if (bad < 0) return;
+  auto index = static_cast<std::size_t>(bad);
+  throw netlist::InputError(netlist::SourceMark{file, 0, 0},
+                            fmt::format("{} is not a valid case:\n{}", label_of(index), results.points[index].message),
+                            "change the value the study gives it");
+}
+
 netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes) {
   netlist::Tree tree = base;
   netlist::apply_overrides(tree, changes);
@@ -63,16 +73,15 @@ std::vector<double> aligned(const std::vector<MetricValue>& metrics, const std::
 }
 }  // namespace
 
-StudyResults run_study(const netlist::Tree& base, const std::string& file, std::size_t count,
-                       const OverridesOf& overrides_of, int jobs, const std::string& progress_label,
-                       const std::vector<MetricColumn>* fixed_columns) {
+StudyResults run_study(const std::string& file, std::size_t count, const TreeOf& tree_of, int jobs,
+                       const std::string& progress_label, const std::vector<MetricColumn>* fixed_columns) {
   StudyResults results;
   results.points.resize(count);
   std::vector<std::vector<MetricValue>> raw(fixed_columns ? 0 : count);
   for_each_index(
       count, jobs,
       [&](std::size_t i) {
-        CaseEvaluation evaluation = evaluate_case_tree(with_overrides(base, overrides_of(i)), file);
+        CaseEvaluation evaluation = evaluate_case_tree(tree_of(i), file);
         PointResult& point = results.points[i];
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);
@@ -149,6 +158,35 @@ std::vector<std::string> chosen_metrics(const std::string& list, const std::vect
     start = comma + 1;
   }
   return names;
+}
+
+std::string text_table(const std::vector<std::string>& header, const std::vector<std::vector<std::string>>& rows,
+                       std::size_t left) {
+  // Display width in code points, so 'µ', '²' and '…' do not push the columns apart.
+  auto width = [](const std::string& text) {
+    std::size_t n = 0;
+    for (unsigned char c : text) n += (c & 0xC0) != 0x80;
+    return n;
+  };
+  std::vector<std::size_t> widths(header.size(), 0);
+  auto measure = [&](const std::vector<std::string>& row) {
+    for (std::size_t i = 0; i < row.size() && i < widths.size(); ++i) widths[i] = std::max(widths[i], width(row[i]));
+  };
+  measure(header);
+  for (const auto& row : rows) measure(row);
+  auto line = [&](const std::vector<std::string>& row) {
+    std::string out = " ";
+    for (std::size_t i = 0; i < widths.size(); ++i) {
+      std::string cell = i < row.size() ? row[i] : "";
+      std::string pad(widths[i] - std::min(widths[i], width(cell)), ' ');
+      out += " " + (i < left ? cell + pad : pad + cell);
+    }
+    while (!out.empty() && out.back() == ' ') out.pop_back();
+    return out + "\n";
+  };
+  std::string out = line(header);
+  for (const auto& row : rows) out += line(row);
+  return out;
 }
 
 std::string csv_text(const std::string& text) {

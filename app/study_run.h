@@ -40,16 +40,21 @@ struct StudyResults {
   bool any_solver_failure() const;
 };
 
-/// The overrides of point i.
-using OverridesOf = std::function<std::vector<netlist::Override>(std::size_t)>;
+/// The case tree of point i (the base case with the point's overrides or replacements).
+using TreeOf = std::function<netlist::Tree(std::size_t)>;
 
 /// Evaluates `count` points on `jobs` threads (0: one per core); results are in index order and independent of
 /// the thread count. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
 /// keeps the memory per sample to one number per column); otherwise they are the union over the points in
-/// point order. An override that names an unknown path throws InputError.
-StudyResults run_study(const netlist::Tree& base, const std::string& file, std::size_t count,
-                       const OverridesOf& overrides_of, int jobs, const std::string& progress_label = "",
+/// point order. tree_of may throw InputError (an override naming an unknown path); it is rethrown.
+StudyResults run_study(const std::string& file, std::size_t count, const TreeOf& tree_of, int jobs,
+                       const std::string& progress_label = "",
                        const std::vector<MetricColumn>* fixed_columns = nullptr);
+
+/// Throws InputError naming the point (label_of(i)) when a point was bad input, e.g. an override out of a
+/// parameter's range: a study with an invalid point writes nothing.
+void reject_input_errors(const StudyResults& results, const std::string& file,
+                         const std::function<std::string(std::size_t)>& label_of);
 
 /// The base tree with overrides applied.
 netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes);
@@ -67,6 +72,11 @@ std::vector<std::string> headline_metrics(const netlist::Tree& root, const std::
 /// did-you-mean).
 std::vector<std::string> chosen_metrics(const std::string& list, const std::vector<MetricColumn>& columns,
                                         const netlist::SourceMark& mark);
+
+/// A plain-text table: columns padded to their widest cell; the first `left` columns left-aligned, the others
+/// right-aligned; each line indented by two spaces.
+std::string text_table(const std::vector<std::string>& header, const std::vector<std::vector<std::string>>& rows,
+                       std::size_t left = 1);
 
 /// CSV helpers: a quoted text cell and a number cell (9 significant digits, empty for NaN).
 std::string csv_text(const std::string& text);

@@ -1,0 +1,76 @@
+// Sweeps (app/sweep_command.h) and the command-line parameter forms (app/study_parameters.h): every sweep point
+// equals an individual run of the case with that value, and follows the RC closed form.
+#include "app/sweep_command.h"
+
+#include <cmath>
+
+#include <gtest/gtest.h>
+
+#include "app/case_evaluation.h"
+#include "netlist/input_error.h"
+#include "netlist/overrides.h"
+#include "study_fixture.h"
+
+namespace linkrise::app {
+namespace {
+using study_test::rc_case_text;
+using study_test::to_95_percent;
+using study_test::write_case;
+
+TEST(StudySweep, RangesAndListsExpandAsWritten) {
+  netlist::SourceMark mark{"test", 1, 1};
+  VariedParameter log = parse_variation("r_pre.resistance=10Ohm..1kOhm:log:3", mark);
+  ASSERT_EQ(log.values.size(), 3u);
+  std::string problem;
+  EXPECT_NEAR(netlist::parse_quantity(log.values[1], problem)->value, 100.0, 1e-12);  // geometric middle
+  EXPECT_EQ(log.values[2], "1000 Ohm");
+  VariedParameter lin = parse_variation("ambient=-20degC..40degC:4", mark);
+  ASSERT_EQ(lin.values.size(), 4u);
+  EXPECT_NEAR(netlist::parse_quantity(lin.values[1], problem)->value, 273.15, 1e-9);  // 0 degC
+  VariedParameter list = parse_variation("link.capacitance=1mF, 2 mF,3mF", mark);
+  EXPECT_EQ(list.values, (std::vector<std::string>{"1mF", "2 mF", "3mF"}));
+  EXPECT_THROW(parse_variation("r_pre.resistance=1Ohm..2V", mark), netlist::InputError);
+  EXPECT_THROW(parse_variation("r_pre.resistance=-1Ohm..2Ohm:log", mark), netlist::InputError);
+  EXPECT_THROW(parse_variation("r_pre.resistance", mark), netlist::InputError);
+  EXPECT_THROW(parse_variation("r_pre.resistance=1Ohm..2Ohm:1", mark), netlist::InputError);
+}
+
+TEST(StudySweep, PointsEqualIndividualRunsAndTheClosedForm) {
+  std::string file = write_case("study_rc_sweep.yaml", rc_case_text("  r_pre.resistance: {plus_minus: 1 %}\n"));
+  netlist::SourceMark mark{"test", 1, 1};
+  std::vector<VariedParameter> parameters{parse_variation("r_pre.resistance=60Ohm..120Ohm:3", mark),
+                                          parse_variation("link.capacitance=0.8mF,1.2mF", mark)};
+  Sweep sweep = run_sweep(file, {}, parameters, 2);
+  ASSERT_EQ(sweep.points.size(), 6u);
+  netlist::Tree base = netlist::load_yaml_file(file);
+  const double resistances[] = {60.0, 90.0, 120.0}, capacitances[] = {0.8e-3, 1.2e-3};
+  for (std::size_t i = 0; i < 6; ++i) {
+    netlist::Tree tree = base;
+    netlist::apply_overrides(tree, sweep.overrides(i));
+    CaseEvaluation alone = evaluate_case_tree(tree, file);
+    ASSERT_EQ(alone.metrics.size(), sweep.results.columns.size());
+    for (std::size_t c = 0; c < alone.metrics.size(); ++c) {
+      double a = alone.metrics[c].value, b = sweep.results.points[i].values[c];
+      EXPECT_TRUE(a == b || (std::isnan(a) && std::isnan(b))) << alone.metrics[c].name << " at point " << i;
+    }
+    // First parameter varies slowest. RC closed form t = −R·C·ln(0.05) (check-values.md), 1e-6 relative.
+    double expected = resistances[i / 2] * capacitances[i % 2] * to_95_percent();
+    EXPECT_NEAR(sweep.results.value(i, "sequence.time_to_threshold"), expected, 1e-6 * expected) << "point " << i;
+  }
+}
+
+TEST(StudySweep, BadPathsAndValuesAreInputErrors) {
+  std::string file = write_case("study_rc_sweep_bad.yaml", rc_case_text("  r_pre.resistance: {plus_minus: 1 %}\n"));
+  netlist::SourceMark mark{"test", 1, 1};
+  EXPECT_THROW(run_sweep(file, {}, {parse_variation("r_pree.resistance=1Ohm,2Ohm", mark)}, 1), netlist::InputError);
+  // A value out of the parameter's range (a negative resistance) makes the sweep bad input, naming the point.
+  try {
+    run_sweep(file, {}, {parse_variation("r_pre.resistance=10Ohm,-5Ohm", mark)}, 1);
+    ADD_FAILURE() << "no error";
+  } catch (const netlist::InputError& error) {
+    EXPECT_NE(std::string(error.what()).find("sweep point 2"), std::string::npos) << error.what();
+  }
+}
+
+}  // namespace
+}  // namespace linkrise::app
