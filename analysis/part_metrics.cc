@@ -14,6 +14,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"energy", "J", energy});
   list.push_back({"current_squared_time", "A²s", current_squared_time});
   list.push_back({"peak_voltage", "V", peak_voltage});
+  list.push_back({"average_power", "W", average_power});
   return list;
 }
 
@@ -73,6 +74,7 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;
+  if (result.end_time > 0.0) metrics.average_power = metrics.energy / result.end_time;
   int state = current_squared_state(circuit, part);
   if (state >= 0 && result.final_states.size() > static_cast<std::size_t>(state) &&
       result.initial_states.size() > static_cast<std::size_t>(state)) {

@@ -10,6 +10,9 @@
 //   energy                J     heat absorbed over the run, from the part's integrated energy account
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
+//   average_power         W     heat absorbed over the run divided by the run's length: the duty-cycle mean
+//                               that a continuous power rating is judged against (a pulse is judged by
+//                               energy and peak temperature, not by its peak power)
 // Peaks are row maxima: a peak between two solver steps is missed by at most the change over one step.
 // I²t comes from the part's own integrated ∫i² dt state where it has one (electro-thermal parts, see
 // models/thermal_resistor.h), as accurate as the solver; otherwise from the trapezoid rule over the rows,
@@ -41,6 +44,7 @@ struct ResistiveMetrics {
   double current_squared_time = 0.0;       // A²·s
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
+  double average_power = 0.0;              // W
 
   /// The values as named metrics, in the order listed in the header comment.
   std::vector<PartMetric> named() const;

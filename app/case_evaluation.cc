@@ -2,13 +2,8 @@
 
 #include <chrono>
 
-#include "analysis/energy_audit.h"
-#include "analysis/verdict.h"
+#include "app/case_run.h"
 #include "netlist/case.h"
-#include "netlist/sequence_spec.h"
-#include "solver/circuit.h"
-#include "solver/sequence_controller.h"
-#include "solver/transient.h"
 
 namespace linkrise::app {
 
@@ -26,24 +21,14 @@ CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& 
   CaseEvaluation evaluation;
   try {
     netlist::Case spec = netlist::read_case(root, file);
-    solver::Circuit circuit(spec);
-    solver::Options options = solver::options_from(circuit);
-    options.record_steps = true;
-    std::optional<netlist::SequenceSpec> sequence = netlist::read_sequence(spec);
-    std::optional<solver::SequenceController> controller;
-    if (sequence) solver::attach(controller.emplace(circuit, *sequence), options);
-    solver::Result result = solver::simulate(circuit, options);
-    if (result.outcome == solver::Outcome::SolverFailure) {
+    CaseRun run(spec);
+    if (run.solver_failed()) {
       evaluation.status = CaseEvaluation::Status::SolverFailure;
-      evaluation.message = result.message;
+      evaluation.message = run.result().message;
     } else {
-      analysis::EnergyAudit audit = analysis::audit_energy(circuit, result);
-      std::optional<solver::SequenceReport> report;
-      if (controller) report = controller->report(result.end_time);
-      analysis::Evaluation verdict = analysis::evaluate(circuit, result, audit, report ? &*report : nullptr);
-      evaluation.outcome = report ? report->outcome : "completed";
-      evaluation.verdict = verdict.pass ? "pass" : "fail";
-      for (const auto& metric : verdict.metrics.list()) {
+      evaluation.outcome = run.report() ? run.report()->outcome : "completed";
+      evaluation.verdict = run.evaluation().pass ? "pass" : "fail";
+      for (const auto& metric : run.evaluation().metrics.list()) {
         evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
       }
     }

@@ -66,14 +66,17 @@ TEST(PartMetrics, ResistivePartsAndMetricNames) {
   auto all = linkrise::analysis::all_resistive_metrics(circuit, result, audit);
   ASSERT_EQ(all.size(), 3u);
   auto plain = all[1].named();
-  ASSERT_EQ(plain.size(), 4u);  // no temperature for a plain resistor
+  ASSERT_EQ(plain.size(), 5u);  // no temperature for a plain resistor
   EXPECT_EQ(plain[0].name, "peak_power");
   EXPECT_EQ(plain[1].name, "energy");
   EXPECT_EQ(plain[2].name, "current_squared_time");
   EXPECT_EQ(plain[3].name, "peak_voltage");
+  EXPECT_EQ(plain[4].name, "average_power");
+  // Mean heat over the run: the integrated energy divided by the run's length.
+  EXPECT_NEAR(plain[4].value, all[1].energy / result.end_time, 1e-12 * (1.0 + plain[4].value));
   EXPECT_FALSE(all[1].current_squared_integrated);
   auto thermal = all[2].named();
-  ASSERT_EQ(thermal.size(), 5u);
+  ASSERT_EQ(thermal.size(), 6u);
   EXPECT_EQ(thermal[0].name, "peak_temperature");
   EXPECT_EQ(thermal[0].unit, "degC");
   EXPECT_TRUE(all[2].current_squared_integrated);
