@@ -6,6 +6,7 @@
 
 #include <fmt/format.h>
 
+#include "analysis/metrics.h"
 #include "app/run_summary.h"
 #include "netlist/units.h"
 
@@ -65,6 +66,16 @@ std::string quantity_text(double value, const std::string& unit) {
   return text;
 }
 
+// A metric value as the analyser formats it for people, with "°C" for degC.
+std::string metric_text(double value, const std::string& unit) {
+  std::string text = analysis::format_metric(value, unit);
+  const std::string suffix = " degC";
+  if (text.size() > suffix.size() && text.compare(text.size() - suffix.size(), suffix.size(), suffix) == 0) {
+    text.replace(text.size() - 4, 4, display_unit("degC"));
+  }
+  return text;
+}
+
 bool contains(const std::vector<int>& list, int value) {
   return std::find(list.begin(), list.end(), value) != list.end();
 }
@@ -93,6 +104,13 @@ void HtmlReport::section(const std::string& heading, const std::string& id) {
 void HtmlReport::paragraph(const std::string& text) { body_ += fmt::format("<p>{}</p>\n", escape(text)); }
 
 void HtmlReport::note(const std::string& text) { body_ += fmt::format("<p class=\"note\">{}</p>\n", escape(text)); }
+
+void HtmlReport::list(const std::vector<std::string>& items) {
+  if (items.empty()) return;
+  body_ += "<ul>\n";
+  for (const auto& item : items) body_ += fmt::format("<li>{}</li>\n", escape(item));
+  body_ += "</ul>\n";
+}
 
 void HtmlReport::facts(const std::vector<std::pair<std::string, std::string>>& items) {
   if (items.empty()) return;
@@ -476,12 +494,19 @@ void add_overview(HtmlReport& report, const RunReportInput& input, const SensedV
   const auto& result = input.result;
   report.section("Overview", "overview");
   if (input.assessment) {
+    const Assessment& assessment = *input.assessment;
+    int judged = 0;
     int failed = 0;
-    for (const auto& row : input.assessment->rows) failed += row.pass ? 0 : 1;
-    const bool pass = input.assessment->verdict == "fail" ? false : failed == 0;
-    report.verdict(pass ? Tone::Pass : Tone::Fail,
-                   fmt::format("{} ({} of {} limits met)", input.assessment->verdict,
-                               input.assessment->rows.size() - failed, input.assessment->rows.size()));
+    for (const auto& row : assessment.rows) {
+      judged += row.judged ? 1 : 0;
+      failed += row.judged && !row.pass ? 1 : 0;
+    }
+    const bool pass = assessment.verdict != "fail" && failed == 0 && assessment.failures.empty();
+    std::string text = judged == 0 ? std::string("no limit was judged (the case sets none)")
+                                   : fmt::format("{} of {} judged limits met", judged - failed, judged);
+    if (assessment.verdict != "pass" && assessment.verdict != "fail") text = assessment.verdict + "; " + text;
+    report.verdict(pass ? Tone::Pass : Tone::Fail, text);
+    report.list(assessment.failures);
   }
   std::vector<std::pair<std::string, std::string>> facts = {
       {"case file", input.circuit.spec().file},
@@ -490,6 +515,12 @@ void add_overview(HtmlReport& report, const RunReportInput& input, const SensedV
       {"solver", fmt::format("CVODE BDF, {} steps, {} events, rtol {:g}", result.statistics.steps,
                              result.statistics.events, input.circuit.spec().run.relative_tolerance)},
   };
+  const SequenceHints& hints = input.sequence;
+  if (!hints.outcome.empty()) {
+    facts.emplace_back("sequence", fmt::format("{} after {} attempt{}", hints.outcome, hints.attempts,
+                                               hints.attempts == 1 ? "" : "s"));
+  }
+  if (!hints.rule_text.empty()) facts.emplace_back("closing rule", hints.rule_text);
   if (sensed.pack) facts.emplace_back("pack voltage", pair_text(*sensed.pack));
   if (sensed.link) facts.emplace_back("link voltage", pair_text(*sensed.link));
   report.facts(facts);
@@ -562,9 +593,12 @@ void add_current_plots(HtmlReport& report, const RunReportInput& input, const so
     report.paragraph("The case has no contactor that conducts, so there are no contactor currents to plot.");
     return;
   }
-  report.line_plot(plot,
-                   "Current entering each contactor's first node. The roles are read from the waveform: the main "
-                   "contactor's closing precedes the largest current, and it bypasses the pre-charge contactor.");
+  const bool named = !input.sequence.main_contactor.empty() || !input.sequence.precharge_contactor.empty();
+  report.line_plot(plot, named ? "Current entering each contactor's first node; the roles are named by the case's "
+                                 "sequence block."
+                               : "Current entering each contactor's first node. The roles are read from the "
+                                 "waveform: the main contactor is the first whose closing bypasses another closed "
+                                 "contactor, the pre-charge contactor.");
   if (!roles.main_closed || roles.main < 0) {
     report.note("No main closure was found, so there is no closure close-up.");
     return;
@@ -620,22 +654,39 @@ void add_resistor_plots(HtmlReport& report, const RunReportInput& input, const s
 
 void add_limits(HtmlReport& report, const RunReportInput& input) {
   report.section("Metrics, limits and verdict", "limits-section");
-  if (!input.assessment || input.assessment->rows.empty()) {
-    report.paragraph(input.assessment ? "Verdict: " + input.assessment->verdict + " (no limits were judged)."
-                                      : "No metrics were judged against limits in this run.");
+  if (!input.assessment) {
+    report.paragraph("No metrics were judged against limits in this run.");
     return;
   }
-  ReportTable table;
-  table.id = "limits";
-  table.columns = {"metric", "value", "limit", "margin", "result"};
-  table.numeric_columns = {1, 3};
-  for (const auto& row : input.assessment->rows) {
-    table.rows.push_back({row.metric, quantity_text(row.value, row.unit), row.bound,
-                          quantity_text(row.margin, row.unit), row.pass ? "pass" : "FAIL"});
-    table.row_tones.push_back(row.pass ? Tone::Pass : Tone::Fail);
+  const Assessment& assessment = *input.assessment;
+  if (assessment.rows.empty()) {
+    report.paragraph("Verdict: " + assessment.verdict + ". The case sets no limits and its parts declare no ratings.");
+  } else {
+    ReportTable table;
+    table.id = "limits";
+    table.columns = {"metric", "value", "limit", "margin", "from", "result"};
+    table.numeric_columns = {1, 3};
+    for (const auto& row : assessment.rows) {
+      const std::string result = !row.judged ? "not judged" : row.pass ? "pass" : "FAIL";
+      table.rows.push_back({row.metric, metric_text(row.value, row.unit), row.bound,
+                            row.judged ? metric_text(row.margin, row.unit) : "-", row.source, result});
+      table.row_tones.push_back(!row.judged ? Tone::Plain : row.pass ? Tone::Pass : Tone::Fail);
+    }
+    report.table(table);
+    report.note("Margin is the distance from the value to the limit, positive inside it. A metric the run did not "
+                "reach (\"-\") is not judged; the sequence outcome judges that run.");
   }
-  report.table(table);
-  report.note("Margin is the distance from the value to the limit, positive inside it.");
+  if (!assessment.metrics.empty()) {
+    ReportTable metrics;
+    metrics.id = "metrics";
+    metrics.caption = "All metrics of the run";
+    metrics.columns = {"metric", "value", "definition"};
+    metrics.numeric_columns = {1};
+    for (const auto& metric : assessment.metrics) {
+      metrics.rows.push_back({metric.name, metric_text(metric.value, metric.unit), metric.definition});
+    }
+    report.table(metrics);
+  }
 }
 
 void add_energy(HtmlReport& report, const RunReportInput& input) {
@@ -685,6 +736,46 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
 }
 
 }  // namespace
+
+void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluation,
+                    const solver::SequenceReport* sequence) {
+  Assessment assessment;
+  assessment.verdict = evaluation.pass ? "pass" : "fail";
+  assessment.failures = evaluation.failures;
+  for (const auto& limit : evaluation.limits) {
+    LimitRow row;
+    row.metric = limit.metric;
+    row.value = limit.value;
+    row.unit = limit.unit;
+    row.bound = (limit.bound == "min" ? "\u2265 " : "\u2264 ") + metric_text(limit.limit, limit.unit);
+    if (limit.required_margin > 0.0) row.bound += fmt::format(" with {:g} % margin", 100.0 * limit.required_margin);
+    row.margin = limit.margin;
+    row.pass = limit.pass;
+    row.judged = limit.judged;
+    row.source = limit.source;
+    assessment.rows.push_back(row);
+  }
+  for (const auto& metric : evaluation.metrics.list()) {
+    assessment.metrics.push_back({metric.name, metric.value, metric.unit, metric.definition});
+  }
+  input.assessment = std::move(assessment);
+  if (sequence == nullptr) return;
+  const netlist::SequenceSpec& spec = sequence->spec;
+  SequenceHints& hints = input.sequence;
+  hints.main_contactor = spec.main;
+  hints.precharge_contactor = spec.precharge;
+  hints.precharge_resistor = spec.resistor;
+  hints.pack = NodePair{spec.pack.plus, spec.pack.minus};
+  hints.link = NodePair{spec.link.plus, spec.link.minus};
+  if (spec.rule == netlist::ClosingRule::Ratio) {
+    hints.closing_ratio = spec.rule_value;
+  } else {
+    hints.closing_difference = spec.rule_value;
+  }
+  hints.rule_text = spec.rule_text();
+  hints.outcome = sequence->outcome;
+  hints.attempts = sequence->attempts;
+}
 
 std::string run_report_html(const RunReportInput& input) {
   HtmlReport report(input.circuit.spec().title.empty() ? "linkrise run" : input.circuit.spec().title,

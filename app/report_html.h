@@ -15,9 +15,11 @@
 #include <vector>
 
 #include "analysis/energy_audit.h"
+#include "analysis/verdict.h"
 #include "app/svg_plot.h"
 #include "netlist/case.h"
 #include "solver/circuit.h"
+#include "solver/sequence_report.h"
 #include "solver/transient.h"
 #include "solver/waveform.h"
 
@@ -49,6 +51,8 @@ class HtmlReport {
   void paragraph(const std::string& text);
   /// Small muted text, e.g. how a plot's curves were chosen.
   void note(const std::string& text);
+  /// A bulleted list.
+  void list(const std::vector<std::string>& items);
   /// A two-column list of label/value pairs.
   void facts(const std::vector<std::pair<std::string, std::string>>& items);
   void table(const ReportTable& table);
@@ -81,17 +85,29 @@ class HtmlReport {
 /// One judged limit as the analyser reports it.
 struct LimitRow {
   std::string metric;
-  double value = 0.0;
+  double value = 0.0;  // NaN: not reached in the run
   std::string unit;
   std::string bound;    // as displayed, e.g. "<= 500 ms"
   double margin = 0.0;  // in the value's unit; positive means inside the limit
   bool pass = true;
+  bool judged = true;  // false: the metric was not reached, so the limit was not judged
+  std::string source;  // e.g. "limits block", "rating of r_pre"
+};
+
+/// One metric of the run with its definition.
+struct MetricRow {
+  std::string name;
+  double value = 0.0;  // NaN: not reached
+  std::string unit;
+  std::string definition;
 };
 
 /// Metrics judged against limits, with the overall verdict ("pass", "fail" or a sentence).
 struct Assessment {
   std::vector<LimitRow> rows;
   std::string verdict;
+  std::vector<std::string> failures;  // one line per reason the verdict failed
+  std::vector<MetricRow> metrics;     // every metric of the run, judged or not
 };
 
 /// A voltage between two nodes; an empty `minus` (or the ground node) is ground.
@@ -117,6 +133,9 @@ struct SequenceHints {
   std::optional<NodePair> link;
   std::optional<double> closing_ratio;       // closes when link >= ratio * pack (fraction)
   std::optional<double> closing_difference;  // closes when pack - link <= difference, V
+  std::string rule_text;                     // the closing rule in words
+  std::string outcome;                       // how the sequence ended: closed, timeout, no_rise, ...
+  int attempts = 0;
 };
 
 /// Pack and link voltage for the plots: the hints' pairs first; else, with a `sequence:` block, its sensed
@@ -155,6 +174,11 @@ struct RunReportInput {
   /// Metrics, limits and verdict when the analyser judged the run.
   std::optional<Assessment> assessment;
 };
+
+/// Fills `input.assessment` from the analyser's evaluation and, for a sequence case (`sequence` not null),
+/// `input.sequence` from the controller's report (named parts, sensed nodes, closing rule, outcome).
+void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluation,
+                    const solver::SequenceReport* sequence);
 
 /// The complete HTML report of one run.
 std::string run_report_html(const RunReportInput& input);

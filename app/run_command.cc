@@ -53,7 +53,11 @@ int run_command(const RunArguments& arguments) {
     outputs.add("summary.json", summary.dump(2) + "\n");
     // Built before anything is committed, so a failure leaves no half-written set.
     std::string report;
-    if (arguments.report) report = run_report_html({circuit, result, audit});
+    if (arguments.report) {
+      RunReportInput report_input(circuit, result, audit);
+      add_evaluation(report_input, evaluation, sequence_data);
+      report = run_report_html(report_input);
+    }
     outputs.commit();
     if (arguments.report) write_file_atomically(*arguments.report, report);
     if (!arguments.quiet) {

@@ -396,19 +396,25 @@ void vertical_markers(std::string& out, const PlotArea& area,
         coord(marker.pixel), coord(area.top), coord(area.bottom), marker_colour);
   }
   // Markers closer than a label's height share one label (events 1 ms apart
-  // on a 500 ms axis), placed at the group's first line, so none overprint.
+  // on a 500 ms axis): the first one's text and how many more the group
+  // holds, e.g. "close k_pre +2", placed at the group's first line.
   const double spacing = note_font + 3.0;
   for (std::size_t first = 0; first < placed.size();) {
     std::size_t last = first;
-    std::string label = placed[first].label;
-    while (last + 1 < placed.size() &&
-           placed[last + 1].pixel - placed[last].pixel < spacing) {
-      ++last;
-      if (!placed[last].label.empty() && placed[last].label != label) {
-        label += label.empty() ? "" : ", ";
-        label += placed[last].label;
+    std::string label;
+    int more = 0;
+    for (;;) {
+      if (!placed[last].label.empty()) {
+        if (label.empty()) label = placed[last].label;
+        else ++more;
       }
+      if (last + 1 >= placed.size() ||
+          placed[last + 1].pixel - placed[last].pixel >= spacing) {
+        break;
+      }
+      ++last;
     }
+    const std::string suffix = more > 0 ? fmt::format(" +{}", more) : "";
     if (!label.empty()) {
       // Rotated along the line so neighbouring markers' labels do not collide;
       // left of the line, unless that would cross the y axis.
@@ -418,7 +424,9 @@ void vertical_markers(std::string& out, const PlotArea& area,
                            : left;
       const double y = area.top + 6.0;
       text_element(out, x, y, "end", note_font, marker_colour,
-                   fit_text(label, note_font, area.height() - 12.0),
+                   fit_text(label, note_font,
+                            area.height() - 12.0 - text_width(suffix, note_font)) +
+                       suffix,
                    std::string(halo) + fmt::format(" transform=\"rotate(-90 {} {})\"",
                                       coord(x), coord(y)));
     }

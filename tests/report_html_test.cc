@@ -2,13 +2,18 @@
 // the run's numbers. The in-browser rendering is checked by report_browser_test.cc.
 #include "app/report_html.h"
 
+#include <algorithm>
 #include <cmath>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include <gtest/gtest.h>
 
 #include "analysis/energy_audit.h"
+#include "analysis/verdict.h"
+#include "netlist/sequence_spec.h"
+#include "solver/sequence_controller.h"
 #include "tests/circuit_fixture.h"
 #include "tests/xml_check.h"
 
@@ -239,21 +244,65 @@ TEST(RunReport, PrechargeOnlyRunHasNoMainClosure) {
 TEST(RunReport, LimitsTableAndVerdict) {
   const ReportedRun run(rc_case("RC pre-charge"));
   RunReportInput input(run.simulation.circuit, run.result, run.audit);
-  input.assessment = Assessment{{{"precharge_time", 0.05, "s", "<= 80 ms", 0.03, true},
-                                 {"resistor_energy", 80.0, "J", "<= 60 J", -20.0, false}},
-                                "fail"};
+  Assessment assessment;
+  assessment.verdict = "fail";
+  assessment.rows.push_back({"precharge_time", 0.05, "s", "<= 80 ms", 0.03, true, true, "limits block"});
+  assessment.rows.push_back({"resistor_energy", 80.0, "J", "<= 60 J", -20.0, false, true, "rating of r_pre"});
+  assessment.rows.push_back({"main_current", std::nan(""), "A", "<= 1 kA", std::nan(""), true, false, "limits block"});
+  assessment.failures.push_back("resistor_energy = 80 J is above its max 60 J");
+  input.assessment = assessment;
   input.closing_threshold = 380.0;
   const std::string html = run_report_html(input);
   const ParseResult doc = parse_xml(html);
   ASSERT_TRUE(doc.ok) << doc.error;
   const int limits = find_id(doc, "limits");
   ASSERT_GE(limits, 0);
-  EXPECT_EQ(body_rows(doc, limits), 2);
+  EXPECT_EQ(body_rows(doc, limits), 3);
   EXPECT_EQ(cell_text(doc, limits, 0, 1), "50 ms");
   EXPECT_EQ(cell_text(doc, limits, 1, 3), "-20 J");
-  EXPECT_EQ(cell_text(doc, limits, 1, 4), "FAIL");
-  EXPECT_NE(html.find("<p class=\"verdict fail\">FAIL \u2014 fail (1 of 2 limits met)</p>"), std::string::npos);
+  EXPECT_EQ(cell_text(doc, limits, 1, 4), "rating of r_pre");
+  EXPECT_EQ(cell_text(doc, limits, 1, 5), "FAIL");
+  EXPECT_EQ(cell_text(doc, limits, 2, 1), "-");
+  EXPECT_EQ(cell_text(doc, limits, 2, 5), "not judged");
+  EXPECT_NE(html.find("<p class=\"verdict fail\">FAIL \u2014 1 of 2 judged limits met</p>"),
+            std::string::npos);
+  EXPECT_NE(html.find("<li>resistor_energy = 80 J is above its max 60 J</li>"), std::string::npos);
   EXPECT_NE(html.find("closing threshold 380 V"), std::string::npos);  // the reference line's label
+}
+
+TEST(RunReport, SequenceCaseCarriesTheAnalysersVerdict) {
+  // A stored sequence case run as `linkrise run` does: controller, simulation, analyser.
+  const netlist::Case spec = netlist::load_case(LINKRISE_SOURCE_DIR "/cases/sequence_clean_close.yaml");
+  const solver::Circuit circuit(spec);
+  solver::Options options = solver::options_from(circuit);
+  const std::optional<netlist::SequenceSpec> sequence = netlist::read_sequence(spec);
+  ASSERT_TRUE(sequence.has_value());
+  solver::SequenceController controller(circuit, *sequence);
+  solver::attach(controller, options);
+  const solver::Result result = solver::simulate(circuit, options);
+  const analysis::EnergyAudit audit = analysis::audit_energy(circuit, result);
+  const solver::SequenceReport report = controller.report(result.end_time);
+  const analysis::Evaluation evaluation = analysis::evaluate(circuit, result, audit, &report);
+
+  RunReportInput input(circuit, result, audit);
+  add_evaluation(input, evaluation, &report);
+  EXPECT_EQ(input.sequence.main_contactor, "k_main");
+  EXPECT_EQ(input.sequence.precharge_resistor, "r_pre");
+  ASSERT_TRUE(input.sequence.closing_ratio.has_value());
+  EXPECT_DOUBLE_EQ(*input.sequence.closing_ratio, 0.95);
+
+  const std::string html = run_report_html(input);
+  const ParseResult doc = parse_xml(html);
+  ASSERT_TRUE(doc.ok) << doc.error;
+  EXPECT_EQ(body_rows(doc, find_id(doc, "limits")), static_cast<int>(evaluation.limits.size()));
+  EXPECT_EQ(body_rows(doc, find_id(doc, "metrics")), static_cast<int>(evaluation.metrics.list().size()));
+  EXPECT_EQ(body_rows(doc, find_id(doc, "timeline")), static_cast<int>(result.timeline.size()));
+  EXPECT_NE(html.find(evaluation.pass ? "<p class=\"verdict pass\">" : "<p class=\"verdict fail\">"),
+            std::string::npos);
+  EXPECT_NE(html.find("data-series=\"closing level (95 % of pack)\""), std::string::npos);
+  // Close-up at main closure (named by the sequence) and the resistor's temperature are drawn.
+  EXPECT_NE(html.find("Close-up at main closure"), std::string::npos);
+  EXPECT_NE(html.find("Resistor temperature"), std::string::npos);
 }
 
 TEST(HtmlReport, BuildingBlocks) {

@@ -1,5 +1,6 @@
 #include "app/svg_plot.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdlib>
 #include <map>
@@ -354,6 +355,32 @@ TEST(LinePlot, WellFormedSvgWithRequiredParts) {
   EXPECT_FALSE(texts.count("off-screen"));  // marker outside the x range
   EXPECT_EQ(svg.find("nan"), std::string::npos);
   EXPECT_EQ(svg.find("-0.00"), std::string::npos);
+}
+
+TEST(LinePlot, CrowdedMarkersShareOneLabel) {
+  // Plot area about 620 px for 2 ms: markers 5 us apart are under 2 px apart and must not overprint; the
+  // group is labelled by its first marker and the count of the others. A marker far away keeps its own label.
+  PlotSpec spec = three_point_spec();
+  spec.markers = {{0.0, "close k_neg"}, {0.000005, "close k_pre"}, {0.00001, "attempt starts"},
+                  {0.0015, "main closed"}};
+  const std::string svg = render_line_plot(spec);
+  const ParseResult doc = parse_xml(svg);
+  ASSERT_TRUE(doc.ok) << doc.error;
+  std::vector<std::string> rotated;
+  for (const Element* t : find_all(doc, "text")) {
+    if (t->attributes.count("transform")) rotated.push_back(t->text);
+  }
+  // The y-axis title is rotated too; marker labels are the others.
+  EXPECT_EQ(rotated.size(), 3u);
+  EXPECT_NE(std::find(rotated.begin(), rotated.end(), "close k_neg +2"), rotated.end());
+  EXPECT_NE(std::find(rotated.begin(), rotated.end(), "main closed"), rotated.end());
+  int dashed_lines = 0;
+  for (const Element* line : find_all(doc, "line")) {
+    if (line->attributes.count("stroke-dasharray") && line->attributes.at("stroke-dasharray") == "3 3") {
+      ++dashed_lines;
+    }
+  }
+  EXPECT_EQ(dashed_lines, 4);  // every marker still draws its line
 }
 
 TEST(LinePlot, PolylineCoordinatesMatchMapping) {
