@@ -226,7 +226,12 @@ std::string against(double value, double rating, const std::string& unit) {
 }  // namespace
 
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs) {
-  Tree root = netlist::load_yaml_file(case_file);
+  return detection_matrix(netlist::load_yaml_file(case_file), case_file, jobs);
+}
+
+// Extracted for `linkrise window` (app/fault_window.cc), which re-runs the scenarios on a case tree that
+// carries the recommended minimum time and timeout as overrides.
+DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jobs) {
   netlist::Case nominal = netlist::read_case(root, case_file);
   auto sequence = netlist::read_sequence(nominal);
   if (!sequence) {

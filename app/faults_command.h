@@ -25,6 +25,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "netlist/tree.h"
+
 namespace linkrise::app {
 
 struct FaultsArguments {
@@ -63,6 +65,8 @@ struct DetectionMatrix {
 /// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
 /// netlist::InputError for a bad case or scenario.
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
+/// The same on a case already held as a tree (e.g. with overrides applied); `case_file` names it in messages.
+DetectionMatrix detection_matrix(netlist::Tree root, const std::string& case_file, int jobs = 1);
 
 std::string matrix_text(const DetectionMatrix& matrix);
 std::string matrix_csv(const DetectionMatrix& matrix);

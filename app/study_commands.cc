@@ -39,12 +39,21 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   spread_cli_->add_option("case", spread_.case_file, "case file (YAML) with a tolerances block")->required();
   add_population(spread_cli_, spread_);
 
+  window_cli_ = cli.add_subcommand(
+      "window", "recommend the BMS minimum time and timeout from the spread, then verify them on the fault scenarios");
+  window_cli_->add_option("case", window_.spread.case_file, "case file (YAML) with sequence and tolerances blocks")
+      ->required();
+  add_population(window_cli_, window_.spread);
+  window_cli_->add_option("--margin", window_.margin, "margin below the fastest and above the slowest charge, e.g. 20%")
+      ->capture_default_str();
+
 }
 
 std::optional<int> StudyCommands::dispatch() const {
   if (compare_cli_->parsed()) return compare_command(compare_);
   if (sweep_cli_->parsed()) return sweep_command(sweep_);
   if (spread_cli_->parsed()) return spread_command(spread_);
+  if (window_cli_->parsed()) return window_command(window_);
   return std::nullopt;
 }
 

@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include "app/compare_command.h"
+#include "app/fault_window.h"
 #include "app/spread_command.h"
 #include "app/sweep_command.h"
 
@@ -21,9 +22,11 @@ class StudyCommands {
   CompareArguments compare_;
   SweepArguments sweep_;
   SpreadArguments spread_;
+  WindowArguments window_;
   CLI::App* compare_cli_ = nullptr;
   CLI::App* sweep_cli_ = nullptr;
   CLI::App* spread_cli_ = nullptr;
+  CLI::App* window_cli_ = nullptr;
 };
 
 }  // namespace linkrise::app

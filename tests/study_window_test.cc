@@ -1,0 +1,74 @@
+// The fault window (app/fault_window.h): recommended from the spread by the stated rule, and verified by
+// re-running the fault scenarios with it.
+#include "app/fault_window.h"
+
+#include <cmath>
+
+#include <gtest/gtest.h>
+
+#include "study_fixture.h"
+
+namespace linkrise::app {
+namespace {
+using study_test::rc_case_text;
+using study_test::to_95_percent;
+using study_test::write_case;
+
+const DetectionRow* row(const DetectionMatrix& matrix, const std::string& name) {
+  for (const auto& r : matrix.rows) {
+    if (r.scenario == name) return &r;
+  }
+  return nullptr;
+}
+
+// RC case, corners of R ±10 % and C −20/+10 %: the fastest crossing is −R_min·C_min·ln(0.05) (RC closed form,
+// check-values.md) and the slowest decision is the first 1 ms BMS sample at or after −R_max·C_max·ln(0.05).
+// With a 20 % margin: minimum_time = ⌊0.8·fastest⌋ and timeout = ⌈1.2·slowest⌉ in whole milliseconds.
+TEST(StudyWindow, RecommendationFollowsTheRcExtremesAndCatchesTheFaults) {
+  std::string file = write_case("study_rc_window.yaml",
+                                rc_case_text("  r_pre.resistance: {plus_minus: 10 %}\n"
+                                             "  link.capacitance: {minus: 20 %, plus: 10 %}\n"
+                                             // A doubled link lies outside the band the window is set for, so
+                                             // with one attempt the window must now catch it as a timeout.
+                                             "scenarios:\n  - {name: oversize_capacitance, expect: timeout}\n"));
+  FaultWindow window = fault_window(file, {}, spread_plan(true, 0, 1, ""), 0.2, 2);
+  double fastest = 90.0 * 0.8e-3 * to_95_percent();   // 215.7 ms
+  double slowest = std::ceil(110.0 * 1.1e-3 * to_95_percent() / 1e-3) * 1e-3;  // 363 ms
+  EXPECT_NEAR(window.fastest, fastest, 1e-6 * fastest);
+  EXPECT_NEAR(window.slowest, slowest, 1e-9);
+  EXPECT_NEAR(window.minimum_time, std::floor(0.8 * fastest / 1e-3) * 1e-3, 1e-12);
+  EXPECT_NEAR(window.timeout, std::ceil(1.2 * slowest / 1e-3) * 1e-3, 1e-12);
+  EXPECT_TRUE(window.problems.empty());
+  ASSERT_EQ(window.extreme_outcomes, (std::vector<std::string>{"closed", "closed"}));
+  // No rise check in this case, so the short and the open resistor end in the timeout — at the timeout.
+  const DetectionRow* shorted = row(window.matrix, "shorted_link");
+  ASSERT_NE(shorted, nullptr);
+  EXPECT_EQ(shorted->actual, "timeout");
+  EXPECT_NEAR(shorted->detection_time, window.timeout, 1e-9);
+  const DetectionRow* missing = row(window.matrix, "missing_capacitance");
+  ASSERT_NE(missing, nullptr);
+  EXPECT_EQ(missing->actual, "too_fast");
+  EXPECT_EQ(row(window.matrix, "oversize_capacitance")->actual, "timeout");
+  EXPECT_TRUE(window.verified()) << matrix_text(window.matrix);
+}
+
+// The stored study case: the recommended window catches every stored fault scenario of the case.
+TEST(StudyWindow, StoredCaseWindowIsVerified) {
+  std::string file = std::string(LINKRISE_SOURCE_DIR) + "/cases/study_precharge_window.yaml";
+  Spread spread;
+  FaultWindow window = fault_window(file, {}, spread_plan(true, 0, 1, ""), 0.2, 2, &spread);
+  EXPECT_TRUE(window.problems.empty());
+  EXPECT_LT(window.minimum_time, window.fastest * 0.8 + 1e-12);
+  EXPECT_GT(window.timeout, window.slowest * 1.2 - 1e-12);
+  ASSERT_FALSE(window.matrix.rows.empty());
+  for (const auto& r : window.matrix.rows) {
+    if (r.applicable) EXPECT_TRUE(r.pass) << r.scenario << ": " << r.actual << " instead of " << r.expected;
+  }
+  EXPECT_TRUE(window.verified()) << window_text(window, spread);
+  // Too wide a margin for the sample period is reported, not silently clamped.
+  FaultWindow wide = recommend_window(spread, 0.999, 5e-3);
+  EXPECT_FALSE(wide.problems.empty());
+}
+
+}  // namespace
+}  // namespace linkrise::app
