@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "analysis/energy_audit.h"
+#include "app/case_run.h"
 #include "app/exit_codes.h"
 #include "app/output_files.h"
 #include "app/report_html.h"
@@ -13,9 +14,7 @@
 #include "app/verdict_summary.h"
 #include "app/waveform_csv.h"
 #include "netlist/parameter_reader.h"
-#include "netlist/sequence_spec.h"
 #include "solver/circuit.h"
-#include "solver/sequence_controller.h"
 #include "solver/transient.h"
 
 namespace linkrise::app {
@@ -23,28 +22,27 @@ namespace linkrise::app {
 int run_command(const RunArguments& arguments) {
   try {
     netlist::Case spec = netlist::load_case(arguments.case_file);
-    solver::Circuit circuit(spec);
-    solver::Options options = solver::options_from(circuit);
+    std::optional<double> sample;
     if (arguments.sample) {
       netlist::Tree node = netlist::Tree::scalar(*arguments.sample, netlist::SourceMark{"--sample", 0, 0});
-      options.sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Positive,
-                                                            "option --sample");
+      sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Positive,
+                                                    "option --sample");
     }
-    if (arguments.relative_tolerance) options.relative_tolerance = *arguments.relative_tolerance;
-    if (arguments.absolute_tolerance) options.absolute_tolerance = *arguments.absolute_tolerance;
-    std::optional<netlist::SequenceSpec> sequence = netlist::read_sequence(spec);
-    std::optional<solver::SequenceController> controller;
-    if (sequence) solver::attach(controller.emplace(circuit, *sequence), options);
-    solver::Result result = solver::simulate(circuit, options);
-    analysis::EnergyAudit audit = analysis::audit_energy(circuit, result);
-    if (result.outcome == solver::Outcome::SolverFailure) {
+    CaseRun run(spec, [&](solver::Options& options) {
+      if (sample) options.sample = sample;
+      if (arguments.relative_tolerance) options.relative_tolerance = *arguments.relative_tolerance;
+      if (arguments.absolute_tolerance) options.absolute_tolerance = *arguments.absolute_tolerance;
+    });
+    const solver::Circuit& circuit = run.circuit();
+    const solver::Options& options = run.options();
+    const solver::Result& result = run.result();
+    const analysis::EnergyAudit& audit = run.audit();
+    if (run.solver_failed()) {
       std::cerr << fmt::format("linkrise: solver failure in '{}': {}\n", arguments.case_file, result.message);
       return kExitSolverFailure;
     }
-    std::optional<solver::SequenceReport> sequence_report;
-    if (controller) sequence_report = controller->report(result.end_time);
-    const solver::SequenceReport* sequence_data = sequence_report ? &*sequence_report : nullptr;
-    analysis::Evaluation evaluation = analysis::evaluate(circuit, result, audit, sequence_data);
+    const solver::SequenceReport* sequence_data = run.report();
+    const analysis::Evaluation& evaluation = run.evaluation();
     nlohmann::json summary = run_summary(circuit, result, audit);
     add_verdict(summary, evaluation);
     if (sequence_data) add_sequence(summary, *sequence_data, result, evaluation);

@@ -4,7 +4,6 @@
 //
 // Two Chromium invocations in all (a few seconds each). Chromium missing is a failure, not a skip: the test
 // exists to prove the report renders.
-#include <dlfcn.h>
 #include <png.h>
 #include <unistd.h>
 
@@ -67,8 +66,7 @@ int run_chromium(const std::string& chromium, const fs::path& profile, const std
   return std::system(command.c_str());
 }
 
-// The screenshot decoded by Debian's libpng (simplified API), loaded at run time so the test binary needs no
-// extra link dependency. Pixels as RGB, row-major.
+// The screenshot decoded by Debian's libpng (simplified API). Pixels as RGB, row-major.
 struct Image {
   unsigned width = 0;
   unsigned height = 0;
@@ -78,19 +76,9 @@ struct Image {
 
 Image decode_png(const fs::path& path) {
   Image image;
-  void* library = ::dlopen("libpng16.so.16", RTLD_NOW);
-  if (library == nullptr) {
-    image.error = "cannot load libpng16.so.16 (Debian package libpng16-16): " + std::string(::dlerror());
-    return image;
-  }
-  auto begin = reinterpret_cast<decltype(&png_image_begin_read_from_file)>(
-      ::dlsym(library, "png_image_begin_read_from_file"));
-  auto finish = reinterpret_cast<decltype(&png_image_finish_read)>(::dlsym(library, "png_image_finish_read"));
-  auto release = reinterpret_cast<decltype(&png_image_free)>(::dlsym(library, "png_image_free"));
-  if (begin == nullptr || finish == nullptr || release == nullptr) {
-    image.error = "libpng lacks the simplified read API";
-    return image;
-  }
+  auto begin = &png_image_begin_read_from_file;
+  auto finish = &png_image_finish_read;
+  auto release = &png_image_free;
   png_image png{};
   png.version = PNG_IMAGE_VERSION;
   if (begin(&png, path.c_str()) == 0) {
