@@ -2,7 +2,7 @@
 # Installs the Debian packages linkrise needs to build and test, only when some are missing.
 set -euo pipefail
 packages=(build-essential cmake libeigen3-dev libsundials-dev libyaml-cpp-dev libgtest-dev libcli11-dev
-  nlohmann-json3-dev libfmt-dev libbenchmark-dev libgsl-dev chromium libpng-dev ${LINKRISE_EXTRA_PACKAGES:-})
+  nlohmann-json3-dev libfmt-dev libbenchmark-dev libgsl-dev chromium fonts-liberation libpng-dev ${LINKRISE_EXTRA_PACKAGES:-})
 missing=()
 for package in "${packages[@]}"; do
   if ! dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed"; then
