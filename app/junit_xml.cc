@@ -2,29 +2,11 @@
 
 #include <fmt/format.h>
 
+#include "app/svg_plot.h"
+
 namespace linkrise::app {
 
-std::string xml_escape(const std::string& text) {
-  std::string out;
-  out.reserve(text.size());
-  for (char c : text) {
-    switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      case '\'': out += "&apos;"; break;
-      default:
-        // XML 1.0 forbids most control characters; keep tab and newlines.
-        if (static_cast<unsigned char>(c) < 0x20 && c != '\t' && c != '\n' && c != '\r') {
-          out += ' ';
-        } else {
-          out += c;
-        }
-    }
-  }
-  return out;
-}
+std::string xml_escape(const std::string& text) { return escape_xml(text); }
 
 std::string junit_xml(const std::string& suite, const std::vector<JunitCase>& cases) {
   int failures = 0, errors = 0;
