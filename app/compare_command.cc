@@ -156,7 +156,7 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
   for (const auto& variant : variants) comparison.names.push_back(variant.name);
   comparison.results = run_study(case_file, trees.size(), [&](std::size_t i) { return trees[i]; }, jobs);
   reject_input_errors(comparison.results, case_file,
-                      [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : "variant '" + comparison.names[i] + "'"; });
+                      [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
   return comparison;
 }
 
@@ -203,22 +203,22 @@ std::string comparison_text(const VariantComparison& comparison) {
 
 std::string comparison_csv(const VariantComparison& comparison) {
   std::string out = "metric,unit,better";
-  for (const auto& name : comparison.names) out += "," + csv_text(name);
+  for (const auto& name : comparison.names) out.append(",").append(csv_text(name));
   out += ",best\n";
   const StudyResults& results = comparison.results;
   for (std::size_t c = 0; c < results.columns.size(); ++c) {
     const auto& column = results.columns[c];
     out += fmt::format("{},{},{}", csv_text(column.name), csv_text(column.unit),
                        larger_is_better(column.name) ? "larger" : "smaller");
-    for (const auto& point : results.points) out += "," + csv_number(point.values[c]);
+    for (const auto& point : results.points) out.append(",").append(csv_number(point.values[c]));
     std::string best;
-    for (std::size_t i : comparison.best(c)) best += (best.empty() ? "" : ";") + comparison.names[i];
-    out += "," + csv_text(best) + "\n";
+    for (std::size_t i : comparison.best(c)) best.append(best.empty() ? "" : ";").append(comparison.names[i]);
+    out.append(",").append(csv_text(best) + "\n");
   }
   out += "outcome,,";
-  for (const auto& point : results.points) out += "," + csv_text(point.evaluated() ? point.outcome : "");
+  for (const auto& point : results.points) out.append(",").append(csv_text(point.evaluated() ? point.outcome : ""));
   out += ",\nverdict,,";
-  for (const auto& point : results.points) out += "," + csv_text(verdict_cell(point));
+  for (const auto& point : results.points) out.append(",").append(csv_text(verdict_cell(point)));
   out += ",\n";
   return out;
 }

@@ -236,20 +236,20 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
 std::string spread_csv(const Spread& spread) {
   std::string out = spread.plan.corners ? "corner" : "sample";
   for (const auto& t : spread.tolerances) {
-    out += "," + csv_text(fmt::format("{} [{}]", t.path, t.absolute_temperature ? "degC" : t.dimension.symbol()));
+    out.append(",").append(csv_text(fmt::format("{} [{}]", t.path, t.absolute_temperature ? "degC" : t.dimension.symbol())));
   }
   out += ",status,outcome,verdict";
-  for (const auto& column : spread.results.columns) out += "," + csv_text(fmt::format("{} [{}]", column.name, column.unit));
+  for (const auto& column : spread.results.columns) out.append(",").append(csv_text(fmt::format("{} [{}]", column.name, column.unit)));
   out += "\n";
   for (std::size_t p = 0; p < spread.results.points.size(); ++p) {
     const PointResult& point = spread.results.points[p];
     out += std::to_string(spread.index(p));
     for (std::size_t j = 0; j < spread.tolerances.size(); ++j) {
       double v = spread_value(spread.tolerances, spread.plan, spread.index(p), j);
-      out += "," + csv_number(spread.tolerances[j].absolute_temperature ? v - 273.15 : v);
+      out.append(",").append(csv_number(spread.tolerances[j].absolute_temperature ? v - 273.15 : v));
     }
     out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(point.verdict));
-    for (double value : point.values) out += "," + csv_number(value);
+    for (double value : point.values) out.append(",").append(csv_number(value));
     out += "\n";
   }
   return out;

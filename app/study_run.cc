@@ -179,7 +179,7 @@ std::string text_table(const std::vector<std::string>& header, const std::vector
     for (std::size_t i = 0; i < widths.size(); ++i) {
       std::string cell = i < row.size() ? row[i] : "";
       std::string pad(widths[i] - std::min(widths[i], width(cell)), ' ');
-      out += " " + (i < left ? cell + pad : pad + cell);
+      out.append(" ").append((i < left ? cell + pad : pad + cell));
     }
     while (!out.empty() && out.back() == ' ') out.pop_back();
     return out + "\n";

@@ -84,18 +84,18 @@ std::string sweep_text(const Sweep& sweep, const std::vector<std::string>& metri
 
 std::string sweep_csv(const Sweep& sweep) {
   std::string out = "point";
-  for (const auto& parameter : sweep.parameters) out += "," + csv_text(parameter.path);
+  for (const auto& parameter : sweep.parameters) out.append(",").append(csv_text(parameter.path));
   out += ",status,outcome,verdict";
-  for (const auto& column : sweep.results.columns) out += "," + csv_text(fmt::format("{} [{}]", column.name, column.unit));
+  for (const auto& column : sweep.results.columns) out.append(",").append(csv_text(fmt::format("{} [{}]", column.name, column.unit)));
   out += "\n";
   for (std::size_t i = 0; i < sweep.points.size(); ++i) {
     const PointResult& point = sweep.results.points[i];
     out += std::to_string(i + 1);
     for (std::size_t p = 0; p < sweep.parameters.size(); ++p) {
-      out += "," + csv_text(sweep.parameters[p].values[sweep.points[i][p]]);
+      out.append(",").append(csv_text(sweep.parameters[p].values[sweep.points[i][p]]));
     }
     out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(point.verdict));
-    for (double value : point.values) out += "," + csv_number(value);
+    for (double value : point.values) out.append(",").append(csv_number(value));
     out += "\n";
   }
   return out;

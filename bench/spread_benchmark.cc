@@ -10,7 +10,7 @@
 namespace {
 
 void SpreadMonteCarlo(benchmark::State& state) {
-  const std::string file = std::string(LINKRISE_SOURCE_DIR) + "/cases/study_precharge_window.yaml";
+  const std::string file = LINKRISE_SOURCE_DIR "/cases/study_precharge_window.yaml";
   linkrise::app::SpreadPlan plan;
   plan.samples = static_cast<std::size_t>(state.range(0));
   plan.seed = 1;

@@ -54,7 +54,7 @@ TEST(StudyWindow, RecommendationFollowsTheRcExtremesAndCatchesTheFaults) {
 
 // The stored study case: the recommended window catches every stored fault scenario of the case.
 TEST(StudyWindow, StoredCaseWindowIsVerified) {
-  std::string file = std::string(LINKRISE_SOURCE_DIR) + "/cases/study_precharge_window.yaml";
+  std::string file = LINKRISE_SOURCE_DIR "/cases/study_precharge_window.yaml";
   Spread spread;
   FaultWindow window = fault_window(file, {}, spread_plan(true, 0, 1, ""), 0.2, 2, &spread);
   EXPECT_TRUE(window.problems.empty());
@@ -62,7 +62,9 @@ TEST(StudyWindow, StoredCaseWindowIsVerified) {
   EXPECT_GT(window.timeout, window.slowest * 1.2 - 1e-12);
   ASSERT_FALSE(window.matrix.rows.empty());
   for (const auto& r : window.matrix.rows) {
-    if (r.applicable) EXPECT_TRUE(r.pass) << r.scenario << ": " << r.actual << " instead of " << r.expected;
+    if (r.applicable) {
+      EXPECT_TRUE(r.pass) << r.scenario << ": " << r.actual << " instead of " << r.expected;
+    }
   }
   EXPECT_TRUE(window.verified()) << window_text(window, spread);
   // Too wide a margin for the sample period is reported, not silently clamped.
