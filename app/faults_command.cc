@@ -13,6 +13,7 @@
 #include "analysis/metrics.h"
 #include "app/case_run.h"
 #include "app/exit_codes.h"
+#include "app/faults_report.h"
 #include "app/output_files.h"
 #include "app/run_summary.h"
 #include "netlist/case.h"
@@ -29,6 +30,11 @@ bool DetectionMatrix::pass() const {
 
 bool DetectionMatrix::solver_failure() const {
   return std::any_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.actual == "solver_failure"; });
+}
+
+const DetectionRow* DetectionMatrix::find(const std::string& scenario) const {
+  auto found = std::find_if(rows.begin(), rows.end(), [&](const DetectionRow& row) { return row.scenario == scenario; });
+  return found == rows.end() ? nullptr : &*found;
 }
 
 namespace {
@@ -200,6 +206,7 @@ void run_row(Planned& p) {
   row.actual = report.outcome;
   row.attempts = report.attempts;
   row.detection_time = report.first_fault_time;
+  keep_link_trace(row, run.result(), sequence, report.ground);  // for the HTML report's plots
   if (p.expect_from_stall && evaluation.stall) {
     row.expected = outcome_from_stall(*evaluation.stall, sequence, row.note);
   }
@@ -284,6 +291,14 @@ DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jo
   return matrix;
 }
 
+std::vector<std::string> failure_reasons(const DetectionRow& row) {
+  std::vector<std::string> reasons;
+  if (!row.applicable || row.pass) return reasons;
+  if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual, row.expected));
+  if (!row.resistor_survived) reasons.push_back("the resistor exceeded its rating before the fault was cleared");
+  return reasons;
+}
+
 std::string matrix_text(const DetectionMatrix& matrix) {
   std::string out = fmt::format("linkrise faults — {}\n", matrix.title);
   out += fmt::format("  pre-charge resistor: {} (peak temperature and energy / rating)\n", matrix.resistor);
@@ -297,12 +312,7 @@ std::string matrix_text(const DetectionMatrix& matrix) {
                        against(row.energy, row.energy_rating, "J"), result);
     if (!row.applicable || !row.note.empty() || (row.applicable && !row.pass)) {
       std::string why = row.note;
-      if (row.applicable && !row.pass) {
-        std::vector<std::string> reasons;
-        if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual, row.expected));
-        if (!row.resistor_survived) reasons.push_back("the resistor exceeded its rating before the fault was cleared");
-        for (const auto& reason : reasons) why += (why.empty() ? "" : "; ") + reason;
-      }
+      for (const auto& reason : failure_reasons(row)) why += (why.empty() ? "" : "; ") + reason;
       if (!why.empty()) out += fmt::format("      {}\n", why);
     }
   }
@@ -364,10 +374,13 @@ int faults_command(const FaultsArguments& arguments) {
     outputs.add("faults.json", matrix_json(matrix).dump(2) + "\n");
     outputs.add("faults.csv", matrix_csv(matrix));
     outputs.commit();
+    // After the other outputs, so a failed run leaves no report (docs/report.md).
+    if (arguments.report) write_file_atomically(*arguments.report, faults_report_html(matrix));
     if (!arguments.quiet) {
       std::cout << matrix_text(matrix);
       std::cout << fmt::format("  wrote     {} and {}\n", outputs.path("faults.json").string(),
                                outputs.path("faults.csv").string());
+      if (arguments.report) std::cout << fmt::format("  report    {}\n", *arguments.report);
     }
     if (matrix.solver_failure()) return kExitSolverFailure;
     return matrix.pass() ? kExitOk : kExitLimitFailed;

@@ -17,9 +17,10 @@
 // A scenario the case lacks the structure for (no capacitor, no constant-power load, no diode across the link)
 // is reported as not applicable with the reason. The case's `scenarios:` add rows or change a built-in's
 // expectation (netlist/scenario_spec.h).
-// Writes faults.json and faults.csv. Exit 0 when every applicable row passes, 1 otherwise, 2 for bad input,
-// 3 when the solver failed in a scenario.
+// Writes faults.json and faults.csv, and with --report an HTML report (app/faults_report.h). Exit 0 when every
+// applicable row passes, 1 otherwise, 2 for bad input, 3 when the solver failed in a scenario.
 #include <limits>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -34,6 +35,7 @@ struct FaultsArguments {
   std::string output_directory = "out";
   int jobs = 0;  // 0: one per hardware thread
   bool quiet = false;
+  std::optional<std::string> report;  // HTML report file (app/faults_report.h)
 };
 
 struct DetectionRow {
@@ -51,6 +53,10 @@ struct DetectionRow {
   double energy_rating = std::numeric_limits<double>::quiet_NaN();
   bool resistor_survived = true;
   bool pass = true;
+  // For the HTML report only (app/faults_report.h): the sensed link voltage over the scenario's run, reduced
+  // to a few samples per drawing column (at most 2400 points), so a matrix stays small in memory.
+  std::vector<double> link_time;     // s
+  std::vector<double> link_voltage;  // V
 };
 
 struct DetectionMatrix {
@@ -60,6 +66,8 @@ struct DetectionMatrix {
   std::vector<DetectionRow> rows;
   bool pass() const;
   bool solver_failure() const;
+  /// The row of a scenario; null when there is none.
+  const DetectionRow* find(const std::string& scenario) const;
 };
 
 /// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
@@ -67,6 +75,9 @@ struct DetectionMatrix {
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
 /// The same on a case already held as a tree (e.g. with overrides applied); `case_file` names it in messages.
 DetectionMatrix detection_matrix(netlist::Tree root, const std::string& case_file, int jobs = 1);
+
+/// Why an applicable row failed, one phrase per reason (empty for a passing row).
+std::vector<std::string> failure_reasons(const DetectionRow& row);
 
 std::string matrix_text(const DetectionMatrix& matrix);
 std::string matrix_csv(const DetectionMatrix& matrix);

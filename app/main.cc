@@ -39,6 +39,7 @@ int main(int argc, char** argv) {
   faults_cli->add_option("case", faults.case_file, "case file (YAML) with a sequence block")->required();
   faults_cli->add_option("-o,--output", faults.output_directory, "output directory")->capture_default_str();
   faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
+  faults_cli->add_option("--report", faults.report, "also write a self-contained HTML report to this file");
   faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");
 
   StudyCommands studies(cli);  // compare, sweep, spread, window (app/study_commands.h)

@@ -2,9 +2,10 @@
 // Chromium (Debian's package, installed by `make test`) dumps the DOM it built and takes a screenshot.
 // Asserts that the browser saw every plot and table row, and that the screenshot shows the curves.
 //
-// Two Chromium invocations in all (a few seconds each). Chromium missing is a failure, not a skip: the test
-// exists to prove the report renders.
+// Three Chromium invocations in all (a few seconds each): DOM and screenshot of the run report, DOM of the
+// detection-matrix report. Chromium missing is a failure, not a skip: the test exists to prove the reports render.
 #include <png.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include <array>
@@ -180,6 +181,46 @@ TEST(ReportBrowser, ChromiumRendersTheDemoReport) {
   EXPECT_GT(pixels_near(image, 0xc0562a, 24), 500);
   // Text: near-#262626 pixels of the body text spread over the page (measured about 22 000).
   EXPECT_GT(pixels_near(image, 0x262626, 40), 5000);
+
+  std::error_code ignored;
+  if (!::testing::Test::HasFailure()) fs::remove_all(work, ignored);
+}
+
+// The detection-matrix report (app/faults_report.h) of the deliberately failing design: the browser built one
+// matrix row per scenario of faults.json, the failing rows with their class and word, and every plot.
+TEST(ReportBrowser, ChromiumRendersTheFaultsReport) {
+  const std::string chromium = find_chromium();
+  ASSERT_FALSE(chromium.empty()) << "Chromium is not installed (/usr/bin/chromium); as root: apt-get install chromium";
+  const fs::path work = fs::temp_directory_path() / fmt::format("linkrise-faults-browser-{}", ::getpid());
+  fs::remove_all(work);
+  fs::create_directories(work);
+  const fs::path report = work / "faults.html";
+  const fs::path log = work / "chromium.log";
+  const std::string run =
+      fmt::format("'{}' faults '{}/cases/sequence_bad_design.yaml' -o {} -q --report {}", LINKRISE_BINARY,
+                  LINKRISE_SOURCE_DIR, quoted(work / "out"), quoted(report));
+  const int status = std::system(run.c_str());
+  ASSERT_TRUE(WIFEXITED(status)) << run;
+  ASSERT_EQ(WEXITSTATUS(status), 1) << run;  // the matrix fails, and the report is still written
+  const std::string html = read_text(report);
+  const nlohmann::json matrix = nlohmann::json::parse(read_text(work / "out" / "faults.json"));
+  int failing = 0;
+  for (const auto& row : matrix.at("rows")) failing += row.at("pass").get<bool>() ? 0 : 1;
+  ASSERT_GT(failing, 0);
+
+  const fs::path dom_file = work / "dom.html";
+  ASSERT_EQ(run_chromium(chromium, work / "profile-dom", "--dump-dom", report, dom_file, log), 0)
+      << read_text(log);
+  const std::string dom = read_text(dom_file);
+  EXPECT_EQ(table_body_rows(dom, "matrix"), static_cast<int>(matrix.at("rows").size()));
+  const std::size_t start = dom.find("<table id=\"matrix\"");
+  ASSERT_NE(start, std::string::npos);
+  const std::string table = dom.substr(start, dom.find("</table>", start) - start);
+  EXPECT_EQ(count(table, "<tr class=\"fail\">"), failing);
+  EXPECT_EQ(count(table, "<td>FAIL</td>"), failing);
+  EXPECT_GE(count(html, "<svg "), 1);
+  EXPECT_EQ(count(dom, "<svg "), count(html, "<svg "));
+  EXPECT_NE(dom.find("High-voltage caution"), std::string::npos);
 
   std::error_code ignored;
   if (!::testing::Test::HasFailure()) fs::remove_all(work, ignored);
