@@ -163,20 +163,25 @@ int check_command(const CheckArguments& arguments) {
       }
       Golden updated = golden_from(check.evaluation.outcome, check.evaluation.verdict, check.evaluation.metrics,
                                    check.has_golden ? &check.golden : nullptr);
-      std::vector<Comparison> changes;
       if (check.has_golden) {
-        for (const auto& row : compare_with_golden(check.golden, check.evaluation.outcome, check.evaluation.verdict,
-                                                   check.evaluation.metrics)) {
-          bool exact = row.actual == row.expected || (row.deviation == 0.0 && row.pass);
-          if (!exact) changes.push_back(row);
+        // Every stored value that differs in the digits the golden file keeps, however small the change.
+        std::vector<std::string> changes;
+        if (check.golden.outcome != updated.outcome)
+          changes.push_back(fmt::format("  {:<34} {} -> {}", "outcome", check.golden.outcome, updated.outcome));
+        if (check.golden.verdict != updated.verdict)
+          changes.push_back(fmt::format("  {:<34} {} -> {}", "verdict", check.golden.verdict, updated.verdict));
+        for (const auto& old_metric : check.golden.metrics) {
+          const GoldenMetric* now = nullptr;
+          for (const auto& metric : updated.metrics) {
+            if (metric.name == old_metric.name) now = &metric;
+          }
+          std::string before = fmt::format("{:.10g} {}", old_metric.value, old_metric.unit);
+          std::string after = now ? fmt::format("{:.10g} {}", now->value, now->unit) : std::string("(dropped)");
+          if (before != after) changes.push_back(fmt::format("  {:<34} {} -> {}", old_metric.name, before, after));
         }
-        if (changes.empty() && check.golden.metrics.size() == updated.metrics.size()) {
-          continue;  // nothing moved: leave the file alone
-        }
+        if (changes.empty()) continue;  // nothing moved: leave the file alone
         std::cout << fmt::format("updating {}:\n", golden_path(check.file).string());
-        for (const auto& row : changes) {
-          std::cout << fmt::format("  {:<34} {} -> {}\n", row.item, row.expected, row.actual);
-        }
+        for (const auto& line : changes) std::cout << line << "\n";
       } else {
         std::cout << fmt::format("creating {} with {} metric(s), outcome {}, verdict {}\n",
                                  golden_path(check.file).string(), updated.metrics.size(), updated.outcome,

@@ -1,5 +1,7 @@
 #include "models/contactor.h"
 
+#include <cmath>
+
 #include <fmt/format.h>
 
 namespace linkrise::models {
@@ -21,6 +23,7 @@ class Contactor final : public Part {
     timing_.bounce_count = reader.count("bounce_count", 0, 0);
     timing_.bounce_interval =
         reader.quantity("bounce_interval", Dimension::time(), Bound::Positive, timing_.bounce_interval);
+    parting_time_ = reader.quantity("parting_time", Dimension::time(), Bound::NonNegative, 0.0);
     if (open_resistance_ <= closed_resistance_) {
       reader.fail("open_resistance", "must be larger than closed_resistance",
                   "an open contact is an insulator: use e.g. '100 MOhm'");
@@ -29,40 +32,76 @@ class Contactor final : public Part {
   }
 
  private:
+  static constexpr int kOpen = 0, kClosed = 1, kParting = 2;
+  bool parts_gradually() const { return parting_time_ > 0.0; }
+  // ln(R_open / R_closed): the parting resistance is R_closed·exp(progress·span).
+  double span() const { return std::log(open_resistance_ / closed_resistance_); }
   double resistance(const Point& point, const Layout& layout) const {
-    return point.modes[layout.mode] != 0 ? closed_resistance_ : open_resistance_;
+    int mode = point.modes[layout.mode];
+    if (mode == kClosed) return closed_resistance_;
+    if (mode == kParting) return closed_resistance_ * std::exp(span() * point.states[layout.state]);
+    return open_resistance_;
   }
   double do_current(const Point& point, const Layout& layout) const override {
     return point.voltage(layout) / resistance(point, layout);
   }
-  std::vector<int> do_initial_modes() const override { return {initially_closed_ ? 1 : 0}; }
+  std::vector<StateInfo> do_states(double) const override {
+    if (!parts_gradually()) return {};
+    // Progress 0 -> 1 through the parting; linear in time, so a loose tolerance is exact enough.
+    return {{"parting", "1", 0.0, 1e4}};
+  }
+  std::vector<int> do_initial_modes() const override { return {initially_closed_ ? kClosed : kOpen}; }
   std::vector<SignalInfo> do_extra_signals() const override { return {{"closed", "1"}}; }
   void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
-    out[0] = point.modes[layout.mode] != 0 ? 1.0 : 0.0;
+    out[0] = point.modes[layout.mode] == kClosed ? 1.0 : 0.0;
   }
   Link do_link() const override { return Link::Conductive; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     double r = resistance(point, layout);
-    stamp.terminal_current(layout, point.voltage(layout) / r, 1.0 / r);
+    double v = point.voltage(layout);
+    stamp.terminal_current(layout, v / r, 1.0 / r);
+    if (!parts_gradually()) return;
+    if (point.modes[layout.mode] == kParting) {
+      stamp.terminal_current_by_state(layout, layout.state, -span() * v / r);  // d(v/R)/dp = -v·span/R
+      stamp.rate(layout.state, 1.0 / parting_time_);
+    }
   }
   Powers do_powers(const Point& point, const Layout& layout) const override {
     double v = point.voltage(layout);
     return Powers{0.0, v * v / resistance(point, layout), 0.0};
   }
-  ModeChange do_command(const std::string& action, const Layout& layout, int* modes) const override {
+  int do_root_count() const override { return parts_gradually() ? 1 : 0; }
+  int do_root_direction(int) const override { return 1; }
+  void do_roots(const Point& point, const Layout& layout, double* out) const override {
+    out[0] = point.modes[layout.mode] == kParting ? point.states[layout.state] - 1.0 : -1.0;
+  }
+  ModeChange do_on_root(int, int direction, const Layout& layout, int* modes) const override {
+    if (direction <= 0 || modes[layout.mode] != kParting) return {};
+    modes[layout.mode] = kOpen;  // parting complete: the gap now holds off the full open resistance
+    return {true, ""};
+  }
+  ModeChange do_command(const std::string& action, const Layout& layout, int* modes, double* states) const override {
     if (action != "close" && action != "open") {
       return ModeChange{false, fmt::format("contactor '{}' can only 'close' or 'open', not '{}'", name(), action)};
     }
-    int wanted = action == "close" ? 1 : 0;
-    bool changed = modes[layout.mode] != wanted;
-    modes[layout.mode] = wanted;
-    return ModeChange{changed, ""};
+    int& mode = modes[layout.mode];
+    int before = mode;
+    if (action == "close") {
+      mode = kClosed;
+    } else if (mode == kClosed && parts_gradually()) {
+      mode = kParting;
+      if (states != nullptr) states[layout.state] = 0.0;
+    } else if (mode != kParting) {
+      mode = kOpen;
+    }
+    return ModeChange{mode != before, ""};
   }
 
   double closed_resistance_ = 0.0;
   double open_resistance_ = 0.0;
   bool initially_closed_ = false;
+  double parting_time_ = 0.0;
   ContactorTiming timing_;
 };
 }  // namespace

@@ -53,11 +53,11 @@ netlist::ParameterReader open_parameters(const netlist::PartSpec& spec) {
   return reader;
 }
 
-ModeChange Part::command(const std::string& action, const Layout& layout, int* modes) const {
-  return do_command(action, layout, modes);
+ModeChange Part::command(const std::string& action, const Layout& layout, int* modes, double* states) const {
+  return do_command(action, layout, modes, states);
 }
 
-ModeChange Part::do_command(const std::string& action, const Layout&, int*) const {
+ModeChange Part::do_command(const std::string& action, const Layout&, int*, double*) const {
   return ModeChange{false, fmt::format("part '{}' of kind {} cannot '{}'", name_, kind_, action)};
 }
 

@@ -214,7 +214,9 @@ class Part {
   /// The crossing direction root `index` reacts to: +1 rising, -1 falling, 0 both.
   int root_direction(int index) const { return do_root_direction(index); }
   /// A scheduled or controller action such as "close" or "enable".
-  ModeChange command(const std::string& action, const Layout& layout, int* modes) const;
+  /// `states` is the solver's state vector (may be null when only checking that the action applies): a
+  /// command may re-initialise the part's own states, e.g. restart a contact's parting progress.
+  ModeChange command(const std::string& action, const Layout& layout, int* modes, double* states = nullptr) const;
 
  protected:
   /// Current entering the positive node (passive convention).
@@ -236,7 +238,7 @@ class Part {
   virtual ModeChange do_on_root(int, int, const Layout&, int*) const { return {}; }
   virtual ModeChange do_settle(const Point&, const Layout&, int*) const { return {}; }
   virtual int do_root_direction(int) const { return 0; }
-  virtual ModeChange do_command(const std::string& action, const Layout&, int*) const;
+  virtual ModeChange do_command(const std::string& action, const Layout&, int*, double* states) const;
   /// Sign applied to current and power in the output: +1 passive, -1 for sources (delivering is positive).
   virtual double do_output_sign() const { return 1.0; }
 

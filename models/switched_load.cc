@@ -91,7 +91,7 @@ class SwitchedLoad final : public Part {
     modes[layout.mode] = wanted;
     return {changed, ""};
   }
-  ModeChange do_command(const std::string& action, const Layout& layout, int* modes) const override {
+  ModeChange do_command(const std::string& action, const Layout& layout, int* modes, double*) const override {
     if (action != "enable" && action != "disable") {
       return {false, fmt::format("load '{}' can only 'enable' or 'disable', not '{}'", name(), action)};
     }

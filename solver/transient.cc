@@ -310,7 +310,7 @@ bool Driver::apply_commands(double t) {
       first = false;
     }
     const auto& part = circuit_.part(command.part);
-    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data());
+    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x());
     if (!change.problem.empty()) throw SolverError(change.problem, t);
     ++result_.statistics.events;
     result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", command.action, part.name()), command.reason});
