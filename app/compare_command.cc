@@ -11,6 +11,7 @@
 #include "app/output_files.h"
 #include "app/run_summary.h"
 #include "app/study_parameters.h"
+#include "app/study_report.h"
 #include "netlist/case.h"
 #include "netlist/parameter_reader.h"
 
@@ -153,7 +154,11 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
   comparison.case_file = case_file;
   comparison.title = netlist::read_case(root, case_file).title;
   comparison.names.push_back("nominal");
-  for (const auto& variant : variants) comparison.names.push_back(variant.name);
+  comparison.notes.push_back("the case as written");
+  for (const auto& variant : variants) {
+    comparison.names.push_back(variant.name);
+    comparison.notes.push_back(variant.note);
+  }
   comparison.results = run_study(case_file, trees.size(), [&](std::size_t i) { return trees[i]; }, jobs);
   reject_input_errors(comparison.results, case_file,
                       [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
@@ -260,10 +265,13 @@ int compare_command(const CompareArguments& arguments) {
     outputs.add("compare.csv", comparison_csv(comparison));
     outputs.add("compare.json", comparison_json(comparison).dump(2) + "\n");
     outputs.commit();
+    // After the other outputs, so a failed study leaves no report (docs/report.md).
+    if (!arguments.report.empty()) write_file_atomically(arguments.report, compare_report_html(comparison));
     if (!arguments.quiet) {
       std::cout << comparison_text(comparison);
       std::cout << fmt::format("  wrote {} and {}\n", outputs.path("compare.csv").string(),
                                outputs.path("compare.json").string());
+      if (!arguments.report.empty()) std::cout << fmt::format("  report {}\n", arguments.report);
     }
     return comparison.results.any_solver_failure() ? kExitSolverFailure : kExitOk;
   } catch (const netlist::InputError& error) {

@@ -40,6 +40,7 @@ struct VariantComparison {
   std::string case_file;
   std::string title;
   std::vector<std::string> names;  // "nominal", then the variants
+  std::vector<std::string> notes;  // the variants' notes, in the same order (empty for the nominal case)
   StudyResults results;            // one point per name
   /// Indices of the best entries of a metric column (empty when all tie or fewer than two are reached).
   std::vector<std::size_t> best(std::size_t column) const;

@@ -10,6 +10,7 @@
 #include "app/output_files.h"
 #include "app/run_summary.h"
 #include "app/study_parameters.h"
+#include "app/study_report.h"
 #include "netlist/case.h"
 #include "netlist/sequence_spec.h"
 
@@ -207,14 +208,20 @@ int window_command(const WindowArguments& arguments) {
     }
     Spread spread;
     FaultWindow window = fault_window(a.case_file, settings, plan, margin->value, a.jobs, &spread, "window");
+    // Checked before anything is written: a misspelt metric is bad input.
+    const std::vector<std::string> metrics =
+        a.metrics.empty() ? spread.headline : chosen_metrics(a.metrics, spread.results.columns, option_mark("--metrics", 1));
     OutputSet outputs(a.output_directory);
     outputs.add("window.json", window_json(window, spread).dump(2) + "\n");
     outputs.add("spread_samples.csv", spread_csv(spread));
     outputs.commit();
+    // After the other outputs, so a failed study leaves no report (docs/report.md).
+    if (!a.report.empty()) write_file_atomically(a.report, window_report_html(window, spread, metrics));
     if (!a.quiet) {
       std::cout << window_text(window, spread);
       std::cout << fmt::format("  wrote {} and {}\n", outputs.path("window.json").string(),
                                outputs.path("spread_samples.csv").string());
+      if (!a.report.empty()) std::cout << fmt::format("  report {}\n", a.report);
     }
     if (window.matrix.solver_failure() || spread.results.any_solver_failure()) return kExitSolverFailure;
     return window.verified() ? kExitOk : kExitLimitFailed;

@@ -12,6 +12,7 @@
 #include "app/random_stream.h"
 #include "app/run_summary.h"
 #include "app/study_parameters.h"
+#include "app/study_report.h"
 #include "netlist/case.h"
 
 namespace linkrise::app {
@@ -318,10 +319,13 @@ int spread_command(const SpreadArguments& arguments) {
     outputs.add("spread_samples.csv", spread_csv(spread));
     outputs.add("spread.json", spread_json(spread).dump(2) + "\n");
     outputs.commit();
+    // After the other outputs, so a failed study leaves no report (docs/report.md).
+    if (!arguments.report.empty()) write_file_atomically(arguments.report, spread_report_html(spread, metrics));
     if (!arguments.quiet) {
       std::cout << spread_text(spread, metrics);
       std::cout << fmt::format("  wrote {} and {}\n", outputs.path("spread_samples.csv").string(),
                                outputs.path("spread.json").string());
+      if (!arguments.report.empty()) std::cout << fmt::format("  report {}\n", arguments.report);
     }
     if (spread.results.any_solver_failure()) return kExitSolverFailure;
     return spread.failed() > 0 ? kExitLimitFailed : kExitOk;

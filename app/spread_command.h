@@ -91,6 +91,7 @@ struct SpreadArguments {
   std::string metrics;
   std::string output_directory = "out";
   int jobs = 0;
+  std::string report;  // optional HTML report file (spread and window)
   bool quiet = false;
 };
 

@@ -4,6 +4,7 @@ namespace linkrise::app {
 
 StudyCommands::StudyCommands(CLI::App& cli) {
   const char* set_help = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
+  const char* report_help = "also write a self-contained HTML report to this file";
   const char* jobs_help = "parallel evaluations (default: one per core; results do not depend on it)";
 
   compare_cli_ = cli.add_subcommand("compare", "run the case's variants side by side with the nominal case");
@@ -12,6 +13,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   compare_cli_->add_option("-o,--output", compare_.output_directory, "output directory")->capture_default_str();
   compare_cli_->add_option("-j,--jobs", compare_.jobs, jobs_help);
   compare_cli_->add_flag("-q,--quiet", compare_.quiet, "print nothing on success");
+  compare_cli_->add_option("--report", compare_.report, report_help);
 
   sweep_cli_ = cli.add_subcommand("sweep", "vary one or two parameters over lists or ranges");
   sweep_cli_->add_option("case", sweep_.case_file, "case file (YAML)")->required();
@@ -23,6 +25,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   sweep_cli_->add_option("-o,--output", sweep_.output_directory, "output directory")->capture_default_str();
   sweep_cli_->add_option("-j,--jobs", sweep_.jobs, jobs_help);
   sweep_cli_->add_flag("-q,--quiet", sweep_.quiet, "print nothing on success");
+  sweep_cli_->add_option("--report", sweep_.report, report_help);
 
   auto add_population = [&](CLI::App* command, SpreadArguments& arguments) {
     command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
@@ -34,6 +37,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
     command->add_option("-o,--output", arguments.output_directory, "output directory")->capture_default_str();
     command->add_option("-j,--jobs", arguments.jobs, jobs_help);
     command->add_flag("-q,--quiet", arguments.quiet, "print nothing on success");
+    command->add_option("--report", arguments.report, report_help);
   };
   spread_cli_ = cli.add_subcommand("spread", "tolerance spread: corners or Monte Carlo over the tolerances block");
   spread_cli_->add_option("case", spread_.case_file, "case file (YAML) with a tolerances block")->required();

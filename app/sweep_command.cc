@@ -7,6 +7,7 @@
 #include "analysis/metrics.h"
 #include "app/exit_codes.h"
 #include "app/output_files.h"
+#include "app/study_report.h"
 #include "netlist/case.h"
 
 namespace linkrise::app {
@@ -116,9 +117,12 @@ int sweep_command(const SweepArguments& arguments) {
     OutputSet outputs(arguments.output_directory);
     outputs.add("sweep.csv", sweep_csv(sweep));
     outputs.commit();
+    // After the other outputs, so a failed study leaves no report (docs/report.md).
+    if (!arguments.report.empty()) write_file_atomically(arguments.report, sweep_report_html(sweep, metrics));
     if (!arguments.quiet) {
       std::cout << sweep_text(sweep, metrics);
       std::cout << fmt::format("  wrote {} (every metric per point)\n", outputs.path("sweep.csv").string());
+      if (!arguments.report.empty()) std::cout << fmt::format("  report {}\n", arguments.report);
     }
     return sweep.results.any_solver_failure() ? kExitSolverFailure : kExitOk;
   } catch (const InputError& error) {

@@ -37,6 +37,7 @@ struct SweepArguments {
   std::string metrics;                // --metrics a,b,c
   std::string output_directory = "out";
   int jobs = 0;
+  std::string report;  // optional HTML report file
   bool quiet = false;
 };
 
