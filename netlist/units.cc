@@ -37,6 +37,9 @@ const std::vector<UnitEntry>& unit_table() {
       {"m", 1.0, Dimension::length(), true},           {"Hz", 1.0, Dimension::frequency(), true},
       {"%", 0.01, Dimension::none(), false},           {"ppm", 1e-6, Dimension::none(), false},
       {"min", 60.0, Dimension::time(), false},         {"h", 3600.0, Dimension::time(), false},
+      // I²t as written on fuse and contactor data sheets.
+      {"A²s", 1.0, Dimension::current().power(2) * Dimension::time(), false},
+      {"A^2s", 1.0, Dimension::current().power(2) * Dimension::time(), false},
   };
   return table;
 }
@@ -59,6 +62,14 @@ std::string_view trim(std::string_view text) {
 
 // One factor such as "mm²", "kOhm", "s^2". Returns false when it is not a known unit.
 bool parse_factor(std::string_view text, double& scale, Dimension& dimension, std::string& problem) {
+  // Symbols that carry their own power (A²s, A^2s) are matched whole first.
+  for (const auto& unit : unit_table()) {
+    if (text == unit.symbol) {
+      scale = unit.scale;
+      dimension = unit.dimension;
+      return true;
+    }
+  }
   int power = 1;
   if (auto caret = text.find('^'); caret != std::string_view::npos) {
     std::string_view digits = text.substr(caret + 1);

@@ -56,6 +56,11 @@ TEST(Units, TemperaturesAndCompounds) {
   EXPECT_NEAR(parse("35 mm^2", Dimension::area()), 35e-6, 1e-18);
   EXPECT_DOUBLE_EQ(parse("0.5 uH/m", Dimension::inductance() / Dimension::length()), 0.5e-6);
   EXPECT_DOUBLE_EQ(parse("1 A*s", Dimension::charge()), 1.0);
+  // I²t in the data-sheet spelling, and as a product.
+  const Dimension i2t = Dimension::current().power(2) * Dimension::time();
+  EXPECT_DOUBLE_EQ(parse("50 A²s", i2t), 50.0);
+  EXPECT_DOUBLE_EQ(parse("50 A^2s", i2t), 50.0);
+  EXPECT_DOUBLE_EQ(parse("2 kA^2*s", i2t), 2e6);
 }
 
 TEST(Units, BareNumbersAreSiBaseUnits) {
