@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace linkrise::solver {
 
@@ -57,7 +58,8 @@ bool Equations::solve_network(double time, const double* states, const int* mode
     std::copy(cache_unknowns_.begin(), cache_unknowns_.end(), unknowns);
     return true;
   }
-  bool solved = solve_network_uncached(time, states, modes, unknowns);
+  bool solved = solve_network_chord(time, states, modes, unknowns) ||
+                solve_network_uncached(time, states, modes, unknowns);
   cache_valid_ = solved;
   if (solved) {
     cache_time_ = time;
@@ -66,6 +68,44 @@ bool Equations::solve_network(double time, const double* states, const int* mode
     cache_unknowns_.assign(unknowns, unknowns + unknowns_);
   }
   return solved;
+}
+
+void Equations::remember_factor(const int* modes) {
+  factor_valid_ = true;
+  factor_modes_.assign(modes, modes + circuit_.mode_count());
+}
+
+bool Equations::solve_network_chord(double time, const double* states, const int* modes, double* unknowns) {
+  if (!factor_valid_ || !std::equal(modes, modes + circuit_.mode_count(), factor_modes_.begin())) return false;
+  Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
+  const Eigen::VectorXd guess = y;
+  const int nodes = static_cast<int>(circuit_.node_names().size());
+  double previous = std::numeric_limits<double>::infinity();
+  for (int iteration = 0; iteration < 8; ++iteration) {
+    assemble(point(time, states, modes, unknowns), false);
+    if (!network_.allFinite()) break;
+    step_ = factor_.solve(-network_);
+    if (!step_.allFinite()) break;
+    ++newton_iterations_;
+    y += step_;
+    double voltage_scale = 0.0, current_scale = 0.0;
+    for (int i = 0; i < unknowns_; ++i) {
+      double& scale = i < nodes ? voltage_scale : current_scale;
+      scale = std::max(scale, std::fabs(y[i]));
+    }
+    // A chord iteration converges only linearly, so its stop is stricter than Newton's.
+    bool small = true;
+    for (int i = 0; i < unknowns_; ++i) {
+      double size = i < nodes ? voltage_scale : current_scale;
+      if (std::fabs(step_[i]) > 1e-14 * size + 1e-16) small = false;
+    }
+    if (small) return true;
+    double size = step_.norm();
+    if (size > 0.25 * previous) break;  // converging too slowly: refactorise
+    previous = size;
+  }
+  y = guess;
+  return false;
 }
 
 bool Equations::solve_network_uncached(double time, const double* states, const int* modes, double* unknowns) {
@@ -83,6 +123,7 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
     assemble(point(time, states, modes, unknowns), true);
     if (!network_.allFinite() || !network_by_unknown_.allFinite()) return false;
     factor_.compute(network_by_unknown_);
+    remember_factor(modes);
     step_ = factor_.solve(-network_);
     if (!step_.allFinite()) return false;
     ++newton_iterations_;
@@ -150,6 +191,7 @@ void Equations::jacobian(double time, const double* states, const int* modes, co
   if (states_ == 0) return;
   assemble(point(time, states, modes, unknowns), true);
   factor_.compute(network_by_unknown_);
+  remember_factor(modes);
   Eigen::MatrixXd unknown_by_state = -factor_.solve(network_by_state_.leftCols(states_));
   jacobian.topLeftCorner(states_, states_) =
       rate_by_state_.topLeftCorner(states_, states_) + rate_by_unknown_.topRows(states_) * unknown_by_state;

@@ -33,6 +33,8 @@ class Equations {
  private:
   void assemble(const models::Point& point, bool derivatives);
   bool solve_network_uncached(double time, const double* states, const int* modes, double* unknowns);
+  bool solve_network_chord(double time, const double* states, const int* modes, double* unknowns);
+  void remember_factor(const int* modes);
 
   const Circuit& circuit_;
   int unknowns_;
@@ -48,6 +50,10 @@ class Equations {
   long newton_iterations_ = 0;
   // The last solved point: CVODE evaluates roots and the driver records rows at states it has just
   // solved for, so a repeated point returns the stored solution.
+  // The last LU of dG/dy and the modes it was taken in: consecutive solves differ little, so a chord
+  // iteration with that LU usually converges in two cheap steps before a new factorisation is needed.
+  bool factor_valid_ = false;
+  std::vector<int> factor_modes_;
   bool cache_valid_ = false;
   double cache_time_ = 0.0;
   std::vector<double> cache_states_;
