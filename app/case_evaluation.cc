@@ -35,6 +35,10 @@ CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& 
   } catch (const netlist::InputError& error) {
     evaluation.status = CaseEvaluation::Status::InputError;
     evaluation.message = error.what();
+  } catch (const std::exception& error) {
+    // Anything else (an output or model error) is still one failed case, never the end of a library run.
+    evaluation.status = CaseEvaluation::Status::InputError;
+    evaluation.message = std::string("could not evaluate: ") + error.what();
   }
   evaluation.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   return evaluation;

@@ -1,11 +1,9 @@
 #include "app/check_command.h"
 
 #include <algorithm>
-#include <atomic>
 #include <cmath>
 #include <filesystem>
 #include <iostream>
-#include <thread>
 
 #include <fmt/format.h>
 
@@ -14,6 +12,7 @@
 #include "app/golden.h"
 #include "app/junit_xml.h"
 #include "app/output_files.h"
+#include "app/study_pool.h"
 #include "netlist/input_error.h"
 
 namespace linkrise::app {
@@ -89,17 +88,8 @@ int check_command(const CheckArguments& arguments) {
   }
   std::vector<CaseCheck> checks(files.size());
   for (std::size_t i = 0; i < files.size(); ++i) checks[i].file = files[i];
-  unsigned workers = arguments.jobs > 0 ? static_cast<unsigned>(arguments.jobs)
-                                        : std::max(1u, std::thread::hardware_concurrency());
-  workers = std::min<unsigned>(workers, static_cast<unsigned>(files.size()));
-  std::atomic<std::size_t> next{0};
-  std::vector<std::thread> pool;
-  for (unsigned w = 0; w < workers; ++w) {
-    pool.emplace_back([&] {
-      for (std::size_t i = next++; i < checks.size(); i = next++) check_one(checks[i]);
-    });
-  }
-  for (auto& thread : pool) thread.join();
+  // Each case writes its own slot, so the table does not depend on the thread count.
+  for_each_index(checks.size(), arguments.jobs, [&](std::size_t i) { check_one(checks[i]); });
 
   // Table of changes (all rows with --all), then one line per case.
   std::string table = fmt::format("{:<34} {:<34} {:>18} {:>18} {:>22} {}\n", "case", "item", "expected", "actual",

@@ -16,6 +16,7 @@
 #include "app/faults_report.h"
 #include "app/output_files.h"
 #include "app/run_summary.h"
+#include "app/study_pool.h"
 #include "netlist/case.h"
 #include "netlist/overrides.h"
 #include "netlist/scenario_spec.h"
@@ -262,27 +263,10 @@ DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jo
     solver::Circuit check(*p.spec);
     if (!netlist::read_sequence(*p.spec)) throw std::logic_error("scenario lost its sequence block");
   }
-  std::atomic<std::size_t> next{0};
-  std::vector<std::exception_ptr> errors(planned.size());
-  auto worker = [&] {
-    for (std::size_t i = next++; i < planned.size(); i = next++) {
-      if (!planned[i].row.applicable) continue;
-      try {
-        run_row(planned[i]);
-      } catch (...) {
-        errors[i] = std::current_exception();
-      }
-    }
-  };
-  unsigned threads = jobs > 0 ? static_cast<unsigned>(jobs) : std::max(1u, std::thread::hardware_concurrency());
-  threads = std::min<unsigned>(threads, static_cast<unsigned>(planned.size()));
-  std::vector<std::thread> pool;
-  for (unsigned t = 1; t < threads; ++t) pool.emplace_back(worker);
-  worker();
-  for (auto& thread : pool) thread.join();
-  for (auto& error : errors) {
-    if (error) std::rethrow_exception(error);
-  }
+  // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread count.
+  for_each_index(planned.size(), jobs, [&](std::size_t i) {
+    if (planned[i].row.applicable) run_row(planned[i]);
+  });
   DetectionMatrix matrix;
   matrix.case_file = case_file;
   matrix.title = nominal.title;
