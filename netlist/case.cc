@@ -191,6 +191,11 @@ Case read_case(const Tree& root, const std::string& file) {
       run_reader.quantity("atol", Dimension::none(), Bound::Positive, result.run.absolute_tolerance);
   result.run.max_step = run_reader.quantity("max_step", Dimension::time(), Bound::NonNegative, 0.0);
   result.run.sample = run_reader.optional("sample", Dimension::time(), Bound::Positive);
+  result.run.max_steps = run_reader.count("max_steps", 2'000'000, 10);
+  if (result.run.relative_tolerance < 1e-14) {
+    run_reader.fail("rtol", fmt::format("{} is below what double precision can resolve", result.run.relative_tolerance),
+                    "use 1e-12 or looser");
+  }
   if (result.run.relative_tolerance > 1e-2) {
     run_reader.fail("rtol", fmt::format("{} is too loose to judge limits", result.run.relative_tolerance),
                     "use 1e-6 or tighter");

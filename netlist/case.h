@@ -33,6 +33,7 @@ struct RunSpec {
   double absolute_tolerance = 1e-8;    // CVODE atol, in each state's SI unit (scaled per state kind)
   double max_step = 0.0;               // s; 0 means no limit
   std::optional<double> sample;        // s; uniform output grid from dense output
+  long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
 };
 
 struct Case {

@@ -37,6 +37,7 @@ Options options_from(const Circuit& circuit) {
   options.relative_tolerance = spec.run.relative_tolerance;
   options.absolute_tolerance = spec.run.absolute_tolerance;
   options.max_step = spec.run.max_step;
+  options.max_steps = spec.run.max_steps;
   options.sample = spec.run.sample;
   for (const auto& event : spec.events) {
     options.commands.push_back(Command{event.at, circuit.find_part(event.target), event.action, "scheduled event"});

@@ -267,4 +267,17 @@ TEST(Case, RunToleranceMustBeUsable) {
   auto error = input_error([&] { case_from(text); });
   expect_at(error, 14, 9);
   EXPECT_TRUE(contains(error.problem(), "too loose")) << error.what();
+
+  // Below about 1e-14 relative a double cannot tell two states apart (machine epsilon 2.2e-16, common practice).
+  text = resistor_case();
+  text += "  rtol: 1e-30\n";  // line 14
+  error = input_error([&] { case_from(text); });
+  expect_at(error, 14, 9);
+  EXPECT_TRUE(contains(error.problem(), "double precision")) << error.what();
+
+  text = resistor_case();
+  text += "  max_steps: 3\n";  // line 14
+  error = input_error([&] { case_from(text); });
+  expect_at(error, 14, 14);
+  EXPECT_TRUE(contains(error.problem(), "at least 10")) << error.what();
 }

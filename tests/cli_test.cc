@@ -180,7 +180,7 @@ TEST_F(Cli, BadCaseExitsWithTwoAndWritesNothing) {
 }
 
 TEST_F(Cli, SolverFailureExitsWithThreeAndItsOwnMessage) {
-  // A 1 ps step limit over a 1 s run needs 1e12 steps: the driver's step limit stops it [by construction].
+  // A 1 ps step limit over a 1 s run needs 1e12 steps: the run's step limit stops it [by construction].
   fs::path output = directory_ / "failed_out";
   fs::path file = write_case("step_limit.yaml",
                              "ground: gnd\n"
@@ -188,7 +188,7 @@ TEST_F(Cli, SolverFailureExitsWithThreeAndItsOwnMessage) {
                              "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, "
                              "series_resistance: 1 Ohm}\n"
                              "  - {name: c1, kind: capacitor, nodes: [plus, gnd], capacitance: 1 uF}\n"
-                             "run: {duration: 1 s, max_step: 1 ps}\n");
+                             "run: {duration: 1 s, max_step: 1 ps, max_steps: 20000}\n");
   Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
   EXPECT_EQ(result.exit_code, 3) << result.err;
   EXPECT_NE(result.err.find("solver failure"), std::string::npos) << result.err;
