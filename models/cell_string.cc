@@ -1,6 +1,7 @@
 #include "models/cell_string.h"
 
 #include <fmt/format.h>
+#include <gsl/gsl_interp.h>
 
 namespace linkrise::models {
 namespace {
@@ -45,6 +46,10 @@ class CellString final : public Part {
         ocv_points_.push_back(table[i][1]);
       }
     }
+    if (soc_points_.size() >= gsl_interp_type_min_size(gsl_interp_steffen)) {
+      curve_.reset(gsl_interp_alloc(gsl_interp_steffen, soc_points_.size()));
+      gsl_interp_init(curve_.get(), soc_points_.data(), ocv_points_.data(), soc_points_.size());
+    }
     double r0 = reader.required("cell_resistance", Dimension::resistance(), Bound::NonNegative);
     resistance_ = r0 * series_ / parallel_;
     double capacity = reader.required("cell_capacity", Dimension::charge(), Bound::Positive);
@@ -72,10 +77,13 @@ class CellString final : public Part {
   std::pair<double, double> cell_ocv(double soc) const {
     if (soc_points_.size() == 1 || soc <= soc_points_.front()) return {ocv_points_.front(), 0.0};
     if (soc >= soc_points_.back()) return {ocv_points_.back(), 0.0};
-    std::size_t k = 1;
-    while (soc_points_[k] < soc) ++k;
-    double slope = (ocv_points_[k] - ocv_points_[k - 1]) / (soc_points_[k] - soc_points_[k - 1]);
-    return {ocv_points_[k - 1] + slope * (soc - soc_points_[k - 1]), slope};
+    if (curve_) {
+      // Steffen's monotone cubic: smooth slope inside the table, so the right-hand side has no kinks there.
+      return {gsl_interp_eval(curve_.get(), soc_points_.data(), ocv_points_.data(), soc, nullptr),
+              gsl_interp_eval_deriv(curve_.get(), soc_points_.data(), ocv_points_.data(), soc, nullptr)};
+    }
+    double slope = (ocv_points_[1] - ocv_points_[0]) / (soc_points_[1] - soc_points_[0]);
+    return {ocv_points_[0] + slope * (soc - soc_points_[0]), slope};
   }
 
   int do_branch_count() const override { return 1; }
@@ -145,6 +153,10 @@ class CellString final : public Part {
   int parallel_ = 1;
   std::vector<double> soc_points_;
   std::vector<double> ocv_points_;
+  struct CurveDeleter {
+    void operator()(gsl_interp* curve) const { gsl_interp_free(curve); }
+  };
+  std::unique_ptr<gsl_interp, CurveDeleter> curve_;  // read-only after construction: safe from many threads
   double resistance_ = 0.0;
   double charge_ = 0.0;
   double initial_soc_ = 1.0;

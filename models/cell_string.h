@@ -3,7 +3,9 @@
 // model: open-circuit voltage OCV(SOC), series resistance R0 and zero to two RC polarisation pairs.
 //
 // Parameters (per cell): cell_voltage (V, constant OCV) or cell_voltage_table (rows [SOC, V], SOC strictly
-//   increasing, linear interpolation, held constant outside the table); cell_resistance R0 (Ohm, >= 0);
+//   increasing; interpolated by Steffen's monotone cubic (GSL) from three rows on, linearly for two; held
+//   constant outside the table). The cubic passes through every row, never overshoots between them and has a
+//   continuous slope, so the right-hand side stays smooth inside the table; cell_resistance R0 (Ohm, >= 0);
 //   polarisation: list of up to two {resistance (Ohm, > 0), capacitance (F, > 0)}; cell_capacity Q (Ah, > 0);
 //   initial_soc (fraction or %, default 100 %); cells_in_series s (>= 1); cells_in_parallel p (>= 1, default 1).
 // String values: E = s·OCV, R0s = s·R0/p, Rk = s·Rk/p, Ck = p·Ck/s.
