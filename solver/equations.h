@@ -1,5 +1,6 @@
 #pragma once
-// The circuit's equations at one point: the network solve y(x) by Newton, the state rates f(x, y(x)),
+// The circuit's equations at one point: the network solve y(x) (chord iterations on the last LU, then Newton
+// with a fresh LU when needed), the state rates f(x, y(x)),
 // the energy-account rates, and the analytic Jacobian of the reduced ODE
 //   J = df/dx + df/dy · dy/dx,  with dy/dx = -(dG/dy)^-1 · dG/dx  (implicit function theorem).
 // Energy accounts (pure quadratures) feed nothing back, so their Jacobian rows are left zero; that costs
