@@ -85,7 +85,7 @@ TEST(Metrics, EverySequenceMetricMatchesItsClosedForm) {
   double s_peak = std::atan(kOmega / kAlpha) / kOmega;
   double peak = kI * std::exp(-kAlpha * s_peak) * std::sin(kOmega * s_peak);
   EXPECT_NEAR(m.value("sequence.peak_main_current"), peak, 1e-5 * peak);
-  // ∫0^∞ I²·e^(−2αs)·sin²(ωs) ds = I²·ω² / (4α·(α² + ω²)).
+  // ∫0^∞ I²·e^(−2αs)·sin²(ωs) ds = I²·ω² / (4α·(α² + ω²)) [derived: standard Laplace-type integral, from memory].
   double i2t = kI * kI * kOmega * kOmega / (4.0 * kAlpha * (kAlpha * kAlpha + kOmega * kOmega));
   EXPECT_NEAR(m.value("sequence.main_i2t"), i2t, 1e-7 * i2t);
   // Pre-charge current is largest when the contacts touch: V/R.

@@ -85,5 +85,5 @@ TEST(ReferenceIntegrator, SourceCableLinkAndConstantPowerLoadAgreeWithGsl) {
   // vl·(Vs - vl)/(Rs + Rc) = P, upper root.
   double R = p.Rs + p.Rc;
   double v_eq = 0.5 * (p.Vs + std::sqrt(p.Vs * p.Vs - 4 * p.P * R));
-  EXPECT_NEAR(link.back(), v_eq, 1e-4 * v_eq);
+  EXPECT_NEAR(link.back(), v_eq, 1e-5 * v_eq);
 }

@@ -22,7 +22,9 @@ TEST(StudyRandomStream, InverseNormalMatchesGsl) {
 }
 
 TEST(StudyRandomStream, DrawsArePureFunctionsOfTheirKeys) {
-  EXPECT_EQ(uniform_draw(7, 123, 2), uniform_draw(7, 123, 2));
+  const double first = uniform_draw(7, 123, 2);
+  for (std::uint64_t index = 0; index < 1000; ++index) (void)uniform_draw(7, index, 5);
+  EXPECT_EQ(uniform_draw(7, 123, 2), first);  // no hidden state: other draws in between change nothing
   EXPECT_NE(uniform_draw(7, 123, 2), uniform_draw(7, 124, 2));
   EXPECT_NE(uniform_draw(7, 123, 2), uniform_draw(7, 123, 3));
   EXPECT_NE(uniform_draw(7, 123, 2), uniform_draw(8, 123, 2));
