@@ -35,8 +35,6 @@ class Trace {
   bool empty() const { return times_.empty(); }
   const std::vector<double>& times() const { return times_; }
   const std::vector<double>& values() const { return values_; }
-  double front_time() const { return times_.front(); }
-  double back_time() const { return times_.back(); }
 
   /// Pointwise a − b (same rows).
   Trace minus(const Trace& other) const;

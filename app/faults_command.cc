@@ -17,6 +17,7 @@
 #include "app/output_files.h"
 #include "app/run_summary.h"
 #include "app/study_pool.h"
+#include "app/study_run.h"
 #include "netlist/case.h"
 #include "netlist/overrides.h"
 #include "netlist/scenario_spec.h"
@@ -312,7 +313,7 @@ std::string matrix_csv(const DetectionMatrix& matrix) {
     for (char c : text) out += c == '"' ? std::string("\"\"") : std::string(1, c);
     return out + "\"";
   };
-  auto number = [](double value) { return std::isnan(value) ? std::string() : fmt::format("{:.9g}", value); };
+  auto number = [](double value) { return csv_number(value); };
   std::string out =
       "scenario,expected,actual,applicable,attempts,detection_time [s],peak_temperature [degC],"
       "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";

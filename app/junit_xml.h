@@ -15,7 +15,5 @@ struct JunitCase {
 };
 
 std::string junit_xml(const std::string& suite, const std::vector<JunitCase>& cases);
-/// Escapes & < > " ' for XML text and attributes and drops what XML forbids (the plot library's escaping).
-std::string xml_escape(const std::string& text);
 
 }  // namespace linkrise::app

@@ -45,7 +45,7 @@ int run_command(const RunArguments& arguments) {
     const analysis::Evaluation& evaluation = run.evaluation();
     nlohmann::json summary = run_summary(circuit, result, audit);
     add_verdict(summary, evaluation);
-    if (sequence_data) add_sequence(summary, *sequence_data, result, evaluation);
+    if (sequence_data) add_sequence(summary, *sequence_data, evaluation);
     OutputSet outputs(arguments.output_directory);
     outputs.add("waveforms.csv", waveform_csv(options.sample ? result.samples : result.steps));
     outputs.add("summary.json", summary.dump(2) + "\n");

@@ -25,11 +25,6 @@ const char* safety_caution() {
 }
 
 namespace {
-double peak_abs(const solver::Waveform& waveform, int column) {
-  double peak = 0.0;
-  for (std::size_t r = 0; r < waveform.row_count(); ++r) peak = std::max(peak, std::fabs(waveform.value(r, column)));
-  return peak;
-}
 
 std::string outcome_word(solver::Outcome outcome) {
   switch (outcome) {
@@ -56,8 +51,8 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
     entry["kind"] = part.kind();
     int first = circuit.signal_first(p);
     if (result.steps.row_count() > 0) {
-      entry["peak_current"] = quantity(peak_abs(result.steps, static_cast<int>(circuit.node_names().size()) + first), "A");
-      entry["peak_power"] = quantity(peak_abs(result.steps, static_cast<int>(circuit.node_names().size()) + first + 2), "W");
+      entry["peak_current"] = quantity(analysis::peak_absolute(result.steps, static_cast<int>(circuit.node_names().size()) + first), "A");
+      entry["peak_power"] = quantity(analysis::peak_absolute(result.steps, static_cast<int>(circuit.node_names().size()) + first + 2), "W");
     }
     const auto& energy = audit.parts[p];
     auto channels = part.power_channels();
@@ -130,8 +125,8 @@ std::string terminal_summary(const solver::Circuit& circuit, const solver::Resul
   const int node_columns = static_cast<int>(circuit.node_names().size());
   for (int p = 0; p < circuit.part_count(); ++p) {
     int first = node_columns + circuit.signal_first(p);
-    double peak_current = result.steps.row_count() ? peak_abs(result.steps, first) : 0.0;
-    double peak_power = result.steps.row_count() ? peak_abs(result.steps, first + 2) : 0.0;
+    double peak_current = result.steps.row_count() ? analysis::peak_absolute(result.steps, first) : 0.0;
+    double peak_power = result.steps.row_count() ? analysis::peak_absolute(result.steps, first + 2) : 0.0;
     std::string heat = circuit.part(p).power_channels().heat ? format_si(audit.parts[p].dissipated, "J") : "-";
     out += fmt::format("  {:<22} {:>14} {:>14} {:>14}\n", circuit.part(p).name(), format_si(peak_current, "A"),
                        format_si(peak_power, "W"), heat);

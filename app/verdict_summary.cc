@@ -40,7 +40,7 @@ void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation
   summary["metrics"] = metrics;
 }
 
-void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report, const solver::Result& result,
+void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
                   const analysis::Evaluation& evaluation) {
   nlohmann::json sequence;
   sequence["outcome"] = report.outcome;
@@ -73,11 +73,7 @@ void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
                          {"closing_level", quantity(stall.closing_level, "V")},
                          {"explanation", stall.explanation}};
   }
-  nlohmann::json timeline = nlohmann::json::array();
-  for (const auto& entry : result.timeline) {
-    timeline.push_back({{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}});
-  }
-  sequence["timeline"] = timeline;
+  sequence["timeline"] = summary["timeline"];  // written by run_summary from the same result
   summary["sequence"] = sequence;
 }
 

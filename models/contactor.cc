@@ -29,13 +29,14 @@ class Contactor final : public Part {
                   "an open contact is an insulator: use e.g. '100 MOhm'");
     }
     reader.finish();
+    span_ = std::log(open_resistance_ / closed_resistance_);
   }
 
  private:
   static constexpr int kOpen = 0, kClosed = 1, kParting = 2;
   bool parts_gradually() const { return parting_time_ > 0.0; }
   // ln(R_open / R_closed): the parting resistance is R_closed·exp(progress·span).
-  double span() const { return std::log(open_resistance_ / closed_resistance_); }
+  double span() const { return span_; }
   double resistance(const Point& point, const Layout& layout) const {
     int mode = point.modes[layout.mode];
     if (mode == kClosed) return closed_resistance_;
@@ -102,6 +103,7 @@ class Contactor final : public Part {
   double open_resistance_ = 0.0;
   bool initially_closed_ = false;
   double parting_time_ = 0.0;
+  double span_ = 0.0;  // ln(R_open / R_closed)
   ContactorTiming timing_;
 };
 }  // namespace

@@ -108,6 +108,16 @@ class ThermalResistor final : public Part {
   ThermalResistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options)
       : Part(spec), law_(std::move(law)), options_(std::move(options)) {
     thermal_count_ = options_.network ? static_cast<int>(options_.network->state_count()) : 0;
+    if (options_.network) {
+      // The thermal network is linear: its Jacobians are constants, taken once here rather than per stamp.
+      const auto n = static_cast<std::size_t>(thermal_count_);
+      temperature_gradient_.resize(n);
+      rate_by_power_.resize(n);
+      rate_by_thermal_state_.resize(n * n);
+      options_.network->element_temperature_gradient(temperature_gradient_);
+      options_.network->power_jacobian(rate_by_power_);
+      options_.network->state_jacobian(rate_by_thermal_state_);
+    }
   }
 
  private:
@@ -181,11 +191,9 @@ class ThermalResistor final : public Part {
     const double current_by_temperature = -v * law.derivative * g * g;
     const double power_by_temperature = v * current_by_temperature;
     const double power_by_voltage = 2.0 * i;
-    std::vector<double> gradient(static_cast<std::size_t>(n)), by_power(static_cast<std::size_t>(n)),
-        by_state(static_cast<std::size_t>(n * n));
-    network.element_temperature_gradient(gradient);
-    network.power_jacobian(by_power);
-    network.state_jacobian(by_state);
+    const std::vector<double>& gradient = temperature_gradient_;
+    const std::vector<double>& by_power = rate_by_power_;
+    const std::vector<double>& by_state = rate_by_thermal_state_;
     for (int j = 0; j < n; ++j) {
       stamp.terminal_current_by_state(layout, s + j, current_by_temperature * gradient[j]);
       stamp.rate_by_state(q, s + j, 2.0 * i * current_by_temperature * gradient[j]);
@@ -207,6 +215,9 @@ class ThermalResistor final : public Part {
   ResistanceLaw law_;
   ThermalOptions options_;
   int thermal_count_ = 0;
+  std::vector<double> temperature_gradient_;   // dT_element/dx
+  std::vector<double> rate_by_power_;          // d(dx/dt)/dP
+  std::vector<double> rate_by_thermal_state_;  // d(dx/dt)/dx, row-major
 };
 }  // namespace
 

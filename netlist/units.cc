@@ -60,16 +60,34 @@ std::string_view trim(std::string_view text) {
   return text;
 }
 
-// One factor such as "mm²", "kOhm", "s^2". Returns false when it is not a known unit.
-bool parse_factor(std::string_view text, double& scale, Dimension& dimension, std::string& problem) {
-  // Symbols that carry their own power (A²s, A^2s) are matched whole first.
+// A unit symbol, optionally with a prefix, raised to `power`. A whole symbol wins over prefix+symbol, so "m" is
+// the metre and "mm" the millimetre.
+bool lookup_symbol(std::string_view text, int power, double& scale, Dimension& dimension) {
   for (const auto& unit : unit_table()) {
     if (text == unit.symbol) {
-      scale = unit.scale;
-      dimension = unit.dimension;
+      scale = std::pow(unit.scale, power);
+      dimension = unit.dimension.power(power);
       return true;
     }
   }
+  for (const auto& prefix : prefix_table()) {
+    if (!text.starts_with(prefix.symbol)) continue;
+    std::string_view rest = text.substr(prefix.symbol.size());
+    for (const auto& unit : unit_table()) {
+      if (unit.takes_prefix && rest == unit.symbol) {
+        scale = std::pow(prefix.scale * unit.scale, power);
+        dimension = unit.dimension.power(power);
+        return true;
+      }
+    }
+  }
+  return false;
+}
+
+// One factor such as "mm²", "kOhm", "s^2". Returns false when it is not a known unit.
+bool parse_factor(std::string_view text, double& scale, Dimension& dimension, std::string& problem) {
+  // As written first: symbols that carry their own power (A²s, A^2s) are in the table whole.
+  if (lookup_symbol(text, 1, scale, dimension)) return true;
   int power = 1;
   if (auto caret = text.find('^'); caret != std::string_view::npos) {
     std::string_view digits = text.substr(caret + 1);
@@ -91,25 +109,7 @@ bool parse_factor(std::string_view text, double& scale, Dimension& dimension, st
     dimension = Dimension::none();
     return true;
   }
-  // A whole symbol wins over prefix+symbol, so "m" is metre and "mm" is millimetre.
-  for (const auto& unit : unit_table()) {
-    if (text == unit.symbol) {
-      scale = std::pow(unit.scale, power);
-      dimension = unit.dimension.power(power);
-      return true;
-    }
-  }
-  for (const auto& prefix : prefix_table()) {
-    if (!text.starts_with(prefix.symbol)) continue;
-    std::string_view rest = text.substr(prefix.symbol.size());
-    for (const auto& unit : unit_table()) {
-      if (unit.takes_prefix && rest == unit.symbol) {
-        scale = std::pow(prefix.scale * unit.scale, power);
-        dimension = unit.dimension.power(power);
-        return true;
-      }
-    }
-  }
+  if (lookup_symbol(text, power, scale, dimension)) return true;
   problem = fmt::format("unknown unit '{}'", text);
   return false;
 }

@@ -17,7 +17,10 @@ Equations::Equations(const Circuit& circuit)
       rate_by_state_(std::max(states_, 1), std::max(states_, 1)),
       rate_by_unknown_(std::max(states_, 1), unknowns_),
       factor_(unknowns_),
-      step_(unknowns_) {}
+      step_(unknowns_),
+      guess_(unknowns_),
+      start_(unknowns_),
+      nodes_(static_cast<int>(circuit.node_names().size())) {}
 
 models::Point Equations::point(double time, const double* states, const int* modes, const double* unknowns) const {
   models::Point p;
@@ -78,8 +81,8 @@ void Equations::remember_factor(const int* modes) {
 bool Equations::solve_network_chord(double time, const double* states, const int* modes, double* unknowns) {
   if (!factor_valid_ || !std::equal(modes, modes + circuit_.mode_count(), factor_modes_.begin())) return false;
   Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
-  const Eigen::VectorXd guess = y;
-  const int nodes = static_cast<int>(circuit_.node_names().size());
+  guess_ = y;
+  const int nodes = nodes_;
   double previous = std::numeric_limits<double>::infinity();
   for (int iteration = 0; iteration < 8; ++iteration) {
     assemble(point(time, states, modes, unknowns), false);
@@ -104,21 +107,21 @@ bool Equations::solve_network_chord(double time, const double* states, const int
     if (size > 0.25 * previous) break;  // converging too slowly: refactorise
     previous = size;
   }
-  y = guess;
+  y = guess_;
   return false;
 }
 
 bool Equations::solve_network_uncached(double time, const double* states, const int* modes, double* unknowns) {
   Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
   const bool linear = circuit_.linear_network();
-  const int nodes = static_cast<int>(circuit_.node_names().size());
+  const int nodes = nodes_;
   // Damped Newton first. A line search on residuals of mixed units can stall: with a capacitor pinning a node
   // above a constant-power load's resistive floor, each damped step creeps towards the floor's kink and stops
   // short. Plain Newton from the same guess then lands on the pinned voltage at once.
-  const Eigen::VectorXd guess = y;
+  guess_ = y;
   for (int attempt = 0; attempt < 2; ++attempt) {
   const bool damped = attempt == 0;
-  if (!damped) y = guess;
+  if (!damped) y = guess_;
   for (int iteration = 0; iteration < 60; ++iteration) {
     assemble(point(time, states, modes, unknowns), true);
     if (!network_.allFinite() || !network_by_unknown_.allFinite()) return false;
@@ -148,10 +151,10 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
     if (large && damped) {
       // A long step (cold start, diode knee, constant power at low voltage): damp it until the residual falls.
       double before = network_.norm();
-      Eigen::VectorXd start = y;
+      start_ = y;
       double fraction = 1.0;
       for (int halving = 0; halving < 12; ++halving) {
-        y = start + fraction * step_;
+        y = start_ + fraction * step_;
         assemble(point(time, states, modes, unknowns), false);
         if (network_.allFinite() && network_.norm() < before) break;
         fraction *= 0.5;

@@ -48,6 +48,9 @@ class Equations {
   Eigen::MatrixXd rate_by_unknown_;
   Eigen::PartialPivLU<Eigen::MatrixXd> factor_;
   Eigen::VectorXd step_;
+  Eigen::VectorXd guess_;  // scratch: the starting guess of a network solve
+  Eigen::VectorXd start_;  // scratch: the iterate before a damped step
+  int nodes_;              // unknowns before this index are node voltages, the rest branch currents
   long newton_iterations_ = 0;
   // The last solved point: CVODE evaluates roots and the driver records rows at states it has just
   // solved for, so a repeated point returns the stored solution.

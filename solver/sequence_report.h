@@ -33,7 +33,6 @@ struct SequenceReport {
   std::string first_fault;
 
   const AttemptRecord* last() const { return history.empty() ? nullptr : &history.back(); }
-  bool fault() const { return outcome != "closed" && outcome != "unfinished"; }
 };
 
 }  // namespace linkrise::solver
