@@ -32,6 +32,7 @@ std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit) {
         bound.bare = true;  // already in the metric's unit
       }
       limit.maximum = bound;
+      limit.rated_part = part.name();
       limit.source = rating.note.empty() ? fmt::format("rating of {}", part.name())
                                          : fmt::format("rating of {} ({})", part.name(), rating.note);
       limit.mark = part.mark();
@@ -65,6 +66,7 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
       j.bound = side;
       j.unit = metric->unit;
       j.source = limit.source;
+      j.rated_part = limit.rated_part;
       j.limit = in_metric_unit(bound, metric->unit);
       j.value = metric->value;
       j.required_margin = limit.margin;

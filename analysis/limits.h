@@ -20,6 +20,7 @@ struct JudgedLimit {
   std::string bound;  // "max" or "min"
   std::string unit;
   std::string source;  // "limits block" or "rating of <part>"
+  std::string rated_part;  // the part whose rating this is; empty for the limits block
   double limit = 0.0;
   double value = 0.0;
   double margin = 0.0;

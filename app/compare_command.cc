@@ -72,19 +72,7 @@ std::vector<Variant> read_variants(const Tree& root) {
       }
     }
     if (const Tree* set = reader.child("set")) {
-      if (!set->is_map()) {
-        throw InputError(set->mark, "a variant's 'set' must be a block of '<path>: <value>' lines",
-                         "write e.g. 'set: {r_pre.resistance: 56 Ohm}'");
-      }
-      for (std::size_t i = 0; i < set->entries.size(); ++i) {
-        const auto& [path, value] = set->entries[i];
-        netlist::SourceMark mark = i < set->key_marks.size() ? set->key_marks[i] : set->mark;
-        if (!value.is_scalar()) {
-          throw InputError(value.mark, fmt::format("override '{}' must be a single value", path),
-                           "write e.g. '47 Ohm' or '95 %'");
-        }
-        variant.overrides.push_back(netlist::Override{path, value.text, mark});
-      }
+      variant.overrides = netlist::read_set_block(*set, "a variant's", "write e.g. 'set: {r_pre.resistance: 56 Ohm}'");
     }
     reader.finish();
     if (variant.replacements.empty() && variant.overrides.empty()) {

@@ -215,7 +215,7 @@ void run_row(Planned& p) {
   row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
   row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
   for (const auto& limit : evaluation.limits) {
-    if (limit.source.rfind("rating of " + sequence.resistor, 0) != 0) continue;
+    if (limit.rated_part != sequence.resistor) continue;  // only the resistor's own ratings
     bool temperature = limit.metric == sequence.resistor + ".peak_temperature";
     bool energy = limit.metric == sequence.resistor + ".energy";
     if (!temperature && !energy) continue;

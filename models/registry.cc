@@ -50,13 +50,11 @@ std::unique_ptr<Part> create_part(const netlist::PartSpec& spec) {
     if (name == spec.kind) return factory(spec);
   }
   const netlist::Tree* kind = spec.block.find("kind");
-  std::string suggestion = netlist::closest_match(spec.kind, part_kinds());
   std::string list;
   for (const auto& name : part_kinds()) list += (list.empty() ? "" : ", ") + name;
   throw netlist::InputError(kind ? kind->mark : spec.mark,
                             fmt::format("part '{}' has unknown kind '{}'", spec.name, spec.kind),
-                            suggestion.empty() ? fmt::format("known kinds: {}", list)
-                                               : fmt::format("did you mean '{}'?", suggestion));
+                            netlist::did_you_mean(spec.kind, part_kinds(), fmt::format("known kinds: {}", list)));
 }
 
 }  // namespace linkrise::models

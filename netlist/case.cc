@@ -167,11 +167,10 @@ Case read_case(const Tree& root, const std::string& file) {
       }
       if (result.find_part(event.target) == nullptr) {
         std::vector<std::string> candidates(names.begin(), names.end());
-        std::string suggestion = closest_match(event.target, candidates);
         throw InputError(reader.mark(event.action),
                          fmt::format("event at {} s names part '{}', which is not in the parts list", event.at,
                                      event.target),
-                         suggestion.empty() ? "name one of the parts" : fmt::format("did you mean '{}'?", suggestion));
+                         did_you_mean(event.target, candidates, "name one of the parts"));
       }
       result.events.push_back(event);
     }

@@ -52,4 +52,10 @@ std::string closest_match(const std::string& word, const std::vector<std::string
   return (!best.empty() && best_distance <= allowed) ? best : std::string();
 }
 
+std::string did_you_mean(const std::string& word, const std::vector<std::string>& candidates,
+                         const std::string& otherwise) {
+  std::string suggestion = closest_match(word, candidates);
+  return suggestion.empty() ? otherwise : fmt::format("did you mean '{}'?", suggestion);
+}
+
 }  // namespace linkrise::netlist

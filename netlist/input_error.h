@@ -30,5 +30,8 @@ class InputError : public std::runtime_error {
 
 /// The closest candidate by edit distance, or "" when none is close enough to be a likely typo.
 std::string closest_match(const std::string& word, const std::vector<std::string>& candidates);
+/// A fix hint: "did you mean '<closest>'?" when a candidate is close, otherwise `otherwise`.
+std::string did_you_mean(const std::string& word, const std::vector<std::string>& candidates,
+                         const std::string& otherwise);
 
 }  // namespace linkrise::netlist

@@ -23,6 +23,7 @@ struct LimitSpec {
   std::optional<Quantity> minimum, maximum;
   double margin = 0.0;  // required margin, fraction of |bound|
   std::string source = "limits block";
+  std::string rated_part;  // the part whose declared rating this limit is; empty for the case's limits block
   SourceMark mark;  // the metric key
   SourceMark minimum_mark, maximum_mark;
 };

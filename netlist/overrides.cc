@@ -8,6 +8,23 @@
 #include "netlist/units.h"
 
 namespace linkrise::netlist {
+
+std::vector<Override> read_set_block(const Tree& set, const std::string& owner, const std::string& example) {
+  if (!set.is_map()) {
+    throw InputError(set.mark, fmt::format("{} 'set' must be a block of '<path>: <value>' lines", owner), example);
+  }
+  std::vector<Override> overrides;
+  for (std::size_t i = 0; i < set.entries.size(); ++i) {
+    const auto& [path, value] = set.entries[i];
+    SourceMark mark = i < set.key_marks.size() ? set.key_marks[i] : set.mark;
+    if (!value.is_scalar()) {
+      throw InputError(value.mark, fmt::format("override '{}' must be a single value", path),
+                       "write e.g. '47 Ohm' or '95 %'");
+    }
+    overrides.push_back(Override{path, value.text, mark});
+  }
+  return overrides;
+}
 namespace {
 
 std::vector<std::string> split_path(const std::string& path, const SourceMark& mark) {
@@ -85,10 +102,8 @@ Tree* start_block(Tree& root, const std::vector<std::string>& pieces, const std:
   if (pieces.size() < 2) {
     std::vector<std::string> candidates = part_names(root);
     for (const auto& section : case_sections()) candidates.push_back(section);
-    std::string suggestion = closest_match(head, candidates);
     throw InputError(mark, fmt::format("override path '{}' names neither a part parameter nor a case setting", path),
-                     suggestion.empty() ? "write '<part>.<parameter>', 'ambient' or '<section>.<key>'"
-                                        : fmt::format("did you mean '{}'?", suggestion));
+                     did_you_mean(head, candidates, "write '<part>.<parameter>', 'ambient' or '<section>.<key>'"));
   }
   if (pieces[1] == "name" || pieces[1] == "nodes") {
     throw InputError(mark, fmt::format("override '{}': a part's {} cannot be overridden", path, pieces[1]),
@@ -110,10 +125,8 @@ Tree& part_block(Tree& root, const std::string& name, const SourceMark& mark) {
   }
   std::vector<std::string> candidates = part_names(root);
   for (const auto& section : case_sections()) candidates.push_back(section);
-  std::string suggestion = closest_match(name, candidates);
   throw InputError(mark, fmt::format("'{}' is neither a part of the case nor a case setting", name),
-                   suggestion.empty() ? "name a part from the parts list, 'ambient' or a block such as 'sequence'"
-                                      : fmt::format("did you mean '{}'?", suggestion));
+                   did_you_mean(name, candidates, "name a part from the parts list, 'ambient' or a block such as 'sequence'"));
 }
 
 void apply_override(Tree& root, const Override& change) {

@@ -25,6 +25,10 @@ struct Override {
   SourceMark mark;  // where the override was written (a scenario line, a command-line option)
 };
 
+/// Reads a `set:` block of '<path>: <value>' lines (a scenario's or a variant's) into overrides, each marked
+/// with its key's position. `owner` names the block in messages ("a scenario's"), `example` is the fix's hint.
+std::vector<Override> read_set_block(const Tree& set, const std::string& owner, const std::string& example);
+
 /// Sets the value at `path`. Throws InputError (at `mark`) for an unknown part or section, or a path through a
 /// value that is not a block.
 void apply_override(Tree& root, const Override& change);

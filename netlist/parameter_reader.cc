@@ -213,7 +213,6 @@ void ParameterReader::finish() const {
   for (std::size_t i = 0; i < block_.entries.size(); ++i) {
     const std::string& key = block_.entries[i].first;
     if (std::find(known_.begin(), known_.end(), key) != known_.end()) continue;
-    std::string suggestion = closest_match(key, known_);
     SourceMark where = i < block_.key_marks.size() ? block_.key_marks[i] : block_.mark;
     std::vector<std::string> sorted = known_;
     std::sort(sorted.begin(), sorted.end());
@@ -221,8 +220,7 @@ void ParameterReader::finish() const {
     std::string list;
     for (const auto& name : sorted) list += (list.empty() ? "" : ", ") + name;
     throw InputError(where, fmt::format("{} has no parameter '{}'", owner_, key),
-                     suggestion.empty() ? fmt::format("known parameters: {}", list)
-                                        : fmt::format("did you mean '{}'?", suggestion));
+                     did_you_mean(key, known_, fmt::format("known parameters: {}", list)));
   }
 }
 

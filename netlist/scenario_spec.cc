@@ -34,19 +34,8 @@ std::vector<ScenarioSpec> read_scenarios(const Tree& root, const std::vector<std
                        "give each scenario its own name");
     }
     if (const Tree* set = reader.child("set")) {
-      if (!set->is_map()) {
-        throw InputError(set->mark, "a scenario's 'set' must be a block of '<path>: <value>' lines",
-                         "write e.g. 'set: {r_pre.resistance: 20 Ohm, ambient: 50 degC}'");
-      }
-      for (std::size_t i = 0; i < set->entries.size(); ++i) {
-        const auto& [path, value] = set->entries[i];
-        SourceMark mark = i < set->key_marks.size() ? set->key_marks[i] : set->mark;
-        if (!value.is_scalar()) {
-          throw InputError(value.mark, fmt::format("override '{}' must be a single value", path),
-                           "write e.g. '47 Ohm' or '95 %'");
-        }
-        scenario.overrides.push_back(Override{path, value.text, mark});
-      }
+      scenario.overrides =
+          read_set_block(*set, "a scenario's", "write e.g. 'set: {r_pre.resistance: 20 Ohm, ambient: 50 degC}'");
     }
     bool is_built_in = std::find(built_in.begin(), built_in.end(), scenario.name) != built_in.end();
     if (reader.has("expect")) {

@@ -35,11 +35,6 @@ std::vector<std::string> node_names(const Case& spec) {
   return {nodes.begin(), nodes.end()};
 }
 
-std::string did_you_mean(const std::string& word, const std::vector<std::string>& candidates,
-                         const std::string& otherwise) {
-  std::string suggestion = closest_match(word, candidates);
-  return suggestion.empty() ? otherwise : fmt::format("did you mean '{}'?", suggestion);
-}
 
 // A part name that must name a contactor of the case.
 std::string contactor_name(const Case& spec, const Tree& node, const std::string& what) {
