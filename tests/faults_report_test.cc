@@ -49,29 +49,6 @@ const DetectionRow& row(const DetectionMatrix& matrix, const std::string& scenar
   return found ? *found : none;
 }
 
-// Table body rows (<tr> elements whose parent is a <tbody>) of the table with `id`, in order.
-std::vector<int> body_rows(const ParseResult& doc, const std::string& id) {
-  const int table = find_id(doc, id);
-  std::vector<int> rows;
-  if (table < 0) return rows;
-  for (int i = 0; i < static_cast<int>(doc.elements.size()); ++i) {
-    const Element& e = doc.elements[i];
-    if (e.name == "tr" && e.parent >= 0 && doc.elements[e.parent].name == "tbody" &&
-        doc.elements[e.parent].parent == table) {
-      rows.push_back(i);
-    }
-  }
-  return rows;
-}
-
-// The cells (<td>) of one row, as written (entities unresolved).
-std::vector<std::string> cells(const ParseResult& doc, int row) {
-  std::vector<std::string> texts;
-  for (const Element& e : doc.elements) {
-    if (e.name == "td" && e.parent == row) texts.push_back(e.text);
-  }
-  return texts;
-}
 
 int count(const std::string& text, const std::string& needle) {
   int found = 0;

@@ -70,27 +70,6 @@ void expect_well_formed(const std::string& html, const ParseResult& doc) {
   EXPECT_TRUE(contains(html, "High-voltage caution"));
 }
 
-// Body rows (<tr> under the <tbody>) of the table with `id`.
-std::vector<int> body_rows(const ParseResult& doc, const std::string& id) {
-  const int table = find_id(doc, id);
-  std::vector<int> rows;
-  for (int i = 0; table >= 0 && i < static_cast<int>(doc.elements.size()); ++i) {
-    const Element& e = doc.elements[i];
-    if (e.name == "tr" && e.parent >= 0 && doc.elements[e.parent].name == "tbody" &&
-        doc.elements[e.parent].parent == table) {
-      rows.push_back(i);
-    }
-  }
-  return rows;
-}
-
-std::vector<std::string> cells(const ParseResult& doc, int row) {
-  std::vector<std::string> texts;
-  for (const Element& e : doc.elements) {
-    if (e.name == "td" && e.parent == row) texts.push_back(e.text);
-  }
-  return texts;
-}
 
 // The row of table `id` whose first cell is `first`.
 std::vector<std::string> row_of(const ParseResult& doc, const std::string& id, const std::string& first) {
