@@ -20,6 +20,8 @@ Equations::Equations(const Circuit& circuit)
       step_(unknowns_),
       guess_(unknowns_),
       start_(unknowns_),
+      sensitivity_(unknowns_, std::max(states_, 1)),
+      state_change_(std::max(states_, 1)),
       nodes_(static_cast<int>(circuit.node_names().size())) {}
 
 models::Point Equations::point(double time, const double* states, const int* modes, const double* unknowns) const {
@@ -61,6 +63,13 @@ bool Equations::solve_network(double time, const double* states, const int* mode
     std::copy(cache_unknowns_.begin(), cache_unknowns_.end(), unknowns);
     return true;
   }
+  if (cache_valid_ && sensitivity_valid_ && states_ > 0 &&
+      std::equal(modes, modes + mode_total, sensitivity_modes_.begin()) &&
+      std::equal(modes, modes + mode_total, cache_modes_.begin())) {
+    for (int j = 0; j < states_; ++j) state_change_[j] = states[j] - cache_states_[j];
+    Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
+    y = Eigen::Map<const Eigen::VectorXd>(cache_unknowns_.data(), unknowns_) + sensitivity_ * state_change_;
+  }
   bool solved = solve_network_chord(time, states, modes, unknowns) ||
                 solve_network_uncached(time, states, modes, unknowns);
   cache_valid_ = solved;
@@ -75,6 +84,7 @@ bool Equations::solve_network(double time, const double* states, const int* mode
 
 void Equations::remember_factor(const int* modes) {
   factor_valid_ = true;
+  contraction_ = -1.0;
   factor_modes_.assign(modes, modes + circuit_.mode_count());
 }
 
@@ -96,14 +106,18 @@ bool Equations::solve_network_chord(double time, const double* states, const int
       double& scale = i < nodes ? voltage_scale : current_scale;
       scale = std::max(scale, std::fabs(y[i]));
     }
-    // A chord iteration converges only linearly, so its stop is stricter than Newton's.
+    // A chord iteration converges only linearly, so its stop is stricter than Newton's. The error left after
+    // a step is at most rate/(1 - rate) times that step, with the contraction rate measured earlier on this
+    // LU; a step of the size of the stop alone also ends it.
+    double size = step_.norm();
+    if (iteration > 0 && previous > 0.0) contraction_ = std::max(contraction_, size / previous);
+    const double left = contraction_ >= 0.0 && contraction_ < 0.5 ? contraction_ / (1.0 - contraction_) : 1.0;
     bool small = true;
     for (int i = 0; i < unknowns_; ++i) {
-      double size = i < nodes ? voltage_scale : current_scale;
-      if (std::fabs(step_[i]) > 1e-14 * size + 1e-16) small = false;
+      double scale = i < nodes ? voltage_scale : current_scale;
+      if (left * std::fabs(step_[i]) > 1e-14 * scale + 1e-16) small = false;
     }
     if (small) return true;
-    double size = step_.norm();
     if (size > 0.25 * previous) break;  // converging too slowly: refactorise
     previous = size;
   }
@@ -170,9 +184,19 @@ bool Equations::solve_network_uncached(double time, const double* states, const 
 }
 
 void Equations::rates(double time, const double* states, const int* modes, const double* unknowns, double* rates) {
-  models::Point p = point(time, states, modes, unknowns);
-  assemble(p, false);
+  state_rates(time, states, modes, unknowns, rates);
+  account_rates(time, states, modes, unknowns, rates + states_);
+}
+
+void Equations::state_rates(double time, const double* states, const int* modes, const double* unknowns,
+                            double* rates) {
+  assemble(point(time, states, modes, unknowns), false);
   for (int i = 0; i < states_; ++i) rates[i] = rate_[i];
+}
+
+void Equations::account_rates(double time, const double* states, const int* modes, const double* unknowns,
+                              double* rates) {
+  models::Point p = point(time, states, modes, unknowns);
   const auto& accounts = circuit_.energy_accounts();
   int last_part = -1;
   models::Powers powers;
@@ -181,23 +205,21 @@ void Equations::rates(double time, const double* states, const int* modes, const
       last_part = accounts[a].part;
       powers = circuit_.part(last_part).powers(p, circuit_.layout(last_part));
     }
-    double value = accounts[a].channel == 0 ? powers.source : accounts[a].channel == 1 ? powers.heat : powers.load;
-    rates[states_ + a] = value;
+    rates[a] = accounts[a].channel == 0 ? powers.source : accounts[a].channel == 1 ? powers.heat : powers.load;
   }
 }
 
 void Equations::jacobian(double time, const double* states, const int* modes, const double* unknowns,
                          double* matrix) {
-  const int n = circuit_.ode_size();
-  Eigen::Map<Eigen::MatrixXd> jacobian(matrix, n, n);
-  jacobian.setZero();
   if (states_ == 0) return;
+  Eigen::Map<Eigen::MatrixXd> jacobian(matrix, states_, states_);
   assemble(point(time, states, modes, unknowns), true);
   factor_.compute(network_by_unknown_);
   remember_factor(modes);
-  Eigen::MatrixXd unknown_by_state = -factor_.solve(network_by_state_.leftCols(states_));
-  jacobian.topLeftCorner(states_, states_) =
-      rate_by_state_.topLeftCorner(states_, states_) + rate_by_unknown_.topRows(states_) * unknown_by_state;
+  sensitivity_ = -factor_.solve(network_by_state_.leftCols(states_));
+  sensitivity_valid_ = true;
+  sensitivity_modes_.assign(modes, modes + circuit_.mode_count());
+  jacobian = rate_by_state_ + rate_by_unknown_ * sensitivity_;
 }
 
 }  // namespace linkrise::solver

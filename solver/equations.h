@@ -3,8 +3,8 @@
 // with a fresh LU when needed), the state rates f(x, y(x)),
 // the energy-account rates, and the analytic Jacobian of the reduced ODE
 //   J = df/dx + df/dy · dy/dx,  with dy/dx = -(dG/dy)^-1 · dG/dx  (implicit function theorem).
-// Energy accounts (pure quadratures) feed nothing back, so their Jacobian rows are left zero; that costs
-// at most one extra Newton iteration in CVODE and keeps the Jacobian exact for the circuit states.
+// Energy accounts (pure quadratures) feed nothing back: the driver integrates them as CVODES quadratures,
+// outside the Newton system, so the Jacobian covers the part states only.
 #include <Eigen/Dense>
 #include <vector>
 
@@ -24,7 +24,11 @@ class Equations {
   bool solve_network(double time, const double* states, const int* modes, double* unknowns);
   /// dx/dt for all ODE states (circuit states, then energy accounts) at a solved point.
   void rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
-  /// Dense column-major Jacobian d(rates)/d(states) (ode_size²) at a solved point.
+  /// dx/dt of the part states only (part_state_count values) at a solved point.
+  void state_rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
+  /// Rates of the energy accounts (W, energy_accounts().size() values) at a solved point.
+  void account_rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
+  /// Dense column-major Jacobian d(state rates)/d(part states) (part_state_count²) at a solved point.
   void jacobian(double time, const double* states, const int* modes, const double* unknowns, double* matrix);
   /// Newton iterations spent so far (statistics).
   long newton_iterations() const { return newton_iterations_; }
@@ -58,6 +62,14 @@ class Equations {
   // iteration with that LU usually converges in two cheap steps before a new factorisation is needed.
   bool factor_valid_ = false;
   std::vector<int> factor_modes_;
+  // dy/dx from the last Jacobian and the modes it holds for: predicts the next network solution from the
+  // last one (exact for a network linear in y with a fixed matrix), so most chord solves need one iteration.
+  Eigen::MatrixXd sensitivity_;
+  bool sensitivity_valid_ = false;
+  std::vector<int> sensitivity_modes_;
+  Eigen::VectorXd state_change_;  // scratch
+  // Chord contraction rate seen with the current LU (negative: not measured yet).
+  double contraction_ = -1.0;
   bool cache_valid_ = false;
   double cache_time_ = 0.0;
   std::vector<double> cache_states_;

@@ -1,6 +1,6 @@
 #include "solver/sundials_check.h"
 
-#include <cvode/cvode.h>
+#include <cvodes/cvodes.h>
 #include <fmt/format.h>
 
 namespace linkrise::solver {
@@ -25,6 +25,9 @@ void check(int flag, const char* call, double time) {
     case CV_RHSFUNC_FAIL:
     case CV_REPTD_RHSFUNC_ERR:
     case CV_UNREC_RHSFUNC_ERR:
+    case CV_QRHSFUNC_FAIL:
+    case CV_REPTD_QRHSFUNC_ERR:
+    case CV_UNREC_QRHSFUNC_ERR:
       hint = "the circuit equations could not be solved at this point (Newton did not converge)";
       break;
     default:

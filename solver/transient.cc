@@ -5,7 +5,7 @@
 #include <cmath>
 #include <memory>
 
-#include <cvode/cvode.h>
+#include <cvodes/cvodes.h>
 #include <fmt/format.h>
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
@@ -60,6 +60,8 @@ struct CvodeHandles {
   N_Vector states = nullptr;
   N_Vector scratch = nullptr;
   N_Vector tolerances = nullptr;
+  N_Vector accounts = nullptr;          // energy accounts, integrated as quadratures
+  N_Vector account_scratch = nullptr;
   SUNMatrix matrix = nullptr;
   SUNLinearSolver linear_solver = nullptr;
   void* memory = nullptr;
@@ -70,6 +72,8 @@ struct CvodeHandles {
     if (states) N_VDestroy(states);
     if (scratch) N_VDestroy(scratch);
     if (tolerances) N_VDestroy(tolerances);
+    if (accounts) N_VDestroy(accounts);
+    if (account_scratch) N_VDestroy(account_scratch);
     if (context) SUNContext_Free(&context);
   }
 };
@@ -80,7 +84,9 @@ class Driver {
       : circuit_(circuit),
         options_(options),
         equations_(circuit),
-        n_(circuit.ode_size()),
+        states_(circuit.part_state_count()),
+        n_(std::max(states_, 1)),
+        accounts_(static_cast<int>(circuit.energy_accounts().size())),
         modes_(circuit.initial_modes()),
         unknowns_(circuit.unknown_count(), 0.0),
         scratch_unknowns_(circuit.unknown_count(), 0.0),
@@ -100,13 +106,26 @@ class Driver {
       reset_guess();
       return 1;  // recoverable: CVODE retries with a smaller step
     }
-    equations_.rates(t, x, modes_.data(), unknowns_.data(), xdot);
+    equations_.state_rates(t, x, modes_.data(), unknowns_.data(), xdot);
+    if (states_ == 0) xdot[0] = 0.0;
+    return 0;
+  }
+  int account_rates(double t, const double* x, double* out) {
+    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
+      reset_guess();
+      return 1;
+    }
+    equations_.account_rates(t, x, modes_.data(), unknowns_.data(), out);
     return 0;
   }
   int jacobian(double t, const double* x, double* matrix) {
     if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
       reset_guess();
       return 1;
+    }
+    if (states_ == 0) {
+      matrix[0] = 0.0;
+      return 0;
     }
     equations_.jacobian(t, x, modes_.data(), unknowns_.data(), matrix);
     return 0;
@@ -143,6 +162,13 @@ class Driver {
  private:
   void reset_guess() { std::fill(unknowns_.begin(), unknowns_.end(), 0.0); }
   double* x() { return N_VGetArrayPointer(handles_.states); }
+  double* accounts() { return accounts_ > 0 ? N_VGetArrayPointer(handles_.accounts) : nullptr; }
+  // Part states then energy accounts, the layout of Result::initial_states/final_states.
+  std::vector<double> full_state() {
+    std::vector<double> full(x(), x() + states_);
+    if (accounts_ > 0) full.insert(full.end(), accounts(), accounts() + accounts_);
+    return full;
+  }
   // Solves the network at (t, states) into unknowns_; throws SolverError on failure.
   void solve_at(double t, const double* states) {
     if (!equations_.solve_network(t, states, modes_.data(), unknowns_.data())) {
@@ -193,9 +219,20 @@ class Driver {
     recorded_until_ = t;
   }
   void initialise_cvode(double t0);
+  // The accounts vector holds the quadratures at the last step's end only after this (fetched on demand:
+  // most steps need no copy).
+  void sync_accounts(double t) {
+    if (!accounts_stale_) return;
+    accounts_stale_ = false;
+    if (accounts_ == 0) return;
+    double at = t;
+    check(CVodeGetQuad(handles_.memory, &at, handles_.accounts), "CVodeGetQuad", t);
+  }
   void reinitialise(double t) {
+    sync_accounts(t);
     harvest_statistics();
     check(CVodeReInit(handles_.memory, t, handles_.states), "CVodeReInit", t);
+    if (accounts_ > 0) check(CVodeQuadReInit(handles_.memory, handles_.accounts), "CVodeQuadReInit", t);
     ++result_.statistics.reinitialisations;
   }
   void harvest_statistics();
@@ -211,7 +248,10 @@ class Driver {
   const Circuit& circuit_;
   const Options& options_;
   Equations equations_;
-  int n_;
+  int states_;    // part states
+  int n_;         // CVODE's state size: the part states, or one idle state for a circuit without any
+  int accounts_;  // energy accounts (CVODES quadratures)
+  bool accounts_stale_ = false;
   std::vector<int> modes_;
   std::vector<double> unknowns_;
   std::vector<double> scratch_unknowns_;
@@ -234,6 +274,9 @@ int rhs_callback(double t, N_Vector x, N_Vector xdot, void* user) {
 int jacobian_callback(double t, N_Vector x, N_Vector, SUNMatrix matrix, void* user, N_Vector, N_Vector, N_Vector) {
   return static_cast<Driver*>(user)->jacobian(t, N_VGetArrayPointer(x), SUNDenseMatrix_Data(matrix));
 }
+int quadrature_callback(double t, N_Vector x, N_Vector rates, void* user) {
+  return static_cast<Driver*>(user)->account_rates(t, N_VGetArrayPointer(x), N_VGetArrayPointer(rates));
+}
 int root_callback(double t, N_Vector x, double* out, void* user) {
   return static_cast<Driver*>(user)->roots(t, N_VGetArrayPointer(x), out);
 }
@@ -251,10 +294,26 @@ void Driver::initialise_cvode(double t0) {
   for (int i = 0; i < n_; ++i) {
     tolerance[i] = options_.absolute_tolerance * (i < static_cast<int>(info.size()) ? info[i].tolerance_scale : 1.0);
   }
+  if (accounts_ > 0) {
+    handles_.accounts = N_VNew_Serial(accounts_, handles_.context);
+    check_pointer(handles_.accounts, "N_VNew_Serial");
+    handles_.account_scratch = N_VNew_Serial(accounts_, handles_.context);
+    check_pointer(handles_.account_scratch, "N_VNew_Serial");
+    std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
+  }
   handles_.memory = CVodeCreate(CV_BDF, handles_.context);
   check_pointer(handles_.memory, "CVodeCreate");
-  std::copy(result_.initial_states.begin(), result_.initial_states.end(), x());
+  std::fill(x(), x() + n_, 0.0);
+  std::copy(result_.initial_states.begin(), result_.initial_states.begin() + states_, x());
   check(CVodeInit(handles_.memory, rhs_callback, t0, handles_.states), "CVodeInit", t0);
+  if (accounts_ > 0) {
+    // Quadratures stay out of the Newton system and out of the error test: they are as accurate as the
+    // states they are integrated from, and the dense matrix stays the size of the part states.
+    check(CVodeQuadInit(handles_.memory, quadrature_callback, handles_.accounts), "CVodeQuadInit", t0);
+    check(CVodeQuadSStolerances(handles_.memory, options_.relative_tolerance, options_.absolute_tolerance),
+          "CVodeQuadSStolerances", t0);
+    check(CVodeSetQuadErrCon(handles_.memory, SUNTRUE), "CVodeSetQuadErrCon", t0);
+  }
   check(CVodeSetUserData(handles_.memory, this), "CVodeSetUserData", t0);
   check(CVodeSVtolerances(handles_.memory, options_.relative_tolerance, handles_.tolerances), "CVodeSVtolerances", t0);
   handles_.matrix = SUNDenseMatrix(n_, n_, handles_.context);
@@ -353,9 +412,7 @@ Result Driver::run() {
       double reached = t;
       int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
       check(flag, "CVode", reached);
-      if (++steps > options_.max_steps) {
-        throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
-      }
+      accounts_stale_ = true;
       // Supervisor samples and commands inside (t, reached], in time order; commands first on a tie.
       bool stepped_back = false;
       double* dense = N_VGetArrayPointer(handles_.scratch);
@@ -367,6 +424,11 @@ Result Driver::run() {
         if (command_time <= sample_time) {
           if (command_time < reached) {
             check(CVodeGetDky(handles_.memory, command_time, 0, handles_.scratch), "CVodeGetDky", command_time);
+            if (accounts_ > 0) {
+              check(CVodeGetQuadDky(handles_.memory, command_time, 0, handles_.accounts), "CVodeGetQuadDky",
+                    command_time);
+            }
+            accounts_stale_ = false;
             result_.steps.truncate_after(command_time);
             record_until(command_time, dense);
             std::copy(dense, dense + n_, x());
@@ -425,13 +487,21 @@ Result Driver::run() {
       t = reached;
     }
     result_.end_time = t;
-    result_.final_states.assign(x(), x() + n_);
+    sync_accounts(t);
+    result_.final_states = full_state();
     stored_energies(t, result_.final_states.data(), result_.final_stored);
   } catch (const SolverError& error) {
     result_.outcome = Outcome::SolverFailure;
     result_.message = error.what();
     result_.end_time = error.time();
-    if (handles_.states) result_.final_states.assign(x(), x() + n_);
+    if (handles_.states) {
+      try {
+        sync_accounts(result_.end_time);
+      } catch (const SolverError&) {
+        // keep the accounts of the last synchronised time
+      }
+      result_.final_states = full_state();
+    }
   }
   harvest_statistics();
   Statistics& s = result_.statistics;

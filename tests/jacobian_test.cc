@@ -73,7 +73,7 @@ bool compare_at(const Circuit& circuit, const std::vector<double>& x, const std:
   const double t = 0.0;
   std::vector<double> y(u, 0.0);
   if (!equations.solve_network(t, x.data(), modes.data(), y.data())) return false;
-  std::vector<double> f(n), analytic(static_cast<std::size_t>(n) * n);
+  std::vector<double> f(n), analytic(static_cast<std::size_t>(m) * m);
   equations.rates(t, x.data(), modes.data(), y.data(), f.data());
   equations.jacobian(t, x.data(), modes.data(), y.data(), analytic.data());
 
@@ -114,7 +114,7 @@ bool compare_at(const Circuit& circuit, const std::vector<double>& x, const std:
     double row = std::fabs(f[i]);
     for (int k = 0; k < m; ++k) row += std::fabs(estimates[k][1][i]) * scale[k];
     for (int j = 0; j < m; ++j) {
-      const double a = analytic[i + j * n];
+      const double a = analytic[i + j * m];
       const double floor = 1e-8 * row / scale[j] + 1e-6 * scale[i] / (scale[j] * duration);
       double closest = estimates[j][1][i], excess = std::numeric_limits<double>::infinity();
       for (int k = 1; k < kSteps; ++k) {
@@ -129,10 +129,6 @@ bool compare_at(const Circuit& circuit, const std::vector<double>& x, const std:
                              << circuit.state_info()[i].name << " by " << circuit.state_info()[j].name
                              << "]: analytic " << a << ", closest difference " << closest;
     }
-  }
-  // Energy accounts feed nothing back: their columns must be zero, in both.
-  for (int i = 0; i < n; ++i) {
-    for (int j = m; j < n; ++j) EXPECT_EQ(analytic[i + j * n], 0.0) << where;
   }
   return true;
 }
@@ -263,7 +259,7 @@ TEST(Jacobian, RcEntryMatchesTheClosedForm) {
   Equations equations(circuit);
   std::vector<double> x = circuit.initial_states(), y(circuit.unknown_count(), 0.0);
   ASSERT_TRUE(equations.solve_network(0.0, x.data(), circuit.initial_modes().data(), y.data()));
-  std::vector<double> matrix(circuit.ode_size() * circuit.ode_size());
+  std::vector<double> matrix(circuit.part_state_count() * circuit.part_state_count());
   equations.jacobian(0.0, x.data(), circuit.initial_modes().data(), y.data(), matrix.data());
   // dvc/dt = (V - vc)/(RC) → d/dvc = -1/(RC) = -10 /s [RC closed form].
   EXPECT_NEAR(matrix[0], -10.0, 1e-12 * 10.0);
