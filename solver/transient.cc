@@ -90,12 +90,16 @@ class Driver {
         modes_(circuit.initial_modes()),
         unknowns_(circuit.unknown_count(), 0.0),
         scratch_unknowns_(circuit.unknown_count(), 0.0),
-        row_(waveform_headers(circuit).size(), 0.0) {
+        row_(circuit.node_names().size() + circuit.signal_columns().size(), 0.0) {
     pending_ = options.commands;
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const Command& a, const Command& b) { return a.time < b.time; });
-    result_.steps = Waveform(waveform_headers(circuit));
-    result_.samples = Waveform(waveform_headers(circuit));
+    auto headers = waveform_headers(circuit);
+    result_.steps = Waveform(headers);
+    result_.samples = Waveform(std::move(headers));
+    // Growing the row store step by step would copy it a dozen times per run; a sequence run takes about a
+    // thousand steps.
+    if (options.record_steps) result_.steps.reserve(2048);
   }
 
   Result run();
@@ -285,6 +289,7 @@ void Driver::initialise_cvode(double t0) {
   check(SUNContext_Create(nullptr, &handles_.context), "SUNContext_Create", t0);
   handles_.states = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.states, "N_VNew_Serial");
+  check(N_VEnableFusedOps_Serial(handles_.states, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
   handles_.scratch = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.scratch, "N_VNew_Serial");
   handles_.tolerances = N_VNew_Serial(n_, handles_.context);
@@ -297,6 +302,7 @@ void Driver::initialise_cvode(double t0) {
   if (accounts_ > 0) {
     handles_.accounts = N_VNew_Serial(accounts_, handles_.context);
     check_pointer(handles_.accounts, "N_VNew_Serial");
+    check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
     handles_.account_scratch = N_VNew_Serial(accounts_, handles_.context);
     check_pointer(handles_.account_scratch, "N_VNew_Serial");
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
@@ -413,6 +419,9 @@ Result Driver::run() {
       int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
       check(flag, "CVode", reached);
       accounts_stale_ = true;
+      if (++steps > options_.max_steps) {
+        throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
+      }
       // Supervisor samples and commands inside (t, reached], in time order; commands first on a tie.
       bool stepped_back = false;
       double* dense = N_VGetArrayPointer(handles_.scratch);

@@ -15,6 +15,11 @@ int Waveform::column(const std::string& name) const {
   return -1;
 }
 
+void Waveform::reserve(std::size_t rows) {
+  times_.reserve(rows);
+  values_.reserve(rows * headers_.size());
+}
+
 void Waveform::add_row(double time, const std::vector<double>& values) {
   if (values.size() != headers_.size()) throw std::logic_error("waveform row has the wrong width");
   times_.push_back(time);

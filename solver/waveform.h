@@ -18,6 +18,8 @@ class Waveform {
   /// -1 when absent.
   int column(const std::string& name) const;
 
+  /// Room for `rows` rows without reallocation (a run records about one row per solver step).
+  void reserve(std::size_t rows);
   void add_row(double time, const std::vector<double>& values);
   /// Drops rows after `time` (used when the solver steps back to apply a decision it sampled in a step).
   void truncate_after(double time);
