@@ -16,12 +16,12 @@ const char* status_word(CaseEvaluation::Status status) {
   return "unknown";
 }
 
-CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file) {
+CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file, solver::Waveform* row_store) {
   auto started = std::chrono::steady_clock::now();
   CaseEvaluation evaluation;
   try {
     netlist::Case spec = netlist::read_case(root, file);
-    CaseRun run(spec);
+    CaseRun run(spec, [row_store](solver::Options& options) { options.step_store = row_store; });
     if (run.solver_failed()) {
       evaluation.status = CaseEvaluation::Status::SolverFailure;
       evaluation.message = run.result().message;
@@ -32,6 +32,7 @@ CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& 
         evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
       }
     }
+    if (row_store) *row_store = run.release_steps();
   } catch (const netlist::InputError& error) {
     evaluation.status = CaseEvaluation::Status::InputError;
     evaluation.message = error.what();

@@ -7,6 +7,7 @@
 
 #include "app/golden.h"
 #include "netlist/tree.h"
+#include "solver/waveform.h"
 
 namespace linkrise::app {
 
@@ -22,8 +23,10 @@ struct CaseEvaluation {
 
 /// Evaluates a case file.
 CaseEvaluation evaluate_case_file(const std::string& path);
-/// Evaluates a case held as a tree (after overrides); `file` names it in messages.
-CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file);
+/// Evaluates a case held as a tree (after overrides); `file` names it in messages. With `row_store`, the run
+/// records its step rows in that storage and gives it back afterwards (a study's worker reuses one).
+CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file,
+                                  solver::Waveform* row_store = nullptr);
 
 const char* status_word(CaseEvaluation::Status status);
 

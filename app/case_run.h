@@ -31,6 +31,8 @@ class CaseRun {
   const analysis::EnergyAudit& audit() const { return audit_; }
   /// Metrics, judged limits and verdict; empty (passing) when the solver failed.
   const analysis::Evaluation& evaluation() const { return evaluation_; }
+  /// Hands the step rows' storage back (for reuse through solver::Options::step_store); result() then has none.
+  solver::Waveform release_steps() { return std::move(result_.steps); }
 
  private:
   solver::Circuit circuit_;

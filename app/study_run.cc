@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "app/study_pool.h"
+#include "solver/waveform.h"
 #include "netlist/input_error.h"
 
 namespace linkrise::app {
@@ -81,7 +82,9 @@ StudyResults run_study(const std::string& file, std::size_t count, const TreeOf&
   for_each_index(
       count, jobs,
       [&](std::size_t i) {
-        CaseEvaluation evaluation = evaluate_case_tree(tree_of(i), file);
+        // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
+        thread_local solver::Waveform row_store;
+        CaseEvaluation evaluation = evaluate_case_tree(tree_of(i), file, &row_store);
         PointResult& point = results.points[i];
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);

@@ -95,7 +95,12 @@ class Driver {
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const Command& a, const Command& b) { return a.time < b.time; });
     auto headers = waveform_headers(circuit);
-    result_.steps = Waveform(headers);
+    if (options.step_store) {
+      result_.steps = std::move(*options.step_store);
+      result_.steps.restart(headers);
+    } else {
+      result_.steps = Waveform(headers);
+    }
     result_.samples = Waveform(std::move(headers));
     // Growing the row store step by step would copy it a dozen times per run; a sequence run takes about a
     // thousand steps.

@@ -82,6 +82,9 @@ struct Options {
   std::vector<Command> commands;  // scheduled actions (the case's events)
   std::vector<Watch> watches;
   Supervisor* supervisor = nullptr;
+  // Row storage to reuse for Result::steps (studies keep one per worker and hand it back after each sample),
+  // so a run allocates no waveform; null: fresh storage.
+  Waveform* step_store = nullptr;
 };
 
 /// Options from a case's run block and events; the command line may change them afterwards.

@@ -20,6 +20,12 @@ void Waveform::reserve(std::size_t rows) {
   values_.reserve(rows * headers_.size());
 }
 
+void Waveform::restart(std::vector<std::string> headers) {
+  headers_ = std::move(headers);
+  times_.clear();
+  values_.clear();
+}
+
 void Waveform::add_row(double time, const std::vector<double>& values) {
   if (values.size() != headers_.size()) throw std::logic_error("waveform row has the wrong width");
   times_.push_back(time);

@@ -20,6 +20,8 @@ class Waveform {
 
   /// Room for `rows` rows without reallocation (a run records about one row per solver step).
   void reserve(std::size_t rows);
+  /// Drops every row and takes new headers, keeping the storage (a study reuses one store per worker).
+  void restart(std::vector<std::string> headers);
   void add_row(double time, const std::vector<double>& values);
   /// Drops rows after `time` (used when the solver steps back to apply a decision it sampled in a step).
   void truncate_after(double time);

@@ -35,6 +35,8 @@ TEST(StudySweep, RangesAndListsExpandAsWritten) {
   EXPECT_THROW(parse_variation("r_pre.resistance=1Ohm..2Ohm:1", mark), netlist::InputError);
 }
 
+// Also shows that a worker's reused row store (solver::Options::step_store) changes no result: the sweep
+// reuses one per worker, the individual runs record into fresh storage, and the metrics must agree bit for bit.
 TEST(StudySweep, PointsEqualIndividualRunsAndTheClosedForm) {
   std::string file = write_case("study_rc_sweep.yaml", rc_case_text("  r_pre.resistance: {plus_minus: 1 %}\n"));
   netlist::SourceMark mark{"test", 1, 1};
