@@ -80,3 +80,21 @@ TEST(EnergyAudit, RcChargeSplitsTheSourceEnergyInHalvesAtDefaultTolerances) {
 TEST(EnergyAudit, RcChargeSplitsTheSourceEnergyInHalvesAtTightTolerances) {
   check_rc_halves(1e-10, 1e-12, 1e-8);
 }
+
+TEST(EnergyAudit, CircuitWithoutDynamicStatesStillIntegratesItsAccounts) {
+  // No capacitor, inductor or cell: CVODE integrates one idle state and the accounts as quadratures.
+  // 10 V across 1 Ohm + 9 Ohm for 1 s: I = 1 A, 1 J in the source resistance and 9 J in r1 [Ohm, Joule].
+  Circuit circuit(linkrise::testing::case_from(
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, series_resistance: 1 Ohm}\n"
+      "  - {name: r1, kind: resistor, nodes: [plus, gnd], resistance: 9 Ohm}\n"
+      "run: {duration: 1 s}\n"));
+  ASSERT_EQ(circuit.part_state_count(), 0);
+  auto result = linkrise::solver::simulate(circuit, linkrise::solver::options_from(circuit));
+  ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
+  auto audit = audit_energy(circuit, result);
+  EXPECT_NEAR(audit.delivered, 10.0, 1e-9);
+  EXPECT_NEAR(audit.parts[1].dissipated, 9.0, 1e-9);
+  EXPECT_NEAR(audit.dissipated, 10.0, 1e-9);
+}
