@@ -61,7 +61,6 @@ struct CvodeHandles {
   N_Vector scratch = nullptr;
   N_Vector tolerances = nullptr;
   N_Vector accounts = nullptr;          // energy accounts, integrated as quadratures
-  N_Vector account_scratch = nullptr;
   SUNMatrix matrix = nullptr;
   SUNLinearSolver linear_solver = nullptr;
   void* memory = nullptr;
@@ -73,7 +72,6 @@ struct CvodeHandles {
     if (scratch) N_VDestroy(scratch);
     if (tolerances) N_VDestroy(tolerances);
     if (accounts) N_VDestroy(accounts);
-    if (account_scratch) N_VDestroy(account_scratch);
     if (context) SUNContext_Free(&context);
   }
 };
@@ -89,7 +87,6 @@ class Driver {
         accounts_(static_cast<int>(circuit.energy_accounts().size())),
         modes_(circuit.initial_modes()),
         unknowns_(circuit.unknown_count(), 0.0),
-        scratch_unknowns_(circuit.unknown_count(), 0.0),
         row_(circuit.node_names().size() + circuit.signal_columns().size(), 0.0) {
     pending_ = options.commands;
     std::stable_sort(pending_.begin(), pending_.end(),
@@ -111,39 +108,27 @@ class Driver {
 
   // CVODE callbacks
   int rhs(double t, const double* x, double* xdot) {
-    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
-      reset_guess();
-      return 1;  // recoverable: CVODE retries with a smaller step
-    }
+    if (!network_solved(t, x)) return 1;
     equations_.state_rates(t, x, modes_.data(), unknowns_.data(), xdot);
     if (states_ == 0) xdot[0] = 0.0;
     return 0;
   }
   int account_rates(double t, const double* x, double* out) {
-    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
-      reset_guess();
-      return 1;
-    }
+    if (!network_solved(t, x)) return 1;
     equations_.account_rates(t, x, modes_.data(), unknowns_.data(), out);
     return 0;
   }
   int jacobian(double t, const double* x, double* matrix) {
-    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
-      reset_guess();
-      return 1;
-    }
     if (states_ == 0) {
-      matrix[0] = 0.0;
+      matrix[0] = 0.0;  // the idle state of a circuit without dynamic states
       return 0;
     }
+    if (!network_solved(t, x)) return 1;
     equations_.jacobian(t, x, modes_.data(), unknowns_.data(), matrix);
     return 0;
   }
   int roots(double t, const double* x, double* out) {
-    if (!equations_.solve_network(t, x, modes_.data(), unknowns_.data())) {
-      reset_guess();
-      return 1;
-    }
+    if (!network_solved(t, x)) return 1;
     models::Point point = equations_.point(t, x, modes_.data(), unknowns_.data());
     for (int p = 0; p < circuit_.part_count(); ++p) {
       if (circuit_.part(p).root_count() > 0)
@@ -170,6 +155,13 @@ class Driver {
 
  private:
   void reset_guess() { std::fill(unknowns_.begin(), unknowns_.end(), 0.0); }
+  // The network at (t, x) into unknowns_ for a callback; false (after clearing the guess) tells CVODE the
+  // failure is recoverable: it retries with a smaller step.
+  bool network_solved(double t, const double* x) {
+    if (equations_.solve_network(t, x, modes_.data(), unknowns_.data())) return true;
+    reset_guess();
+    return false;
+  }
   double* x() { return N_VGetArrayPointer(handles_.states); }
   double* accounts() { return accounts_ > 0 ? N_VGetArrayPointer(handles_.accounts) : nullptr; }
   // Part states then energy accounts, the layout of Result::initial_states/final_states.
@@ -263,7 +255,6 @@ class Driver {
   bool accounts_stale_ = false;
   std::vector<int> modes_;
   std::vector<double> unknowns_;
-  std::vector<double> scratch_unknowns_;
   std::vector<double> row_;
   std::vector<Command> pending_;
   CvodeHandles handles_;
@@ -308,8 +299,6 @@ void Driver::initialise_cvode(double t0) {
     handles_.accounts = N_VNew_Serial(accounts_, handles_.context);
     check_pointer(handles_.accounts, "N_VNew_Serial");
     check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
-    handles_.account_scratch = N_VNew_Serial(accounts_, handles_.context);
-    check_pointer(handles_.account_scratch, "N_VNew_Serial");
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
   handles_.memory = CVodeCreate(CV_BDF, handles_.context);
