@@ -1,5 +1,5 @@
 // Time to solve the demo case in-process (parse once, build and simulate per iteration), with the solver's
-// statistics as counters. Target (issue 2): <= 1 ms per solve of a case of this size.
+// statistics as counters. Target: one solve of a case of this size in at most 1 ms (README, Performance).
 #include <benchmark/benchmark.h>
 
 #include "netlist/case.h"

@@ -1,10 +1,10 @@
 // Kind `cable` from geometry, checked through full simulations against handbook formulas
-// (/work/shared/check-values.md, "Conductors"):
+// (docs/references.md [R-wire-pair-inductance], [R-conductor-resistivity]):
 //   loop inductance per metre of two parallel round wires, uniform current: L′ = (µ0/π)·[ln(d/r) + ¼] [pub];
 //   loop resistance R = ρ20·(1 + α20·(T − 20 °C))·2·length/A, copper ρ20 = 1.68e-8 Ω·m, α20 = 0.00393 /K
 //   (CRC Handbook, from memory), aluminium 2.65e-8 Ω·m, 0.00429 /K (handbook tables, from memory).
-// The current of a step into the cable alone is i(t) = V/R·(1 − e^(−t·R/L)) (series RL, check-values "Series
-// RLC"), so the simulated current measures both R and L. Runs at rtol 1e-10: compared to 1e-6 relative.
+// The current of a step into the cable alone is i(t) = V/R·(1 − e^(−t·R/L)) (series RL, [R-RL-step]), so the
+// simulated current measures both R and L. Runs at rtol 1e-10: compared to 1e-6 relative.
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -53,7 +53,7 @@ void expect_rl_step(const std::string& yaml, double resistance, double inductanc
 TEST(CableGeometry, CopperPairPerMetreMatchesHandbook) {
   const double r = 4e-3, d = 20e-3, area = std::numbers::pi * r * r;
   const double inductance = kMu0 / std::numbers::pi * (std::log(d / r) + 0.25);
-  EXPECT_NEAR(inductance, 0.7438e-6, 0.0001e-6);  // check-values: r = 4 mm, d = 20 mm → 0.7438 µH/m
+  EXPECT_NEAR(inductance, 0.7438e-6, 0.0001e-6);  // [R-wire-pair-inductance]: r = 4 mm, d = 20 mm → 0.7438 µH/m
   const double resistance = 1.68e-8 * 2.0 / area;
   expect_rl_step(step_into("length: 1 m, radius: 4 mm, spacing: 20 mm, material: copper"), resistance, inductance);
   // Given by cross-section instead (r = √(A/π)), 10 m long: R and L scale with the length.

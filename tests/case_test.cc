@@ -162,7 +162,7 @@ TEST(Case, DuplicatePartNamesAreRejected) {
 
 TEST(Case, PartNamesThatWouldBreakOutputColumnsAreRejected) {
   // Columns are "<part>.<quantity> [unit]" in a comma-separated file: spaces, dots, brackets and commas in a
-  // name would make headers ambiguous (common practice for CSV headers).
+  // name would make headers ambiguous (common practice for CSV headers, docs/references.md [R-CSV-names]).
   for (const char* bad : {"\"r pre\"", "\"r.pre\"", "\"r[1]\"", "\"r,1\"", "\"1r\""}) {
     std::string text = resistor_case();
     text.replace(text.find("name: r1") + 6, 2, bad);
@@ -268,7 +268,8 @@ TEST(Case, RunToleranceMustBeUsable) {
   expect_at(error, 14, 9);
   EXPECT_TRUE(contains(error.problem(), "too loose")) << error.what();
 
-  // Below about 1e-14 relative a double cannot tell two states apart (machine epsilon 2.2e-16, common practice).
+  // Below about 1e-14 relative a double cannot tell two states apart (machine epsilon 2.2e-16, common practice;
+  // docs/references.md [R-IEEE754]).
   text = resistor_case();
   text += "  rtol: 1e-30\n";  // line 14
   error = input_error([&] { case_from(text); });

@@ -1,5 +1,6 @@
 // Cell string OCV(SOC) table: Steffen's monotone cubic (M. Steffen, "A simple method for monotonic
-// interpolation in one dimension", Astron. Astrophys. 239, 1990 — as implemented by GSL's gsl_interp_steffen).
+// interpolation in one dimension", Astron. Astrophys. 239, 1990 — as implemented by GSL's gsl_interp_steffen;
+// docs/references.md [R-Steffen]).
 #include <gtest/gtest.h>
 
 #include <string>

@@ -124,8 +124,8 @@ TEST_F(Cli, DemoCaseWritesWaveformsAndSummary) {
   EXPECT_LE(summary["energy_audit"]["relative_residual"]["value"].get<double>(), 1e-6);
   EXPECT_EQ(summary["parts"]["link"]["stored_energy_end"]["unit"], "J");
 
-  // Regression with digit tolerances. The link's stored energy is ½·C·V² of its final voltage [practice]
-  // (the ESR drop of the converter's and bleed's < 1 A is below 1e-5 of it).
+  // Regression with digit tolerances. The link's stored energy is ½·C·V² of its final voltage
+  // (docs/references.md [R-RC-energy]; the ESR drop of the converter's and bleed's < 1 A is below 1e-5 of it).
   auto last = split(csv.back());
   int link_column = static_cast<int>(std::find(header.begin(), header.end(), "link_plus [V]") - header.begin());
   double v_link = std::stod(last[link_column]);

@@ -1,4 +1,4 @@
-// Cable checks against outside references (shared/check-values.md); sources named beside each check.
+// Cable checks against outside references (docs/references.md); sources named beside each check by tag.
 #include "models/conductor.h"
 
 #include <gtest/gtest.h>
@@ -14,7 +14,8 @@ constexpr double millimetre = 1e-3;
 constexpr double microhenry = 1e-6;
 
 TEST(Conductor, CopperResistancePerMetreIsRhoLengthOverArea) {
-  // R = ρ·L/A with ρ20 = 1.68e-8 Ω·m (CRC Handbook [mem]); 35 mm², 1 m → 0.480 mΩ one way [derived].
+  // R = ρ·L/A with ρ20 = 1.68e-8 Ω·m (CRC Handbook [mem], [R-conductor-resistivity]); 35 mm², 1 m → 0.480 mΩ
+  // one way [derived].
   const double area = 35.0 * square_millimetre;
   EXPECT_NEAR(one_way_resistance(1.0, area, ConductorMaterial::copper, kelvin_at_20_celsius), 0.480e-3,
               1e-15);
@@ -27,8 +28,8 @@ TEST(Conductor, CopperResistancePerMetreIsRhoLengthOverArea) {
 }
 
 TEST(Conductor, CopperBelowStandardMaximumForStrandedCable) {
-  // IEC 60228 class 5 (flexible) copper, 35 mm²: maximum 0.565 Ω/km at 20 °C [mem]. Bulk ρ·L/A must come
-  // out below that maximum but not far below (stranding and the annealed-copper standard add ~10–20 %).
+  // IEC 60228 class 5 (flexible) copper, 35 mm²: maximum 0.565 Ω/km at 20 °C [mem, R-IEC60228]. Bulk ρ·L/A
+  // must come out below that maximum but not far below (stranding and the annealed-copper standard add ~10–20 %).
   const double per_kilometre =
       one_way_resistance(1000.0, 35.0 * square_millimetre, ConductorMaterial::copper, kelvin_at_20_celsius);
   EXPECT_LT(per_kilometre, 0.565);
@@ -36,14 +37,14 @@ TEST(Conductor, CopperBelowStandardMaximumForStrandedCable) {
 }
 
 TEST(Conductor, AluminiumResistance) {
-  // ρ20 = 2.65e-8 Ω·m [mem]; 50 mm², 2 m one way → 1.06 mΩ [derived].
+  // ρ20 = 2.65e-8 Ω·m (handbook tables [mem], [R-conductor-resistivity]); 50 mm², 2 m one way → 1.06 mΩ [derived].
   EXPECT_NEAR(one_way_resistance(2.0, 50.0 * square_millimetre, ConductorMaterial::aluminium,
                                  kelvin_at_20_celsius),
               1.06e-3, 1e-15);
 }
 
 TEST(Conductor, PairInductanceCheckValues) {
-  // r = 4.0 mm, d = 20 mm (check-values.md [derived]): 0.7438 µH/m DC form, 0.6267 µH/m HF form.
+  // r = 4.0 mm, d = 20 mm ([R-wire-pair-inductance] [derived]): 0.7438 µH/m DC form, 0.6267 µH/m HF form.
   // Tolerance: half a unit in the last quoted digit.
   EXPECT_NEAR(pair_inductance_direct_current(4.0 * millimetre, 20.0 * millimetre) / microhenry, 0.7438,
               5e-5);
@@ -52,8 +53,8 @@ TEST(Conductor, PairInductanceCheckValues) {
 }
 
 TEST(Conductor, DirectCurrentFormMatchesHandbookGeometricMeanRadius) {
-  // Power-engineering handbook form L = 4e-7·ln(D/r′), r′ = 0.7788·r [pub]: r′ = e^(−1/4)·r, so the two
-  // agree up to the 4-digit rounding of 0.7788 (±5e-5 in r′/r → ±6.4e-5 in the log → ±3.5e-5 of L here).
+  // Power-engineering handbook form L = 4e-7·ln(D/r′), r′ = 0.7788·r [pub, R-wire-pair-inductance]: r′ = e^(−1/4)·r, so
+  // the two agree up to the 4-digit rounding of 0.7788 (±5e-5 in r′/r → ±6.4e-5 in the log → ±3.5e-5 of L here).
   const double r = 4.0 * millimetre, d = 20.0 * millimetre;
   EXPECT_NEAR(pair_inductance_direct_current(r, d), 4e-7 * std::log(d / (0.7788 * r)),
               4e-5 * pair_inductance_direct_current(r, d));

@@ -1,5 +1,6 @@
 // Energy audit: delivered by sources = dissipated + taken by loads + change of stored energy (conservation of
-// energy [practice]); each term is integrated by CVODE, so the residual measures the solver's accuracy.
+// energy, docs/references.md [R-Ohm-Joule]); each term is integrated by CVODE, so the residual measures the
+// solver's accuracy.
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -19,7 +20,7 @@ TEST(EnergyAudit, DemoCaseResidualAtDefaultTolerances) {
   auto result = linkrise::solver::simulate(circuit, linkrise::solver::options_from(circuit));
   ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
   auto audit = audit_energy(circuit, result);
-  // The issue's target: residual ≤ 1e-6 of the largest term at default tolerances.
+  // The project's target (README, Outputs): residual ≤ 1e-6 of the largest term at default tolerances.
   EXPECT_LE(audit.relative_residual, 1e-6);
   EXPECT_GT(audit.delivered, 100.0);  // the link really charged (hundreds of joules)
   EXPECT_GT(audit.to_loads, 0.0);     // the auxiliary converter ran
@@ -46,7 +47,7 @@ TEST(EnergyAudit, DemoCaseResidualAtDefaultTolerances) {
 }
 
 namespace {
-// RC charge from 0 V to V (Alexander & Sadiku ch. 7 [mem]; check-values.md [pub]): the source delivers C·V², the
+// RC charge from 0 V to V (docs/references.md [R-RC-energy]): the source delivers C·V², the
 // capacitor stores ½·C·V², the resistor dissipates ½·C·V² (independent of R). 1 mF to 400 V → 80 J each.
 void check_rc_halves(double rtol, double atol, double term_tolerance) {
   linkrise::testing::Simulation sim(
@@ -61,13 +62,13 @@ void check_rc_halves(double rtol, double atol, double term_tolerance) {
   ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
   auto audit = audit_energy(sim.circuit, result);
   const double half = 0.5 * 1e-3 * 400.0 * 400.0;
-  EXPECT_NEAR(half, 80.0, 1e-12);  // check-values.md: 1 mF to 400 V → 80 J [derived]
+  EXPECT_NEAR(half, 80.0, 1e-12);  // [R-RC-energy]: 1 mF to 400 V → 80 J [derived]
   EXPECT_NEAR(audit.delivered, 2 * half, term_tolerance * 2 * half);
   EXPECT_NEAR(audit.stored_change, half, term_tolerance * half);
   EXPECT_NEAR(audit.dissipated, half, term_tolerance * half);
   EXPECT_NEAR(audit.parts[1].dissipated, half, term_tolerance * half);
   EXPECT_EQ(audit.to_loads, 0.0);
-  // The residual target of the issue holds at any tolerance of 1e-7 or tighter.
+  // The residual target (≤ 1e-6) holds at any tolerance of 1e-7 or tighter.
   EXPECT_LE(audit.relative_residual, 1e-6);
 }
 }  // namespace
@@ -83,7 +84,7 @@ TEST(EnergyAudit, RcChargeSplitsTheSourceEnergyInHalvesAtTightTolerances) {
 
 TEST(EnergyAudit, CircuitWithoutDynamicStatesStillIntegratesItsAccounts) {
   // No capacitor, inductor or cell: CVODE integrates one idle state and the accounts as quadratures.
-  // 10 V across 1 Ohm + 9 Ohm for 1 s: I = 1 A, 1 J in the source resistance and 9 J in r1 [Ohm, Joule].
+  // 10 V across 1 Ohm + 9 Ohm for 1 s: I = 1 A, 1 J in the source resistance and 9 J in r1 [R-Ohm-Joule].
   Circuit circuit(linkrise::testing::case_from(
       "ground: gnd\n"
       "parts:\n"

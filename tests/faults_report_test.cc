@@ -116,11 +116,12 @@ TEST(FaultsReport, BadDesignIsWellFormedWithOneMarkedRowPerScenario) {
     const bool survived = row(matrix, texts[0]).resistor_survived;
     EXPECT_EQ(texts[5], survived ? "yes" : "NO") << texts[0];
   }
-  // Into the short the resistor takes V²/R for the 2 s timeout (Joule's law, common practice): far over its
-  // 120 J rating, so the bar says so.
+  // Into the short the resistor takes V²/R for the 2 s timeout (Joule's law, common practice: docs/references.md
+  // [R-Ohm-Joule]): far over its 120 J rating, so the bar says so.
   EXPECT_TRUE(contains(cells(doc, stress[1])[4], "OVER RATING")) << cells(doc, stress[1])[4];
   EXPECT_TRUE(contains(cells(doc, stress[1])[2], "K over")) << cells(doc, stress[1])[2];
-  // The nominal charge takes ½·C·V² ≈ 84 J of the 120 J rating (RC charge energy, check-values.md): 70 %.
+  // The nominal charge takes ½·C·V² ≈ 84 J of the 120 J rating (RC charge energy, docs/references.md
+  // [R-RC-energy]): 70 %.
   EXPECT_TRUE(contains(cells(doc, stress[0])[4], "\u00a070\u00a0%")) << cells(doc, stress[0])[4];
 
   // One plot per simulated scenario, each drawing its curve; the verdict; the not-applicable reasons; the caution.

@@ -42,7 +42,7 @@ TEST(Faults, WellDesignedCaseCatchesEveryBuiltInFault) {
   EXPECT_EQ(row(matrix, "slow_main_contactor").actual, "closed");  // a scenario the case defines
   // The rise check is due 25 ms after the start (a 5 ms sample), so it is the detection time into a short.
   EXPECT_NEAR(row(matrix, "shorted_link").detection_time, 25e-3, 1e-12);
-  // Twice the capacitance: the resistor takes ½·C·V² twice over (check-values.md: RC charge energy).
+  // Twice the capacitance: the resistor takes ½·C·V² twice over (docs/references.md [R-RC-energy]).
   double nominal = row(matrix, "nominal").energy, doubled = row(matrix, "oversize_capacitance").energy;
   EXPECT_NEAR(doubled / nominal, 2.0, 0.05);  // the 100 W auxiliary load adds a few per cent
 }
@@ -56,7 +56,8 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
   EXPECT_EQ(shorted.actual, "timeout");
   EXPECT_FALSE(shorted.resistor_survived);
   EXPECT_FALSE(shorted.pass);
-  // Into the short the resistor takes V²/R for the whole 2 s timeout (Joule's law [practice]): ~22 kJ.
+  // Into the short the resistor takes V²/R for the whole 2 s timeout (Joule's law, docs/references.md
+  // [R-Ohm-Joule]): ~22 kJ.
   EXPECT_GT(shorted.energy, 20e3);
   EXPECT_EQ(row(matrix, "missing_capacitance").actual, "closed");  // no minimum time: nothing notices
   EXPECT_FALSE(row(matrix, "missing_capacitance").pass);
@@ -68,10 +69,11 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
   EXPECT_FALSE(row(matrix, "constant_power_from_start").applicable);
 }
 
-// Constant-power loads drawing from 0 V on (check-values.md, the quadratic v·(Vs − v)/R = P): the link must climb
-// past the unstable lower root [Vs − √(Vs² − 4PR)]/2. In the stall case (400 V, 47 Ω, 700 W) that root is ~116 V,
-// far above the load's 10 V resistive floor, so the link stays near 0 V and the rise check fires; in the clean
-// case (~409 V, 33 Ω, 100 W) it is ~8 V, below the floor, so the link escapes and closes.
+// Constant-power loads drawing from 0 V on (docs/references.md [R-CPL-equilibrium], the quadratic
+// v·(Vs − v)/R = P): the link must climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2. In the stall case
+// (400 V, 47 Ω, 700 W) that root is ~116 V, far above the load's 10 V resistive floor, so the link stays near 0 V
+// and the rise check fires; in the clean case (~409 V, 33 Ω, 100 W) it is ~8 V, below the floor, so the link
+// escapes and closes.
 TEST(Faults, ConstantPowerExpectationFollowsTheQuadratic) {
   DetectionMatrix stalled = linkrise::app::detection_matrix(stored("sequence_stall.yaml"), 1);
   const auto& bottom = row(stalled, "constant_power_from_start");

@@ -2,10 +2,10 @@
 // Equations::rates, re-solving the network for every perturbed state, on every stored case in cases/ and on a few
 // circuits written here for the part kinds no stored case uses yet, in several modes and at random states.
 //
-// Central differences (e.g. Nocedal & Wright, "Numerical Optimization", 2nd ed., §8.1 [mem]) have truncation
-// error O(h²) and rounding error O(eps·M/h) for terms of size M. Each entry is compared with estimates at several
-// steps; agreement within 1e-5 relative (with floors for entries that vanish analytically, see compare_at) checks
-// the derivatives without flagging rounding noise.
+// Central differences (docs/references.md [R-central-differences]: Nocedal & Wright, "Numerical Optimization", 2nd ed.,
+// §8.1 [mem]) have truncation error O(h²) and rounding error O(eps·M/h) for terms of size M. Each entry is compared
+// with estimates at several steps; agreement within 1e-5 relative (with floors for entries that vanish analytically,
+// see compare_at) checks the derivatives without flagging rounding noise.
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -261,6 +261,6 @@ TEST(Jacobian, RcEntryMatchesTheClosedForm) {
   ASSERT_TRUE(equations.solve_network(0.0, x.data(), circuit.initial_modes().data(), y.data()));
   std::vector<double> matrix(circuit.part_state_count() * circuit.part_state_count());
   equations.jacobian(0.0, x.data(), circuit.initial_modes().data(), y.data(), matrix.data());
-  // dvc/dt = (V - vc)/(RC) → d/dvc = -1/(RC) = -10 /s [RC closed form].
+  // dvc/dt = (V - vc)/(RC) → d/dvc = -1/(RC) = -10 /s (docs/references.md [R-RC-charge]).
   EXPECT_NEAR(matrix[0], -10.0, 1e-12 * 10.0);
 }

@@ -1,7 +1,8 @@
-// Each sequence metric on a synthetic waveform whose answer is known in closed form.
-//   link before closure: RC charging v = V·(1 − e^(−(t − t0)/τ)) (Alexander & Sadiku ch. 7 [mem]);
+// Each sequence metric on a synthetic waveform whose answer is known in closed form (sources: docs/references.md).
+//   link before closure: RC charging v = V·(1 − e^(−(t − t0)/τ)) ([R-RC-charge]);
 //   after closure: v = V − ΔV·e^(−αs)·cos(ωs), main current i = I·e^(−αs)·sin(ωs) (damped ringing, whose extrema
-//   follow from setting the derivative to zero [derived]); the pack dips by a Gaussian 10 V at 5 ms, before the attempt starts.
+//   follow from setting the derivative to zero [R-ringing-integrals]); the pack dips by a Gaussian 10 V at 5 ms,
+//   before the attempt starts.
 // Rows every 10 µs: linear interpolation of a crossing is accurate to ~h²·v''/(8·v') ≈ 1e-10 s; the parabola through
 // three rows misses a ringing peak by ~(ωh)³/10 ≈ 2e-6 relative (ω·h = 0.063).
 #include "analysis/metrics.h"
@@ -85,7 +86,7 @@ TEST(Metrics, EverySequenceMetricMatchesItsClosedForm) {
   double s_peak = std::atan(kOmega / kAlpha) / kOmega;
   double peak = kI * std::exp(-kAlpha * s_peak) * std::sin(kOmega * s_peak);
   EXPECT_NEAR(m.value("sequence.peak_main_current"), peak, 1e-5 * peak);
-  // ∫0^∞ I²·e^(−2αs)·sin²(ωs) ds = I²·ω² / (4α·(α² + ω²)) [derived: standard Laplace-type integral, from memory].
+  // ∫0^∞ I²·e^(−2αs)·sin²(ωs) ds = I²·ω² / (4α·(α² + ω²)) [R-ringing-integrals, from memory].
   double i2t = kI * kI * kOmega * kOmega / (4.0 * kAlpha * (kAlpha * kAlpha + kOmega * kOmega));
   EXPECT_NEAR(m.value("sequence.main_i2t"), i2t, 1e-7 * i2t);
   // Pre-charge current is largest when the contacts touch: V/R.
@@ -121,7 +122,7 @@ TEST(Metrics, AnAttemptThatNeverClosedLeavesTheClosureMetricsNotReached) {
   EXPECT_EQ(m.value("sequence.detection_time"), 0.12);
 }
 
-// The quadratic equilibrium of a constant-power load behind a resistance (check-values.md: Simpson-Porco,
+// The quadratic equilibrium of a constant-power load behind a resistance ([R-CPL-equilibrium]: Simpson-Porco,
 // Dörfler & Bullo, arXiv:1503.04769): 373.2051 V for 400 V, 1 Ω, 10 kW; maximum power Vs²/(4R) = 40 kW, where the
 // two roots meet at Vs/2; none beyond.
 TEST(Metrics, ConstantPowerEquilibriumQuadratic) {

@@ -19,8 +19,9 @@ using linkrise::testing::case_from;
 using linkrise::testing::column;
 
 // i(t) = I0·e^(−t/τ) sampled at a uniform step h: ∫i² dt over [0, T] = I0²·τ/2·(1 − e^(−2T/τ)) [closed form].
-// The trapezoid rule's relative error for e^(−2t/τ) is (2h/τ)²/12 to leading order [Euler–Maclaurin, from
-// memory], so at h = τ/20 it is 8.3e-4: the test asserts the documented size, and that it is not exact.
+// The trapezoid rule's relative error for e^(−2t/τ) is (2h/τ)²/12 to leading order (Euler–Maclaurin, from
+// memory; docs/references.md [R-trapezoid-error]), so at h = τ/20 it is 8.3e-4: the test asserts the documented
+// size, and that it is not exact.
 TEST(PartMetrics, TrapezoidSquareIntegralHasItsDocumentedAccuracy) {
   const double tau = 0.1, current = 10.0, h = tau / 20, end = 1.0;
   Waveform waveform({"r.current [A]"});
@@ -88,8 +89,8 @@ TEST(PartMetrics, ResistivePartsAndMetricNames) {
 }
 
 // The three invented comparison cases: each closes its energy audit to 1e-6, and the technologies differ the
-// way the issue describes — the NTC (falling R) charges fastest, the PTC (rising R when hot) slowest and runs
-// hottest, and each absorbs a different energy.
+// way docs/resistor-technologies.md describes — the NTC (falling R) charges fastest, the PTC (rising R when hot)
+// slowest and runs hottest, and each absorbs a different energy.
 TEST(PartMetrics, PrechargeComparisonCasesShowTheTechnologies) {
   struct Outcome {
     double peak_temperature, energy, charge_time;

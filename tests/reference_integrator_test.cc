@@ -1,6 +1,7 @@
 // linkrise against an independent reference: GSL's gsl_odeiv2 Runge–Kutta–Prince–Dormand 8(9) integrator (rk8pd,
-// GNU Scientific Library reference manual, "Ordinary Differential Equations" [pub]) at tolerance 1e-12, run on the
-// circuit's equations written out by hand below — nothing of linkrise's assembly is shared.
+// GNU Scientific Library reference manual, "Ordinary Differential Equations" [pub]; docs/references.md
+// [R-GSL-rk8pd]) at tolerance 1e-12, run on the circuit's equations written out by hand below — nothing of
+// linkrise's assembly is shared.
 //
 // Circuit: source Vs with series resistance Rs → cable (Rc + Lc) → DC-link capacitor C with ESR, and a
 // constant-power load P across the link terminals, drawing from the start (the link starts at v0, above the
@@ -81,8 +82,8 @@ TEST(ReferenceIntegrator, SourceCableLinkAndConstantPowerLoadAgreeWithGsl) {
   gsl_odeiv2_driver_free(driver);
   EXPECT_LT(worst_voltage, 1e-5);
   EXPECT_LT(worst_current, 1e-5);
-  // The run ends at the operating point of the quadratic (Simpson-Porco, Dörfler & Bullo, arXiv:1503.04769 [pub]):
-  // vl·(Vs - vl)/(Rs + Rc) = P, upper root.
+  // The run ends at the operating point of the quadratic ([R-CPL-equilibrium]: Simpson-Porco, Dörfler & Bullo,
+  // arXiv:1503.04769 [pub]): vl·(Vs - vl)/(Rs + Rc) = P, upper root.
   double R = p.Rs + p.Rc;
   double v_eq = 0.5 * (p.Vs + std::sqrt(p.Vs * p.Vs - 4 * p.P * R));
   EXPECT_NEAR(link.back(), v_eq, 1e-5 * v_eq);

@@ -111,8 +111,8 @@ long pixels_near(const Image& image, unsigned colour, int tolerance) {
   return found;
 }
 
-// Width and height from the IHDR chunk, read directly (PNG spec, ISO/IEC 15948 section 11.2.2: the first
-// chunk after the 8-byte signature, big-endian width then height).
+// Width and height from the IHDR chunk, read directly (PNG spec, ISO/IEC 15948 section 11.2.2, docs/references.md
+// [R-PNG]: the first chunk after the 8-byte signature, big-endian width then height).
 std::array<unsigned, 2> png_header_size(const std::string& bytes) {
   if (bytes.size() < 24 || bytes.compare(0, 8, "\x89PNG\r\n\x1a\n") != 0 || bytes.compare(12, 4, "IHDR") != 0) {
     return {0, 0};

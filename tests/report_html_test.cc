@@ -139,17 +139,18 @@ TEST(RunReport, EnergyAndPeakNumbersMatchClosedForms) {
   ASSERT_TRUE(doc.ok) << doc.error;
   const int energy = find_id(doc, "energy");
   ASSERT_GE(energy, 0);
-  // Heat of a full RC charge is C V^2 / 2 = 80 J for 1 mF at 400 V, independent of R (check-values.md,
-  // "RC charging" [pub]). After 9.9 tau the shortfall is e^-19.8 (negligible); the table prints 4 digits.
+  // Heat of a full RC charge is C V^2 / 2 = 80 J for 1 mF at 400 V, independent of R (docs/references.md
+  // [R-RC-energy]). After 9.9 tau the shortfall is e^-19.8 (negligible); the table prints 4 digits.
   EXPECT_EQ(cell_text(doc, energy, 1, 0), "dissipated as heat");
   EXPECT_EQ(cell_text(doc, energy, 1, 1), "80 J");
   EXPECT_EQ(cell_text(doc, energy, 3, 1), "80 J");  // stored: C V^2 / 2 as well
-  // Initial pre-charge current V / R (Ohm's law [practice]) with R = 10 Ohm + 1 mOhm: 39.996 A -> "40 A".
+  // Initial pre-charge current V / R (Ohm's law, docs/references.md [R-Ohm-Joule]) with R = 10 Ohm + 1 mOhm:
+  // 39.996 A -> "40 A".
   const int parts = find_id(doc, "parts");
   ASSERT_GE(parts, 0);
   EXPECT_EQ(cell_text(doc, parts, 2, 0), "r_pre");
   EXPECT_EQ(cell_text(doc, parts, 2, 2), "40 A");
-  // Initial resistor power V^2 / R (Joule's law [practice]): 16 kW.
+  // Initial resistor power V^2 / R (Joule's law, [R-Ohm-Joule]): 16 kW.
   EXPECT_EQ(cell_text(doc, parts, 2, 3), "16 kW");
 }
 

@@ -1,5 +1,5 @@
 // Checks of the resistance laws against their published equations (sources named beside each check;
-// see shared/check-values.md). Values tagged [derived] were computed by hand/independently from the named
+// see docs/references.md). Values tagged [derived] were computed by hand/independently from the named
 // closed form; [mem] means recalled, source not re-read.
 #include "models/resistance_law.h"
 
@@ -47,7 +47,7 @@ void expect_derivative_matches(const ResistanceLaw& law, double kelvin, double r
 // --- Linear TCR ---------------------------------------------------------------------------------------
 
 TEST(LinearTcr, LinearLawAtSeventyFiveCelsius) {
-  // R = R_ref·(1 + tcr·ΔT) [definition]; 10 Ω, 0.00393 /K, +50 K → 11.965 Ω [derived].
+  // R = R_ref·(1 + tcr·ΔT) [R-TCR]; 10 Ω, 0.00393 /K, +50 K → 11.965 Ω [derived].
   const auto law = made<LinearTcr>(LinearTcrParameters{.reference_resistance = 10.0,
                                                        .temperature_coefficient = 0.00393});
   EXPECT_NEAR(law.resistance(348.15), 11.965, 1e-12);
@@ -79,7 +79,7 @@ TEST(LinearTcr, RejectsBadParameters) {
             std::string::npos);
 }
 
-// --- NTC, B-parameter equation (IEC 60539-1 terms; equation per check-values.md [pub]) ---------------
+// --- NTC, B-parameter equation (IEC 60539-1 terms; equation per [R-NTC-beta]) -----------------------
 
 TEST(NtcBeta, BParameterEquationAtSeveralTemperatures) {
   // R25 = 10 kΩ, B = 3950 K (a common NTC grade [practice]). Expected values from
@@ -93,7 +93,7 @@ TEST(NtcBeta, BParameterEquationAtSeveralTemperatures) {
 }
 
 TEST(NtcBeta, BValueRecoveredFromTwoPoints) {
-  // IEC 60539-1 defines B from two zero-power resistances: B = ln(R1/R2)/(1/T1 − 1/T2) [pub, terms].
+  // IEC 60539-1 defines B from two zero-power resistances: B = ln(R1/R2)/(1/T1 − 1/T2) [R-NTC-beta].
   const auto law = made<NtcBeta>(NtcBetaParameters{.reference_resistance = 5e3, .beta_kelvin = 3435.0});
   const double t1 = 298.15, t2 = 358.15;
   const double beta = std::log(law.resistance(t1) / law.resistance(t2)) / (1.0 / t1 - 1.0 / t2);
@@ -106,10 +106,10 @@ TEST(NtcBeta, RejectsNonPositiveBeta) {
   EXPECT_NE(error.find("beta_kelvin = 0"), std::string::npos) << error;
 }
 
-// --- Steinhart–Hart (Steinhart & Hart 1968 [mem]) ---------------------------------------------------
+// --- Steinhart–Hart (Steinhart & Hart 1968 [mem], [R-Steinhart-Hart]) -------------------------------
 
 TEST(NtcSteinhartHart, BetaIdentityWithZeroC) {
-  // Exact identity: C = 0, B_SH = 1/B, A = 1/T0 − ln(R0)/B (check-values.md) → same R(T) to 1e-12.
+  // Exact identity: C = 0, B_SH = 1/B, A = 1/T0 − ln(R0)/B ([R-Steinhart-Hart]) → same R(T) to 1e-12.
   const auto beta = made<NtcBeta>(NtcBetaParameters{.reference_resistance = 10e3, .beta_kelvin = 3950.0});
   const auto sh = steinhart_hart_from_beta(beta);
   EXPECT_DOUBLE_EQ(sh.parameters().c, 0.0);
@@ -121,7 +121,7 @@ TEST(NtcSteinhartHart, BetaIdentityWithZeroC) {
   }
 }
 
-// A commonly quoted coefficient set for a 10 kΩ NTC [mem]; only its shape matters for these checks.
+// A commonly quoted coefficient set for a 10 kΩ NTC [mem, R-Steinhart-Hart]; only its shape matters for these checks.
 constexpr NtcSteinhartHartParameters quoted_fit{
     .a = 1.009249522e-3, .b = 2.378405444e-4, .c = 2.019202697e-7};
 
@@ -159,7 +159,7 @@ TEST(NtcSteinhartHart, RejectsNegativeC) {
   EXPECT_NE(error.find("c = -1e-07"), std::string::npos) << error;
 }
 
-// --- PTC (IEC 60738-1 terms [mem]) ------------------------------------------------------------------
+// --- PTC (IEC 60738-1 terms [mem], [R-PTC]) ---------------------------------------------------------
 
 // R_min 100 Ω, switch at 120 °C, 20 %/K, R_max 1 MΩ, 2 K blend (illustrative parameters).
 constexpr PtcParametricParameters ptc_parameters{.minimum_resistance = 100.0,

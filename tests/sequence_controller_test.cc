@@ -1,4 +1,4 @@
-// The BMS sequence controller against closed forms (sources: /work/shared/check-values.md, named at each check).
+// The BMS sequence controller against closed forms (sources: docs/references.md, cited by tag at each check).
 // Solver tolerances are tight (rtol 1e-10); times the controller decides are exact by construction (samples
 // at start + k·period, delays added), so they are compared to 1e-12 s; waveform-derived values to 1e-6 relative
 // (10⁴ rtol, the global error of these runs) unless a check says otherwise.
@@ -83,7 +83,7 @@ std::string case_text(const std::string& load, const std::string& sequence_extra
 }  // namespace
 
 // Decision at the first BMS sample after the RC crossing, closure one actuation delay later.
-// RC charging from v1: v(t) = V + (v1 − V)·e^(−t/RC) (Alexander & Sadiku ch. 7 [mem]; check-values.md).
+// RC charging from v1: v(t) = V + (v1 − V)·e^(−t/RC) ([R-RC-charge]: Alexander & Sadiku ch. 7 [mem]).
 TEST(SequenceController, DecisionIsQuantisedToTheSampleAndClosureDelayedByTheActuationDelay) {
   SequenceRun run(case_text("{name: c1, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}",
                             "  overlap: 5 ms\n  close_when: {ratio: 90 %}\n  sample_period: 3 ms\n  start: 2 ms\n"
@@ -119,10 +119,10 @@ TEST(SequenceController, DecisionIsQuantisedToTheSampleAndClosureDelayedByTheAct
 }
 
 // A 10 kW constant-power load behind 1 Ω from 400 V settles at v = [Vs + √(Vs² − 4PR)]/2 = 373.2051 V
-// (check-values.md: Simpson-Porco, Dörfler & Bullo, arXiv:1503.04769), below a 95 % closing level (380 V):
+// ([R-CPL-equilibrium]: Simpson-Porco, Dörfler & Bullo, arXiv:1503.04769), below a 95 % closing level (380 V):
 // the charge stalls and the timeout fires at the first sample 60 ms after the start.
 TEST(SequenceController, TimeoutFiresAtTheConfiguredTimeOnAConstantPowerStall) {
-  EXPECT_NEAR(linkrise::analysis::constant_power_equilibrium(400.0, 1.0, 10e3), 373.2051, 5e-5);  // check-values.md
+  EXPECT_NEAR(linkrise::analysis::constant_power_equilibrium(400.0, 1.0, 10e3), 373.2051, 5e-5);  // [R-CPL-equilibrium]
   // The load starts above 300 V (from 0 V a 10 kW load would pin the link in its resistive low-voltage region).
   SequenceRun run(case_text("{name: c1, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}\n"
                             "  - {name: cpl, kind: constant_power_load, nodes: [link, gnd], power: 10 kW, "
@@ -165,7 +165,7 @@ TEST(SequenceController, TooFastFiresWithTheCapacitanceRemoved) {
 
 // A shorted link (10 mΩ instead of the capacitor): the link stays near 0 V and the rise check fires at the
 // first sample at or after 15 ms. While the contacts are closed the resistor takes I²R with I = V/(R_total)
-// (Ohm's and Joule's laws [practice]); its heat is the audit's energy account.
+// (Ohm's and Joule's laws, [R-Ohm-Joule]); its heat is the audit's energy account.
 TEST(SequenceController, NoRiseFiresIntoAShort) {
   SequenceRun run(case_text("{name: short, kind: resistor, nodes: [link, gnd], resistance: 10 mOhm}",
                             "  close_when: {ratio: 95 %}\n  sample_period: 1 ms\n  timeout: 200 ms\n"
@@ -185,7 +185,7 @@ TEST(SequenceController, NoRiseFiresIntoAShort) {
 
 // Retries into a short: each attempt is one rectangular pulse of I²R for the time the contacts are closed; with
 // an adiabatic lumped element (C_th·dT/dt = P) the temperature climbs by E/C_th per attempt and holds during the
-// cool-down (check-values.md, lumped thermal models: adiabatic rise ΔT = E/(m·c)).
+// cool-down ([R-thermal-network]: adiabatic rise ΔT = E/(m·c)).
 TEST(SequenceController, RetriesCarryTheResistorTemperatureAcrossAttempts) {
   SequenceRun run(case_text("{name: short, kind: resistor, nodes: [link, gnd], resistance: 10 mOhm}",
                             "  close_when: {ratio: 95 %}\n  sample_period: 1 ms\n  timeout: 200 ms\n"
@@ -216,8 +216,8 @@ TEST(SequenceController, RetriesCarryTheResistorTemperatureAcrossAttempts) {
 // Closing inrush: after the decision the main contactor closes onto the link through a series L and R with
 // the pre-charge branch opened at the same instant. From the state left at closure (ΔV = V − vC0, inductor
 // current i0) the series RLC gives i(s) = e^(−αs)·[A cos ωd s + B sin ωd s] with A = i0,
-// B = (di0 + α·i0)/ωd, di0 = (ΔV − R·i0)/L (Wikibooks "Electronics/RCL time domain" and Alexander & Sadiku
-// ch. 8, check-values.md; the zero-state form there is the case i0 = 0). Its peak lies where the derivative
+// B = (di0 + α·i0)/ωd, di0 = (ΔV − R·i0)/L ([R-RLC-step]: Wikibooks "Electronics/RCL time domain" and
+// Alexander & Sadiku ch. 8; the zero-state form there is the case i0 = 0). Its peak lies where the derivative
 // vanishes: tan(ωd s) = (ωd·B − α·A)/(α·B + ωd·A). The capacitor's first maximum lies at the first zero of i.
 // ∫ i² ds over the whole ring follows from energy conservation: [½·C·ΔV² + ½·L·i0²]/R.
 TEST(SequenceController, ClosingInrushPeakMatchesTheSeriesRlcClosedForm) {

@@ -1,7 +1,7 @@
 #pragma once
 // An RC pre-charge circuit for the study tests: an ideal 100 V source charges C through R (contactor
 // resistance 1 nOhm, no ESR, the open main contactor 1e15 Ohm in parallel), so the link meets 95 % of the source at t = −R·C·ln(1 − 0.95) after the
-// pre-charge contactor closes (RC charging, any circuits textbook; see ../shared/check-values.md). The BMS
+// pre-charge contactor closes (RC charging, any circuits textbook; docs/references.md [R-RC-charge]). The BMS
 // samples every 1 ms; solver tolerances rtol 1e-10, atol 1e-12.
 #include <cmath>
 #include <filesystem>

@@ -10,8 +10,9 @@
 namespace linkrise::app {
 namespace {
 
-// Reference: GSL's gsl_cdf_ugaussian_Pinv (a general-purpose reference library). AS 241 is accurate to about
-// 1e-16 relative; 1e-13 allows for the tails, where GSL refines with its own rational approximations.
+// Reference: GSL's gsl_cdf_ugaussian_Pinv (a general-purpose reference library; docs/references.md
+// [R-GSL-normal-quantile]). AS 241 is accurate to about 1e-16 relative; 1e-13 allows for the tails, where GSL
+// refines with its own rational approximations.
 TEST(StudyRandomStream, InverseNormalMatchesGsl) {
   for (double p : {1e-300, 1e-20, 1e-10, 1e-6, 0.001, 0.02425, 0.1, 0.3, 0.5, 0.7, 0.9, 0.975, 0.999, 1 - 1e-12}) {
     double reference = gsl_cdf_ugaussian_Pinv(p);
@@ -29,12 +30,14 @@ TEST(StudyRandomStream, DrawsArePureFunctionsOfTheirKeys) {
   EXPECT_NE(uniform_draw(7, 123, 2), uniform_draw(7, 123, 3));
   EXPECT_NE(uniform_draw(7, 123, 2), uniform_draw(8, 123, 2));
   // splitmix64 reference: the first output of the generator seeded with 0 is 0xE220A8397B1DCDAF (Vigna's
-  // published splitmix64.c, from memory), i.e. splitmix64(0) in this formulation.
+  // published splitmix64.c, from memory; docs/references.md [R-splitmix64]), i.e. splitmix64(0) in this
+  // formulation.
   EXPECT_EQ(splitmix64(0), 0xE220A8397B1DCDAFULL);
 }
 
-// Moments of U(0,1): mean 1/2, variance 1/12. Over n = 200 000 draws the sample mean has standard error
-// sqrt(1/(12 n)) = 6.5e-4; 5 standard errors (3.2e-3) fail with probability below 1e-6 for a sound stream.
+// Moments of U(0,1) (docs/references.md [R-uniform-moments]): mean 1/2, variance 1/12. Over n = 200 000 draws the
+// sample mean has standard error sqrt(1/(12 n)) = 6.5e-4; 5 standard errors (3.2e-3) fail with probability below 1e-6
+// for a sound stream.
 // The lag-1 correlation of successive sample indices (one slot) has standard error 1/sqrt(n) = 2.2e-3.
 TEST(StudyRandomStream, UniformMomentsAndIndependence) {
   const int n = 200000;

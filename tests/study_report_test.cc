@@ -104,7 +104,7 @@ TEST(StudyReport, CompareTableMarksTheBestAndShowsRcTimes) {
   // One row per metric, then the outcome and verdict rows.
   EXPECT_EQ(body_rows(doc, "comparison").size(), comparison.results.columns.size() + 2);
 
-  // RC charging to 95 % takes R·C·ln 20 (any circuits textbook; ../shared/check-values.md); the smallest
+  // RC charging to 95 % takes R·C·ln 20 (docs/references.md [R-RC-charge]); the smallest
   // resistor is the fastest, so its cell carries the mark.
   const auto row = row_of(doc, "comparison", "sequence.time_to_threshold");
   ASSERT_EQ(row.size(), 6u);  // metric, better, nominal, r_47, r_68, best

@@ -19,8 +19,8 @@ using study_test::write_case;
 const char* kRcTolerances = "  r_pre.resistance: {plus_minus: 10 %}\n  link.capacitance: {minus: 20 %, plus: 10 %}\n";
 
 // Corners: the charge time −R·C·ln(0.05) is monotone in R and C, so the shortest corner is R_min·C_min and the
-// longest R_max·C_max (RC closed form, check-values.md). Tolerance 1e-6 relative: solver rtol is 1e-10 and the
-// crossing is a located root, so 1e-6 is loose for the solver and tight against any model error.
+// longest R_max·C_max (RC closed form, docs/references.md [R-RC-charge]). Tolerance 1e-6 relative: solver rtol is
+// 1e-10 and the crossing is a located root, so 1e-6 is loose for the solver and tight against any model error.
 TEST(StudySpread, CornersHitTheAnalyticExtremes) {
   std::string file = write_case("study_rc_corners.yaml", rc_case_text(kRcTolerances));
   SpreadPlan plan = spread_plan(true, 0, 1, "");
@@ -58,8 +58,9 @@ double product_quantile(double p, double a, double b, double c, double d) {
 
 // Monte Carlo: R ~ U[80, 120] Ohm, C ~ U[0.7, 1.3] mF; τ = time_to_threshold / (−ln 0.05). The sample quantile
 // of N draws has standard error sqrt(p(1 − p)/N) / f(q), f the density at q (asymptotic normality of sample
-// quantiles, e.g. David & Nagaraja, Order Statistics, from memory). With N = 1500 we allow 4.5 standard
-// errors (a sound sampler fails with probability < 1e-5); the solver's error (~1e-9) is negligible.
+// quantiles, docs/references.md [R-quantile-asymptotics]: David & Nagaraja, Order Statistics, from memory). With
+// N = 1500 we allow 4.5 standard errors (a sound sampler fails with probability < 1e-5); the solver's error (~1e-9)
+// is negligible.
 TEST(StudySpread, MonteCarloQuantilesMatchTheProductOfUniforms) {
   std::string tolerances = "  r_pre.resistance: {plus_minus: 20 %}\n  link.capacitance: {plus_minus: 30 %}\n";
   std::string file = write_case("study_rc_monte_carlo.yaml", rc_case_text(tolerances) + "");
@@ -147,7 +148,8 @@ TEST(StudySpread, TolerancesBlockErrorsArePlaced) {
 }
 
 TEST(StudySpread, QuantileIsHyndmanFanType7) {
-  // Type 7 on {1, 2, 3, 4}: h = 3p; p = 0.5 -> 2.5, p = 0.1 -> 1.3, p = 1 -> 4 (R's quantile() default).
+  // Type 7 on {1, 2, 3, 4}: h = 3p; p = 0.5 -> 2.5, p = 0.1 -> 1.3, p = 1 -> 4 (R's quantile() default;
+  // docs/references.md [R-Hyndman-Fan]).
   std::vector<double> values{1, 2, 3, 4};
   EXPECT_DOUBLE_EQ(quantile(values, 0.5), 2.5);
   EXPECT_DOUBLE_EQ(quantile(values, 0.1), 1.3);

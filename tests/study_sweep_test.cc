@@ -55,7 +55,8 @@ TEST(StudySweep, PointsEqualIndividualRunsAndTheClosedForm) {
       double a = alone.metrics[c].value, b = sweep.results.points[i].values[c];
       EXPECT_TRUE(a == b || (std::isnan(a) && std::isnan(b))) << alone.metrics[c].name << " at point " << i;
     }
-    // First parameter varies slowest. RC closed form t = −R·C·ln(0.05) (check-values.md), 1e-6 relative.
+    // First parameter varies slowest. RC closed form t = −R·C·ln(0.05) (docs/references.md [R-RC-charge]),
+    // 1e-6 relative.
     double expected = resistances[i / 2] * capacitances[i % 2] * to_95_percent();
     EXPECT_NEAR(sweep.results.value(i, "sequence.time_to_threshold"), expected, 1e-6 * expected) << "point " << i;
   }

@@ -22,7 +22,8 @@ const DetectionRow* row(const DetectionMatrix& matrix, const std::string& name) 
 }
 
 // RC case, corners of R ±10 % and C −20/+10 %: the fastest crossing is −R_min·C_min·ln(0.05) (RC closed form,
-// check-values.md) and the slowest decision is the first 1 ms BMS sample at or after −R_max·C_max·ln(0.05).
+// docs/references.md [R-RC-charge]) and the slowest decision is the first 1 ms BMS sample at or after
+// −R_max·C_max·ln(0.05).
 // With a 20 % margin: minimum_time = ⌊0.8·fastest⌋ and timeout = ⌈1.2·slowest⌉ in whole milliseconds.
 TEST(StudyWindow, RecommendationFollowsTheRcExtremesAndCatchesTheFaults) {
   std::string file = write_case("study_rc_window.yaml",

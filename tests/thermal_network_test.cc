@@ -1,4 +1,4 @@
-// Thermal network checks against closed forms and published data (shared/check-values.md).
+// Thermal network checks against closed forms and published data (docs/references.md, cited by tag).
 // A classical RK4 integrator lives in this test so the check does not depend on the project's solver.
 #include "models/thermal_network.h"
 
@@ -71,7 +71,7 @@ auto constant(double watts) {
 
 TEST(ThermalNetwork, OneNodeReaches63PercentAtOneTimeConstant) {
   // C_th·dT/dt = P − (T − Ta)/R_th: rise = P·R_th·(1 − e^(−t/τ)), τ = R_th·C_th; at t = τ the fraction is
-  // 1 − e^−1 = 0.632121 (check-values.md, RC charging [derived]; IEC 60539-1 thermal time constant term).
+  // 1 − e^−1 = 0.632121 ([R-thermal-network] [derived]; IEC 60539-1 thermal time constant, [R-NTC-thermal]).
   const auto network = made(OneNodeParameters{.heat_capacity = 15.5, .thermal_resistance = 2.0});
   const double power = 10.0, tau = 31.0;
   const auto run = integrate(network, constant(power), ambient, tau, 2000);
@@ -82,7 +82,8 @@ TEST(ThermalNetwork, OneNodeReaches63PercentAtOneTimeConstant) {
 
 TEST(ThermalNetwork, AdiabaticRiseOfAluminaBody) {
   // ΔT = E/(m·c), α-alumina c = 0.775 J/(g·K) at 298 K (NBS SRM 720, Ditmars et al., J. Res. NBS 75A, 1971
-  // [pub]): 80 J into 20 g → 5.16 K (check-values.md [derived]). 80 J is also ½·C·V² for 1 mF to 400 V.
+  // [pub], [R-alumina-heat]): 80 J into 20 g → 5.16 K [derived]. 80 J is also ½·C·V² for 1 mF to 400 V
+  // ([R-RC-energy]).
   EXPECT_NEAR(adiabatic_temperature_rise(80.0, 0.020, 775.0), 5.16, 5e-3);
   const auto network = made(OneNodeParameters{.heat_capacity = 0.020 * 775.0,
                                               .thermal_resistance = std::numeric_limits<double>::infinity()});
@@ -97,7 +98,7 @@ TEST(ThermalNetwork, AdiabaticRiseOfAluminaBody) {
 const std::vector<FosterTerm> foster_terms{{0.5, 0.2}, {1.5, 5.0}, {3.0, 120.0}};
 
 double foster_impedance(double t) {
-  // Z_th(t) = Σ R_i·(1 − e^(−t/τ_i)) (check-values.md, lumped thermal models).
+  // Z_th(t) = Σ R_i·(1 − e^(−t/τ_i)) ([R-thermal-network]).
   double z = 0.0;
   for (const auto& term : foster_terms) z += term.thermal_resistance * (1.0 - std::exp(-t / term.time_constant));
   return z;

@@ -1,5 +1,5 @@
 // Electro-thermal resistive parts (resistor with tcr/thermal, ptc_thermistor, ntc_thermistor) in full circuits,
-// against closed forms and an independent root-finder (GSL Brent). Sources: /work/shared/check-values.md.
+// against closed forms and an independent root-finder (GSL Brent). Sources: docs/references.md, cited by tag.
 // Tolerances: runs use rtol 1e-10, atol 1e-12 (temperatures 1e3·atol), so closed forms are compared to 1e-6
 // relative, as the contributor guide asks for that accuracy.
 #include <gtest/gtest.h>
@@ -55,7 +55,7 @@ double last(const std::vector<double>& values) { return values.back(); }
 
 // --- Fixed resistor with TCR -------------------------------------------------------------------------------------
 
-// Linear TCR about 25 °C, R = R25·(1 + TCR·ΔT) [practice; the data-sheet definition of TCR].
+// Linear TCR about 25 °C, R = R25·(1 + TCR·ΔT) [R-TCR: the data-sheet definition of TCR, common practice].
 TEST(ThermalResistor, TcrAtAmbientGivesLinearLaw) {
   Circuit circuit(case_from(source_across(
       "  - {name: r1, kind: resistor, nodes: [plus, gnd], resistance: 100 Ohm, tcr: 200 ppm/K}\n", "10 V", "0 Ohm",
@@ -68,7 +68,7 @@ TEST(ThermalResistor, TcrAtAmbientGivesLinearLaw) {
 }
 
 // With self-heating the same law must hold at every recorded temperature, and the steady state solves
-// T − Ta = R_th·V²/R(T) (one-node balance, check-values "Lumped thermal models"), a quadratic in ΔT.
+// T − Ta = R_th·V²/R(T) (one-node balance, [R-thermal-network]), a quadratic in ΔT.
 TEST(ThermalResistor, TcrFollowsSelfHeatedTemperature) {
   const double r25 = 100.0, tcr = 4e-3, v = 100.0, rth = 2.0;  // C_th = 1 J/K: τ ≈ 2 s
   Circuit circuit(case_from(source_across(
@@ -89,7 +89,7 @@ TEST(ThermalResistor, TcrFollowsSelfHeatedTemperature) {
 
 // --- PTC --------------------------------------------------------------------------------------------------------
 
-// IEC 60738-1 terms [mem]: R = R_min below the switch region, R = 2·R_min·exp[α·(T − T_ref)] above T_ref.
+// IEC 60738-1 terms [mem, R-PTC]: R = R_min below the switch region, R = 2·R_min·exp[α·(T − T_ref)] above T_ref.
 TEST(ThermalResistor, PtcBelowAndAboveSwitchTemperature) {
   const std::string ptc =
       "  - {name: p1, kind: ptc_thermistor, nodes: [plus, gnd], minimum_resistance: 50 Ohm, "
@@ -128,7 +128,7 @@ struct SelfHeating {
   double v, rs, rmin, tref, alpha, delta, ambient;
 };
 // Electrical power into the PTC minus the loss to ambient; its root is the self-heating equilibrium
-// V²·R/(R + Rs)² = δ·(T − Ta) (check-values "PTC thermistors"). R(T) is the exponential branch written out
+// V²·R/(R + Rs)² = δ·(T − Ta) ([R-PTC]). R(T) is the exponential branch written out
 // here independently of the project's law.
 double balance(double t, void* parameters) {
   const auto& p = *static_cast<const SelfHeating*>(parameters);
@@ -147,7 +147,8 @@ TEST(ThermalResistor, PtcSettlesAtSelfHeatingEquilibriumFoundByBrent) {
   Result result = run_tight(circuit);
   const double simulated = last(column(result.steps, "p1.temperature")) + kCelsius;
 
-  // GSL Brent on the exponential branch: bracket from T_ref + 2 K (clear of the corner windows) to 200 °C.
+  // GSL Brent [R-GSL-Brent] on the exponential branch: bracket from T_ref + 2 K (clear of the corner windows)
+  // to 200 °C.
   gsl_function f{&balance, &p};
   gsl_root_fsolver* solver = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
   gsl_root_fsolver_set(solver, &f, p.tref + 2.0, 200.0 + kCelsius);
@@ -167,9 +168,9 @@ TEST(ThermalResistor, PtcSettlesAtSelfHeatingEquilibriumFoundByBrent) {
 
 // --- Thermal responses -------------------------------------------------------------------------------------------
 
-// Adiabatic rise ΔT = E/(m·c) (check-values "Lumped thermal models") for a full RC charge, E = ½·C·V²
-// (check-values "RC charging"), into 20 g of alumina, c = 0.775 J/(g·K) at 298 K (NBS SRM 720, Ditmars et
-// al. 1971): 80 J → 5.1613 K. Once exactly adiabatic, once with a thermal time constant of 1550 s, ≫ the 10 ms
+// Adiabatic rise ΔT = E/(m·c) ([R-thermal-network]) for a full RC charge, E = ½·C·V² ([R-RC-energy]), into
+// 20 g of alumina, c = 0.775 J/(g·K) at 298 K (NBS SRM 720, Ditmars et al. 1971, [R-alumina-heat]):
+// 80 J → 5.1613 K. Once exactly adiabatic, once with a thermal time constant of 1550 s, ≫ the 10 ms
 // charge, where the loss during the run bounds the difference.
 TEST(ThermalResistor, AdiabaticRiseOfAluminaForAShortPulse) {
   const double mass = 20.0, specific_heat = 0.775;  // g, J/(g·K)
@@ -187,7 +188,7 @@ TEST(ThermalResistor, AdiabaticRiseOfAluminaForAShortPulse) {
     Result result = run_tight(circuit);
     const double rise = last(column(result.steps, "r1.temperature")) - 25.0;
     const double expected = energy / heat_capacity;
-    EXPECT_NEAR(expected, 5.1613, 1e-4);  // check-values: 80 J into 20 g of alumina
+    EXPECT_NEAR(expected, 5.1613, 1e-4);  // [R-alumina-heat]: 80 J into 20 g of alumina
     if (cooling == "adiabatic") {
       EXPECT_NEAR(rise, expected, kCheck * expected);
       // Heat into the thermal node equals the electrical dissipation integrated by the energy account.
@@ -201,7 +202,7 @@ TEST(ThermalResistor, AdiabaticRiseOfAluminaForAShortPulse) {
   }
 }
 
-// First-order response (IEC 60539-1 thermal time constant, check-values "NTC thermistors"): constant power P
+// First-order response (IEC 60539-1 thermal time constant, [R-NTC-thermal]): constant power P
 // into C_th with R_th to ambient reaches 1 − e^-1 = 63.212 % of P·R_th at τ = R_th·C_th.
 TEST(ThermalResistor, FirstOrderResponseReaches63PercentAtTau) {
   // 100 V across 100 Ohm without TCR: P = 100 W constant; C_th = 10 J/K, R_th = 2 K/W, τ = 20 s.
@@ -219,7 +220,7 @@ TEST(ThermalResistor, FirstOrderResponseReaches63PercentAtTau) {
 }
 
 // A hot start cools at zero power as ΔT0·e^(−t/τ) (the zero-power definition of the thermal time constant,
-// IEC 60539-1 terms, check-values "NTC thermistors").
+// IEC 60539-1 terms, [R-NTC-thermal]).
 TEST(ThermalResistor, HotStartCoolsWithTheThermalTimeConstant) {
   Circuit circuit(case_from(source_across(
       "  - name: n1\n    kind: ntc_thermistor\n    nodes: [plus, gnd]\n    resistance_at_25degC: 10 kOhm\n"
@@ -233,9 +234,9 @@ TEST(ThermalResistor, HotStartCoolsWithTheThermalTimeConstant) {
   }
 }
 
-// NTC B-value equation R = R25·exp[B·(1/T − 1/T25)] (IEC 60539-1; check-values "NTC thermistors") as seen by
+// NTC B-value equation R = R25·exp[B·(1/T − 1/T25)] (IEC 60539-1; [R-NTC-beta]) as seen by
 // the circuit at several ambients; and Steinhart–Hart with C = 0, A = 1/T0 − ln(R0)/B, B_SH = 1/B, gives the
-// same resistance (the exact identity of the same section).
+// same resistance (the exact identity of [R-Steinhart-Hart]).
 TEST(ThermalResistor, NtcBetaAndSteinhartHartFormsAgreeInTheCircuit) {
   const double r25 = 10e3, b = 3950.0, t0 = 298.15;
   const double a_sh = 1.0 / t0 - std::log(r25) / b, b_sh = 1.0 / b;
@@ -256,7 +257,7 @@ TEST(ThermalResistor, NtcBetaAndSteinhartHartFormsAgreeInTheCircuit) {
 }
 
 // Two-node and Foster networks in a circuit: at constant power the element rises by P·(R12 + R2a) at steady
-// state; a Foster network follows Z_th(t) = Σ R_i·(1 − e^(−t/τ_i)) exactly (check-values "Lumped thermal models").
+// state; a Foster network follows Z_th(t) = Σ R_i·(1 − e^(−t/τ_i)) exactly ([R-thermal-network]).
 TEST(ThermalResistor, TwoNodeAndFosterNetworksUnderConstantPower) {
   Circuit two(case_from(source_across(
       "  - name: r1\n    kind: resistor\n    nodes: [plus, gnd]\n    resistance: 100 Ohm\n"
@@ -311,7 +312,7 @@ TEST(ThermalResistor, EnergyAuditClosesWithAllThreeTechnologies) {
   EXPECT_GT(tp, tf);
 }
 
-// ∫i² dt of an RC charge is V²·C/(2R) (from i = V/R·e^(−t/RC), RC charging in check-values): the part's own
+// ∫i² dt of an RC charge is V²·C/(2R) (from i = V/R·e^(−t/RC), [R-RC-energy]): the part's own
 // quadrature state gives it to solver accuracy; the trapezoid over the rows (used for parts without the state)
 // to its documented accuracy.
 TEST(ThermalResistor, CurrentSquaredTimeOfAnRcCharge) {
@@ -327,8 +328,8 @@ TEST(ThermalResistor, CurrentSquaredTimeOfAnRcCharge) {
   const double expected = 400.0 * 400.0 * 1e-3 / (2.0 * 100.0);  // 0.8 A²s
   ASSERT_TRUE(metrics.current_squared_integrated);
   EXPECT_NEAR(metrics.current_squared_time, expected, kCheck * expected);
-  EXPECT_NEAR(metrics.energy, 80.0, kCheck * 80.0);  // ½CV², check-values "RC charging"
-  EXPECT_NEAR(metrics.peak_power, 400.0 * 400.0 / 100.0, 1e-9 * 1600.0);  // V²/R [practice]
+  EXPECT_NEAR(metrics.energy, 80.0, kCheck * 80.0);  // ½CV², [R-RC-energy]
+  EXPECT_NEAR(metrics.peak_power, 400.0 * 400.0 / 100.0, 1e-9 * 1600.0);  // V²/R [R-Ohm-Joule]
   int current = result.steps.column("r1.current");
   double trapezoid = linkrise::analysis::square_integral_trapezoid(result.steps, current);
   EXPECT_NEAR(trapezoid, expected, 1e-2 * expected);

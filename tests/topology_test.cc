@@ -1,7 +1,8 @@
 // Pathological topologies are rejected before any solve, each with its own named error.
 // The rules are those of modified nodal analysis (e.g. Ho, Ruehli & Brennan, "The modified nodal approach to
-// network analysis", IEEE Trans. Circuits and Systems 22(6), 1975 [mem]): the network matrix is singular when a
-// node floats, when voltage-defining branches close a loop, or when current-defining branches form a cut-set.
+// network analysis", IEEE Trans. Circuits and Systems 22(6), 1975 [mem]; docs/references.md [R-MNA]): the network
+// matrix is singular when a node floats, when voltage-defining branches close a loop, or when current-defining
+// branches form a cut-set.
 #include <gtest/gtest.h>
 
 #include <string>

@@ -1,4 +1,4 @@
-// Trace operations on signals with known answers (closed forms named at each check).
+// Trace operations on signals with known answers (closed forms named at each check; docs/references.md).
 #include "analysis/trace.h"
 
 #include <gtest/gtest.h>
@@ -41,8 +41,8 @@ TEST(Trace, PeakOfAParabolaIsFoundBetweenRows) {
 }
 
 TEST(Trace, IntegralIsExactForCubicsOnUnevenRowsAndSplitsAtSwitching) {
-  // Piecewise parabolas (non-uniform Simpson) integrate cubics exactly only on even pairs of equal steps;
-  // on uneven rows they are exact for quadratics: ∫0^1 (2 + 3t − t²) dt = 2 + 1.5 − 1/3.
+  // Piecewise parabolas (non-uniform Simpson, [R-Simpson-error]) integrate cubics exactly only on even pairs of
+  // equal steps; on uneven rows they are exact for quadratics: ∫0^1 (2 + 3t − t²) dt = 2 + 1.5 − 1/3.
   std::vector<double> t = {0.0, 0.1, 0.35, 0.5, 0.8, 1.0}, v;
   for (double x : t) v.push_back(2.0 + 3.0 * x - x * x);
   EXPECT_NEAR(Trace(t, v).integral(0.0, 1.0), 2.0 + 1.5 - 1.0 / 3.0, 1e-14);
@@ -53,7 +53,8 @@ TEST(Trace, IntegralIsExactForCubicsOnUnevenRowsAndSplitsAtSwitching) {
 }
 
 TEST(Trace, IntegralOfADecayingExponentialConvergesAtFourthOrder) {
-  // ∫0^1 e^(−5t) dt = (1 − e^(−5))/5; with 100 equal steps Simpson's error is ~ h⁴·f⁗/180 ≈ 3e-9.
+  // ∫0^1 e^(−5t) dt = (1 − e^(−5))/5; with 100 equal steps Simpson's error is ~ h⁴·f⁗/180 ≈ 7e-9
+  // [R-Simpson-error].
   std::vector<double> t, v;
   for (int k = 0; k <= 100; ++k) {
     t.push_back(k / 100.0);

@@ -1,4 +1,5 @@
-// Unit parser: prefixes, dimensions, milli vs mega, micro spellings, errors.
+// Unit parser: prefixes, dimensions, milli vs mega, micro spellings, errors. Prefixes, the Celsius offset and the
+// ampere-hour follow the SI Brochure (docs/references.md [R-SI]).
 #include <gtest/gtest.h>
 
 #include "netlist/units.h"

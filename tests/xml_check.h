@@ -1,7 +1,8 @@
-// Minimal XML checker shared by the SVG and HTML report tests: enough of XML to prove the renderers' output
-// parses (balanced tags, quoted attributes, only the five predefined entities, one root) and to read elements
-// and attributes back. A leading <!DOCTYPE ...> and <!-- comments --> are accepted so an XHTML-compatible
-// HTML document can be checked too. Not a general XML parser: no CDATA, no processing instructions.
+// Minimal XML checker shared by the SVG and HTML report tests: enough of XML to prove the renderers' output parses
+// (balanced tags, quoted attributes, only the five predefined entities of XML 1.0 §4.6, one root; see
+// docs/references.md [R-XML-SVG]) and to read elements and attributes back. A leading <!DOCTYPE ...> and
+// <!-- comments --> are accepted so an XHTML-compatible HTML document can be checked too. Not a general XML parser:
+// no CDATA, no processing instructions.
 #pragma once
 
 #include <cctype>
