@@ -6,12 +6,11 @@
 
 namespace linkrise::analysis {
 namespace {
-constexpr double kZeroCelsius = 273.15;
 
 // A bound in the metric's unit: temperatures are held in kelvin by the parser, metrics in degC.
 double in_metric_unit(const netlist::Quantity& bound, const std::string& unit) {
   if (bound.bare) return bound.value;
-  if (unit == "degC") return bound.value - kZeroCelsius;
+  if (unit == "degC") return bound.value - netlist::kelvin_offset;
   return bound.value;
 }
 }  // namespace

@@ -24,6 +24,8 @@ class Capacitor final : public Part {
   double do_current(const Point& point, const Layout& layout) const override {
     return point.unknowns[layout.branch];
   }
+  Role do_role() const override { return Role::Storage; }
+  std::optional<DefiningValue> do_defining_value() const override { return DefiningValue{"capacitance", "F", true}; }
   Link do_link() const override { return esr_ > 0.0 ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override { return {false, esr_ > 0.0 || leak_conductance_ > 0.0, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {

@@ -55,19 +55,13 @@ class CellString final : public Part {
     double capacity = reader.required("cell_capacity", Dimension::charge(), Bound::Positive);
     charge_ = capacity * parallel_;  // C, whole string
     initial_soc_ = reader.quantity("initial_soc", Dimension::none(), Bound::Fraction, 1.0);
-    if (const netlist::Tree* pairs = reader.child("polarisation")) {
-      if (!pairs->is_list() || pairs->items.size() > 2) {
-        throw netlist::InputError(pairs->mark,
-                                  fmt::format("part '{}': 'polarisation' must list zero to two RC pairs", name()),
-                                  "write '- {resistance: 1 mOhm, capacitance: 20 kF}' per pair");
-      }
-      for (const auto& item : pairs->items) {
-        netlist::ParameterReader pair_reader(item, fmt::format("part '{}' polarisation pair", name()));
-        double r = pair_reader.required("resistance", Dimension::resistance(), Bound::Positive);
-        double c = pair_reader.required("capacitance", Dimension::capacitance(), Bound::Positive);
-        pair_reader.finish();
-        pairs_.push_back(Pair{r * series_ / parallel_, c * parallel_ / series_});
-      }
+    auto pairs = reader.blocks("polarisation", "polarisation pair", 2, "must list zero to two RC pairs",
+                               "write '- {resistance: 1 mOhm, capacitance: 20 kF}' per pair");
+    for (auto& pair_reader : pairs) {
+      double r = pair_reader.required("resistance", Dimension::resistance(), Bound::Positive);
+      double c = pair_reader.required("capacitance", Dimension::capacitance(), Bound::Positive);
+      pair_reader.finish();
+      pairs_.push_back(Pair{r * series_ / parallel_, c * parallel_ / series_});
     }
     reader.finish();
   }
@@ -104,6 +98,7 @@ class CellString final : public Part {
     out[0] = 100.0 * soc;
     out[1] = series_ * cell_ocv(soc).first;
   }
+  Role do_role() const override { return Role::Source; }
   Link do_link() const override { return resistance_ > 0.0 ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override {
     return {true, resistance_ > 0.0 || !pairs_.empty(), false};

@@ -11,8 +11,6 @@ using netlist::Dimension;
 
 class Contactor final : public Part {
  public:
-  const ContactorTiming& timing() const { return timing_; }
-
   explicit Contactor(const netlist::PartSpec& spec) : Part(spec) {
     auto reader = open_parameters(spec);
     closed_resistance_ = reader.quantity("closed_resistance", Dimension::resistance(), Bound::Positive, 0.3e-3);
@@ -57,6 +55,14 @@ class Contactor final : public Part {
     out[0] = point.modes[layout.mode] == kClosed ? 1.0 : 0.0;
   }
   Link do_link() const override { return Link::Conductive; }
+  Role do_role() const override { return Role::Switch; }
+  std::optional<Actuation> do_actuation() const override {
+    Actuation actuation = timing_;
+    actuation.parting_time = parting_time_;
+    actuation.closed_resistance = closed_resistance_;
+    actuation.open_resistance = open_resistance_;
+    return actuation;
+  }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     double r = resistance(point, layout);
@@ -104,14 +110,9 @@ class Contactor final : public Part {
   bool initially_closed_ = false;
   double parting_time_ = 0.0;
   double span_ = 0.0;  // ln(R_open / R_closed)
-  ContactorTiming timing_;
+  Actuation timing_;  // delays and bounce as read; do_actuation() adds the contact data
 };
 }  // namespace
 
 std::unique_ptr<Part> make_contactor(const netlist::PartSpec& spec) { return std::make_unique<Contactor>(spec); }
-
-std::optional<ContactorTiming> contactor_timing(const Part& part) {
-  if (const auto* contactor = dynamic_cast<const Contactor*>(&part)) return contactor->timing();
-  return std::nullopt;
-}
 }  // namespace linkrise::models

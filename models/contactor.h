@@ -26,15 +26,8 @@
 
 namespace linkrise::models {
 
-struct ContactorTiming {
-  double closing_delay = 0.0;    // s
-  double opening_delay = 0.0;    // s
-  int bounce_count = 0;
-  double bounce_interval = 2e-4;  // s
-};
-
+/// Answers role() Switch and actuation() with the data above.
 std::unique_ptr<Part> make_contactor(const netlist::PartSpec& spec);
 /// The actuation timing of a contactor; std::nullopt when `part` is not a contactor.
-std::optional<ContactorTiming> contactor_timing(const Part& part);
 
 }  // namespace linkrise::models

@@ -20,6 +20,7 @@ class DcSource final : public Part {
     return point.unknowns[layout.branch];
   }
   double do_output_sign() const override { return -1.0; }
+  Role do_role() const override { return Role::Source; }
   Link do_link() const override { return series_resistance_ > 0.0 ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override { return {true, series_resistance_ > 0.0, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {

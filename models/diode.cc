@@ -34,6 +34,7 @@ class Diode final : public Part {
   double do_current(const Point& point, const Layout& layout) const override {
     return law(point.voltage(layout)).first;
   }
+  Role do_role() const override { return Role::Rectifier; }
   Link do_link() const override { return Link::Conductive; }
   bool do_linear_network() const override { return false; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }

@@ -83,6 +83,15 @@ class InductiveBranch final : public Part {
   double do_current(const Point& point, const Layout& layout) const override {
     return inductive() ? point.states[layout.state] : point.voltage(layout) / resistance(point);
   }
+  Role do_role() const override { return Role::Conductor; }
+  std::vector<DerivedValue> do_derived_values() const override {
+    if (!geometry_) return {};
+    const std::string at = conductor_temperature_
+                               ? fmt::format("at {:.4g} degC", *conductor_temperature_ - netlist::kelvin_offset)
+                               : std::string("at 20 degC, then following the ambient");
+    return {{"loop resistance", resistance_, "Ohm", "from length, cross-section and material " + at},
+            {"loop inductance", inductance_, "H", "from length, conductor radius and spacing"}};
+  }
   Link do_link() const override { return inductive() ? Link::CurrentDefined : Link::Conductive; }
   PowerChannels do_power_channels() const override { return {false, resistance_ > 0.0, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {

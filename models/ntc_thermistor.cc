@@ -27,8 +27,9 @@ ResistanceLaw read_beta(netlist::ParameterReader& reader) {
 }
 
 ResistanceLaw read_steinhart_hart(netlist::ParameterReader& reader) {
-  const netlist::Tree* block = reader.child("steinhart_hart");
-  netlist::ParameterReader coefficients(*block, reader.owner() + " block 'steinhart_hart'");
+  auto block = reader.block("steinhart_hart");
+  if (!block) reader.fail("steinhart_hart", "is missing", "add 'steinhart_hart: {a: ..., b: ..., c: ...}'");
+  netlist::ParameterReader& coefficients = *block;
   NtcSteinhartHartParameters p{};
   p.a = coefficients.required("a", Dimension::per_kelvin(), Bound::Any);
   p.b = coefficients.required("b", Dimension::per_kelvin(), Bound::Positive);

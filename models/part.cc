@@ -45,12 +45,19 @@ ModeChange Part::on_root(int index, int direction, const Layout& layout, int* mo
   return do_on_root(index, direction, layout, modes);
 }
 
-netlist::ParameterReader open_parameters(const netlist::PartSpec& spec) {
-  netlist::ParameterReader reader(spec.block, fmt::format("part '{}' ({})", spec.name, spec.kind));
-  reader.accept("name");
-  reader.accept("kind");
-  reader.accept("nodes");
-  return reader;
+netlist::ParameterReader open_parameters(const netlist::PartSpec& spec) { return spec.parameters(); }
+
+const char* role_word(Role role) {
+  switch (role) {
+    case Role::Source: return "source";
+    case Role::Storage: return "storage";
+    case Role::Switch: return "switch";
+    case Role::Load: return "load";
+    case Role::Resistive: return "resistive";
+    case Role::Conductor: return "conductor";
+    case Role::Rectifier: return "rectifier";
+  }
+  return "unknown";
 }
 
 ModeChange Part::command(const std::string& action, const Layout& layout, int* modes, double* states) const {

@@ -13,6 +13,7 @@
 // Public entries are non-virtual: they check the call is consistent, then call the kind's do_ hook.
 #include <array>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -26,6 +27,57 @@ enum class Link {
   Conductive,      // a finite resistance between the nodes (resistor, contactor, Thevenin source with R > 0)
   VoltageDefined,  // fixes the voltage between the nodes (ideal source, capacitor without ESR)
   CurrentDefined,  // fixes or draws a current, gives no voltage path (inductor, constant power/current load)
+};
+
+/// What a part is in the circuit. Later layers find parts by function (the pack source, the link capacitor,
+/// the contactors, the resistors that take heat) through this, never through kind words.
+enum class Role {
+  Source,     // delivers energy: an ideal source, a cell string
+  Storage,    // holds charge: a capacitor (the DC link)
+  Switch,     // opened and closed by commands: a contactor
+  Load,       // takes energy out as useful work: constant-power and constant-current loads
+  Resistive,  // turns current into heat and nothing else: resistors and thermistors
+  Conductor,  // connects parts with series R and L: an inductor, a cable
+  Rectifier,  // conducts one way: a diode
+};
+/// The role as a lower-case word for summaries ("source", "storage"...).
+const char* role_word(Role role);
+
+/// How a switching part moves when commanded (its data-sheet actuation data).
+struct Actuation {
+  double closing_delay = 0.0;     // s, command to first contact
+  double opening_delay = 0.0;     // s, command to contact parting
+  int bounce_count = 0;           // re-openings after the first touch
+  double bounce_interval = 2e-4;  // s, between bounce transitions
+  double parting_time = 0.0;      // s, resistance rise while the contacts part (0: instantaneous)
+  double closed_resistance = 0.0; // Ohm
+  double open_resistance = 0.0;   // Ohm
+};
+
+/// What a load draws once enabled, and where it falls back to a resistance.
+struct LoadDemand {
+  bool constant_power = true;  // false: constant current
+  double demand = 0.0;         // W (constant power) or A (constant current)
+  double resistive_below = 0.0;  // V: below this the load behaves as the resistance it has there
+  double enable_voltage = 0.0;   // V
+  double disable_voltage = 0.0;  // V
+};
+
+/// A value the part derived from its inputs (e.g. a cable's loop resistance from its geometry), for reports.
+struct DerivedValue {
+  std::string name;  // e.g. "loop resistance"
+  double value = 0.0;
+  std::string unit;  // SI symbol
+  std::string origin;  // how it was derived, e.g. "from length, cross-section and material at 20 degC"
+};
+
+/// The parameter that sets a part's defining value (a resistor's resistance, a capacitor's capacitance).
+/// `alone` is false when other parameters shape the part's law too (a thermistor's curve), so setting this
+/// one value does not make the part a plain element of that value.
+struct DefiningValue {
+  std::string parameter;
+  std::string unit;
+  bool alone = true;
 };
 
 /// Where a part's data sits in the solver's vectors.
@@ -193,6 +245,17 @@ class Part {
   PowerChannels power_channels() const { return do_power_channels(); }
   std::vector<Rating> ratings() const { return do_ratings(); }
 
+  Role role() const { return do_role(); }
+  /// Actuation data of a switching part; std::nullopt for every other role.
+  std::optional<Actuation> actuation() const { return do_actuation(); }
+  /// What a load draws; std::nullopt for every other role.
+  std::optional<LoadDemand> load_demand() const { return do_load_demand(); }
+  /// True when the part carries a thermal model (temperature states and self-heating).
+  bool has_thermal_model() const { return do_has_thermal_model(); }
+  /// Values the part computed from its inputs, for the summary and the report.
+  std::vector<DerivedValue> derived_values() const { return do_derived_values(); }
+  std::optional<DefiningValue> defining_value() const { return do_defining_value(); }
+
   /// Adds network residual rows, state rates and, when asked, their derivatives.
   void stamp(const Point& point, const Layout& layout, Stamp& stamp) const;
   /// Signal values in the order of signals(): current, voltage, power, then the kind's extras.
@@ -230,6 +293,12 @@ class Part {
   virtual bool do_linear_network() const { return true; }
   virtual PowerChannels do_power_channels() const = 0;
   virtual std::vector<Rating> do_ratings() const { return {}; }
+  virtual Role do_role() const = 0;
+  virtual std::optional<Actuation> do_actuation() const { return std::nullopt; }
+  virtual std::optional<LoadDemand> do_load_demand() const { return std::nullopt; }
+  virtual bool do_has_thermal_model() const { return false; }
+  virtual std::vector<DerivedValue> do_derived_values() const { return {}; }
+  virtual std::optional<DefiningValue> do_defining_value() const { return std::nullopt; }
   virtual void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const = 0;
   virtual Powers do_powers(const Point& point, const Layout& layout) const = 0;
   virtual double do_stored_energy(const Point&, const Layout&) const { return 0.0; }

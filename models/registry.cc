@@ -45,14 +45,15 @@ std::vector<std::string> part_kinds() {
   return names;
 }
 
+PartRecipe plain_resistance(const std::string& value) { return {"resistor", {{"resistance", value}}}; }
+
 std::unique_ptr<Part> create_part(const netlist::PartSpec& spec) {
   for (const auto& [name, factory] : table()) {
     if (name == spec.kind) return factory(spec);
   }
-  const netlist::Tree* kind = spec.block.find("kind");
   std::string list;
   for (const auto& name : part_kinds()) list += (list.empty() ? "" : ", ") + name;
-  throw netlist::InputError(kind ? kind->mark : spec.mark,
+  throw netlist::InputError(spec.kind_mark.line ? spec.kind_mark : spec.mark,
                             fmt::format("part '{}' has unknown kind '{}'", spec.name, spec.kind),
                             netlist::did_you_mean(spec.kind, part_kinds(), fmt::format("known kinds: {}", list)));
 }

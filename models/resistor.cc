@@ -8,6 +8,9 @@ namespace {
 using netlist::Bound;
 using netlist::Dimension;
 
+// A fixed resistor's value is its resistance alone, with or without a TCR and a thermal model.
+DefiningValue fixed_resistance() { return {"resistance", "Ohm", true}; }
+
 class Resistor final : public Part {
  public:
   Resistor(const netlist::PartSpec& spec, double resistance) : Part(spec), resistance_(resistance) {}
@@ -17,6 +20,8 @@ class Resistor final : public Part {
     return point.voltage(layout) / resistance_;
   }
   Link do_link() const override { return Link::Conductive; }
+  Role do_role() const override { return Role::Resistive; }
+  std::optional<DefiningValue> do_defining_value() const override { return fixed_resistance(); }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     stamp.terminal_current(layout, point.voltage(layout) / resistance_, 1.0 / resistance_);
@@ -44,6 +49,7 @@ std::unique_ptr<Part> make_resistor(const netlist::PartSpec& spec) {
   law.reference_resistance = resistance;
   law.temperature_coefficient = tcr.value_or(0.0);
   return finish_thermal_resistor(spec, reader,
-                                 law_or_fail(make_resistance_law(law), reader, tcr ? "tcr" : "resistance"));
+                                 law_or_fail(make_resistance_law(law), reader, tcr ? "tcr" : "resistance"),
+                                 fixed_resistance());
 }
 }  // namespace linkrise::models

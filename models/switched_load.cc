@@ -56,6 +56,10 @@ class SwitchedLoad final : public Part {
   void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
     out[0] = drawing(point, layout) ? 1.0 : 0.0;
   }
+  Role do_role() const override { return Role::Load; }
+  std::optional<LoadDemand> do_load_demand() const override {
+    return LoadDemand{law_ == Law::Power, demand_, resistive_below_, enable_voltage_, disable_voltage_};
+  }
   Link do_link() const override { return Link::CurrentDefined; }
   bool do_linear_network() const override { return false; }
   PowerChannels do_power_channels() const override { return {false, false, true}; }

@@ -11,7 +11,7 @@ namespace {
 using netlist::Bound;
 using netlist::Dimension;
 
-constexpr double celsius_offset = 273.15;
+using netlist::kelvin_offset;
 constexpr double temperature_tolerance_scale = 1e3;
 constexpr double current_squared_tolerance_scale = 1e2;
 
@@ -26,26 +26,26 @@ ThermalNetwork network_or_fail(std::variant<ThermalNetwork, std::string> created
 
 /// A thermal resistance to ambient, or the word `adiabatic` (+infinity: no cooling at all).
 double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::string& key, bool required) {
-  const netlist::Tree* node = reader.child(key);
-  if (node == nullptr) {
+  if (!reader.has(key)) {
+    reader.accept(key);
     if (!required) return std::numeric_limits<double>::infinity();
     reader.fail(key, "is missing", fmt::format("add '{}: 8 K/W', or '{}: adiabatic' for no cooling", key, key));
   }
-  if (node->is_scalar() && node->text == "adiabatic") return std::numeric_limits<double>::infinity();
-  return netlist::ParameterReader::read_value(*node, Dimension::thermal_resistance(), Bound::Positive,
-                                              fmt::format("{} parameter '{}'", reader.owner(), key));
+  if (reader.is_word(key, "adiabatic")) {
+    reader.accept(key);
+    return std::numeric_limits<double>::infinity();
+  }
+  return reader.required(key, Dimension::thermal_resistance(), Bound::Positive);
 }
 
 std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
   if (block.has("foster")) {
-    const netlist::Tree* list = block.child("foster");
-    if (!list->is_list() || list->items.empty()) {
-      block.fail("foster", "must be a list of terms",
-                 "write '- {thermal_resistance: 0.5 K/W, time_constant: 2 s}' per term");
-    }
+    const std::string fix = "write '- {thermal_resistance: 0.5 K/W, time_constant: 2 s}' per term";
+    auto readers = block.blocks("foster", "Foster term", std::numeric_limits<std::size_t>::max(),
+                                "must be a list of terms", fix);
+    if (readers.empty()) block.fail("foster", "must be a list of terms", fix);
     std::vector<FosterTerm> terms;
-    for (std::size_t i = 0; i < list->items.size(); ++i) {
-      netlist::ParameterReader term(list->items[i], fmt::format("{} Foster term {}", block.owner(), i + 1));
+    for (auto& term : readers) {
       FosterTerm t{};
       t.thermal_resistance = term.required("thermal_resistance", Dimension::thermal_resistance(), Bound::Positive);
       t.time_constant = term.required("time_constant", Dimension::time(), Bound::Positive);
@@ -82,7 +82,7 @@ std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
 std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
   std::vector<Rating> ratings;
   if (auto t = block.optional("max_temperature", Dimension::temperature(), Bound::Positive)) {
-    ratings.push_back({"peak_temperature", "degC", *t - celsius_offset, "maximum element temperature"});
+    ratings.push_back({"peak_temperature", "degC", *t - kelvin_offset, "maximum element temperature"});
   }
   auto energy = block.optional("pulse_energy", Dimension::energy(), Bound::Positive);
   auto length = block.optional("pulse_length", Dimension::time(), Bound::Positive);
@@ -105,8 +105,9 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
 
 class ThermalResistor final : public Part {
  public:
-  ThermalResistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options)
-      : Part(spec), law_(std::move(law)), options_(std::move(options)) {
+  ThermalResistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options,
+                  std::optional<DefiningValue> defining)
+      : Part(spec), law_(std::move(law)), options_(std::move(options)), defining_(std::move(defining)) {
     thermal_count_ = options_.network ? static_cast<int>(options_.network->state_count()) : 0;
     if (options_.network) {
       // The thermal network is linear: its Jacobians are constants, taken once here rather than per stamp.
@@ -153,12 +154,15 @@ class ThermalResistor final : public Part {
   Link do_link() const override { return Link::Conductive; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   std::vector<Rating> do_ratings() const override { return options_.ratings; }
+  Role do_role() const override { return Role::Resistive; }
+  bool do_has_thermal_model() const override { return options_.network.has_value(); }
+  std::optional<DefiningValue> do_defining_value() const override { return defining_; }
   std::vector<SignalInfo> do_extra_signals() const override {
     return {{"temperature", "degC"}, {"resistance", "Ohm"}};
   }
   void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
     double t = temperature(point, layout);
-    out[0] = t - celsius_offset;
+    out[0] = t - kelvin_offset;
     out[1] = law_.resistance(t);
   }
 
@@ -214,6 +218,7 @@ class ThermalResistor final : public Part {
 
   ResistanceLaw law_;
   ThermalOptions options_;
+  std::optional<DefiningValue> defining_;
   int thermal_count_ = 0;
   std::vector<double> temperature_gradient_;   // dT_element/dx
   std::vector<double> rate_by_power_;          // d(dx/dt)/dP
@@ -223,8 +228,8 @@ class ThermalResistor final : public Part {
 
 ThermalOptions read_thermal_options(netlist::ParameterReader& reader) {
   ThermalOptions options;
-  if (const netlist::Tree* thermal = reader.child("thermal")) {
-    netlist::ParameterReader block(*thermal, fmt::format("{} block 'thermal'", reader.owner()));
+  if (auto thermal = reader.block("thermal")) {
+    netlist::ParameterReader& block = *thermal;
     options.network = read_network(block);
     if (auto t = block.optional("initial_temperature", Dimension::temperature(), Bound::Positive)) {
       options.initial_temperature = *t;
@@ -232,9 +237,8 @@ ThermalOptions read_thermal_options(netlist::ParameterReader& reader) {
     }
     block.finish();
   }
-  if (const netlist::Tree* ratings = reader.child("ratings")) {
-    netlist::ParameterReader block(*ratings, fmt::format("{} block 'ratings'", reader.owner()));
-    options.ratings = read_ratings(block);
+  if (auto ratings = reader.block("ratings")) {
+    options.ratings = read_ratings(*ratings);
   }
   return options;
 }
@@ -281,15 +285,15 @@ int choose_form(const netlist::ParameterReader& reader, const std::vector<std::v
 }
 
 std::unique_ptr<Part> make_thermal_resistor(const netlist::PartSpec& spec, ResistanceLaw law,
-                                            ThermalOptions options) {
-  return std::make_unique<ThermalResistor>(spec, std::move(law), std::move(options));
+                                            ThermalOptions options, std::optional<DefiningValue> defining) {
+  return std::make_unique<ThermalResistor>(spec, std::move(law), std::move(options), std::move(defining));
 }
 
 std::unique_ptr<Part> finish_thermal_resistor(const netlist::PartSpec& spec, netlist::ParameterReader& reader,
-                                              ResistanceLaw law) {
+                                              ResistanceLaw law, std::optional<DefiningValue> defining) {
   ThermalOptions options = read_thermal_options(reader);
   reader.finish();
-  return make_thermal_resistor(spec, std::move(law), std::move(options));
+  return make_thermal_resistor(spec, std::move(law), std::move(options), std::move(defining));
 }
 
 }  // namespace linkrise::models

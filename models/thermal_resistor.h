@@ -70,10 +70,12 @@ int choose_form(const netlist::ParameterReader& reader, const std::vector<std::v
 /// Name of the I²t quadrature state in StateInfo (the analysis reads it by this name).
 inline constexpr const char* current_squared_state = "current_squared_time";
 
-std::unique_ptr<Part> make_thermal_resistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options);
+/// `defining` names the parameter that sets the part's value, when one does (a fixed resistor's resistance).
+std::unique_ptr<Part> make_thermal_resistor(const netlist::PartSpec& spec, ResistanceLaw law, ThermalOptions options,
+                                            std::optional<DefiningValue> defining = std::nullopt);
 
 /// The usual end of a resistive kind's factory: reads `thermal` and `ratings`, rejects unknown keys, builds the part.
 std::unique_ptr<Part> finish_thermal_resistor(const netlist::PartSpec& spec, netlist::ParameterReader& reader,
-                                              ResistanceLaw law);
+                                              ResistanceLaw law, std::optional<DefiningValue> defining = std::nullopt);
 
 }  // namespace linkrise::models

@@ -17,9 +17,24 @@ const PartSpec* Case::find_part(const std::string& name) const {
   return nullptr;
 }
 
-const Tree* Case::section(const std::string& name) const {
-  const Tree* node = root.find(name);
-  return (node != nullptr && node->kind != Tree::Kind::Null) ? node : nullptr;
+std::vector<std::string> Case::part_names() const {
+  std::vector<std::string> names;
+  for (const auto& part : parts) names.push_back(part.name);
+  return names;
+}
+
+std::vector<std::string> Case::node_names() const {
+  std::set<std::string> nodes;
+  for (const auto& part : parts) nodes.insert(part.nodes.begin(), part.nodes.end());
+  return {nodes.begin(), nodes.end()};
+}
+
+ParameterReader PartSpec::parameters() const {
+  ParameterReader reader(block_, fmt::format("part '{}' ({})", name, kind));
+  reader.accept("name");
+  reader.accept("kind");
+  reader.accept("nodes");
+  return reader;
 }
 
 const std::vector<std::string>& case_sections() {
@@ -48,8 +63,9 @@ std::string scalar_text(const Tree& node, const std::string& what) {
   return node.text;
 }
 
-PartSpec read_part(const Tree& block, std::size_t index, const std::string& file) {
-  (void)file;
+}  // namespace
+
+PartSpec read_part(const Tree& block, std::size_t index) {
   std::string owner = fmt::format("part #{}", index + 1);
   if (!block.is_map()) {
     throw InputError(block.mark, fmt::format("{} must be a block with name, kind, nodes and parameters", owner),
@@ -57,7 +73,7 @@ PartSpec read_part(const Tree& block, std::size_t index, const std::string& file
   }
   PartSpec part;
   part.mark = block.mark;
-  part.block = block;
+  part.block_ = block;
   const Tree* name = block.find("name");
   if (name == nullptr) {
     throw InputError(block.mark, fmt::format("{} has no 'name'", owner), "add 'name: <letters, digits, _>'");
@@ -76,6 +92,7 @@ PartSpec read_part(const Tree& block, std::size_t index, const std::string& file
     throw InputError(block.mark, fmt::format("{} has no 'kind'", owner), "add e.g. 'kind: resistor'");
   }
   part.kind = scalar_text(*kind, "a part's kind");
+  part.kind_mark = kind->mark;
   const Tree* nodes = block.find("nodes");
   if (nodes == nullptr) {
     throw InputError(block.mark, fmt::format("{} has no 'nodes'", owner),
@@ -97,29 +114,11 @@ PartSpec read_part(const Tree& block, std::size_t index, const std::string& file
   }
   return part;
 }
-}  // namespace
 
-Case read_case(const Tree& root, const std::string& file) {
-  Case result;
-  result.file = file;
-  result.root = root;
-  if (!root.is_map()) {
-    throw InputError(root.mark.line ? root.mark : SourceMark{file, 1, 1},
-                     "a case file must be a block of top-level keys (title, ground, parts, run...)",
-                     "start from a stored case in cases/");
-  }
-  ParameterReader top(root, "the case");
-  for (const auto& section : case_sections()) top.accept(section);
-  top.finish();
+namespace {
 
-  result.title = top.text("title").value_or("untitled case");
-  auto ground = top.text("ground");
-  if (!ground) {
-    throw InputError(root.mark, "the case has no 'ground' (the node at 0 V)", "add e.g. 'ground: pack_minus'");
-  }
-  result.ground = *ground;
-  result.ambient = top.quantity("ambient", Dimension::temperature(), Bound::Positive, 298.15);
-
+// The parts list; every part's name unique, the ground node used by some part.
+void read_parts(const Tree& root, Case& result) {
   const Tree* parts = root.find("parts");
   if (parts == nullptr || !parts->is_list() || parts->items.empty()) {
     throw InputError(parts ? parts->mark : root.mark, "the case needs a non-empty list 'parts'",
@@ -128,9 +127,9 @@ Case read_case(const Tree& root, const std::string& file) {
   std::set<std::string> names;
   bool ground_used = false;
   for (std::size_t i = 0; i < parts->items.size(); ++i) {
-    PartSpec part = read_part(parts->items[i], i, file);
+    PartSpec part = read_part(parts->items[i], i);
     if (!names.insert(part.name).second) {
-      throw InputError(part.block.find("name")->mark, fmt::format("part name '{}' is used twice", part.name),
+      throw InputError(parts->items[i].find("name")->mark, fmt::format("part name '{}' is used twice", part.name),
                        "give every part its own name");
     }
     if (part.nodes[0] == result.ground || part.nodes[1] == result.ground) ground_used = true;
@@ -141,13 +140,18 @@ Case read_case(const Tree& root, const std::string& file) {
                      fmt::format("ground node '{}' is not connected to any part", result.ground),
                      "name a node that appears in some part's 'nodes'");
   }
+}
 
-  if (const Tree* events = root.find("events"); events != nullptr && events->kind != Tree::Kind::Null) {
-    if (!events->is_list()) {
-      throw InputError(events->mark, "'events' must be a list such as '- {at: 10 ms, close: k_main}'");
+std::vector<EventSpec> read_events(const Tree& root, const Case& spec) {
+  std::vector<EventSpec> events;
+  const Tree* block = root.find("events");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return events;
+  {
+    if (!block->is_list()) {
+      throw InputError(block->mark, "'events' must be a list such as '- {at: 10 ms, close: k_main}'");
     }
     static const std::vector<std::string> actions = {"close", "open", "enable", "disable"};
-    for (const Tree& item : events->items) {
+    for (const Tree& item : block->items) {
       ParameterReader reader(item, "an event");
       EventSpec event;
       event.mark = item.mark;
@@ -165,41 +169,45 @@ Case read_case(const Tree& root, const std::string& file) {
         throw InputError(item.mark, "an event needs exactly one action: close, open, enable or disable",
                          "write e.g. '- {at: 250 ms, close: k_main}'");
       }
-      if (result.find_part(event.target) == nullptr) {
-        std::vector<std::string> candidates(names.begin(), names.end());
+      if (spec.find_part(event.target) == nullptr) {
         throw InputError(reader.mark(event.action),
                          fmt::format("event at {} s names part '{}', which is not in the parts list", event.at,
                                      event.target),
-                         did_you_mean(event.target, candidates, "name one of the parts"));
+                         did_you_mean(event.target, spec.part_names(), "name one of the parts"));
       }
-      result.events.push_back(event);
+      events.push_back(event);
     }
-    std::stable_sort(result.events.begin(), result.events.end(),
+    std::stable_sort(events.begin(), events.end(),
                      [](const EventSpec& a, const EventSpec& b) { return a.at < b.at; });
   }
+  return events;
+}
 
-  const Tree* run = root.find("run");
-  if (run == nullptr) {
-    throw InputError(root.mark, "the case has no 'run' block", "add 'run: {duration: 2 s}'");
+}  // namespace
+
+Case read_case(const Tree& root, const std::string& file) {
+  Case result;
+  result.file = file;
+  if (!root.is_map()) {
+    throw InputError(root.mark.line ? root.mark : SourceMark{file, 1, 1},
+                     "a case file must be a block of top-level keys (title, ground, parts, run...)",
+                     "start from a stored case in cases/");
   }
-  ParameterReader run_reader(*run, "the run block");
-  result.run.duration = run_reader.required("duration", Dimension::time(), Bound::Positive);
-  result.run.relative_tolerance =
-      run_reader.quantity("rtol", Dimension::none(), Bound::Positive, result.run.relative_tolerance);
-  result.run.absolute_tolerance =
-      run_reader.quantity("atol", Dimension::none(), Bound::Positive, result.run.absolute_tolerance);
-  result.run.max_step = run_reader.quantity("max_step", Dimension::time(), Bound::NonNegative, 0.0);
-  result.run.sample = run_reader.optional("sample", Dimension::time(), Bound::Positive);
-  result.run.max_steps = run_reader.count("max_steps", 2'000'000, 10);
-  if (result.run.relative_tolerance < 1e-14) {
-    run_reader.fail("rtol", fmt::format("{} is below what double precision can resolve", result.run.relative_tolerance),
-                    "use 1e-12 or looser");
+  ParameterReader top(root, "the case");
+  for (const auto& section : case_sections()) top.accept(section);
+  top.finish();
+
+  result.title = top.text("title").value_or("untitled case");
+  auto ground = top.text("ground");
+  if (!ground) {
+    throw InputError(root.mark, "the case has no 'ground' (the node at 0 V)", "add e.g. 'ground: pack_minus'");
   }
-  if (result.run.relative_tolerance > 1e-2) {
-    run_reader.fail("rtol", fmt::format("{} is too loose to judge limits", result.run.relative_tolerance),
-                    "use 1e-6 or tighter");
-  }
-  run_reader.finish();
+  result.ground = *ground;
+  result.ambient = top.quantity("ambient", Dimension::temperature(), Bound::Positive, 298.15);
+
+  read_parts(root, result);
+  result.events = read_events(root, result);
+  result.run = read_run(root);
   for (const auto& event : result.events) {
     if (event.at > result.run.duration) {
       throw InputError(event.mark,
@@ -207,6 +215,11 @@ Case read_case(const Tree& root, const std::string& file) {
                        "move the event earlier or lengthen 'run: duration'");
     }
   }
+  result.sequence = read_sequence(root, result);
+  result.limits = read_limits(root);
+  result.scenarios = read_scenarios(root);
+  result.variants = read_variants(root);
+  result.tolerances = read_tolerances(root);
   return result;
 }
 

@@ -1,22 +1,38 @@
 #pragma once
-// A validated case: parts and their nodes, scheduled switching, run settings.
-// Sections read by later layers (sequence, limits, scenarios, variants, tolerances) stay as trees here
-// and are validated by their own readers.
+// A validated case: every section of the case file as typed data. Later layers read these structs only,
+// never the input tree; edits of the input (overrides, variants, fault scenarios) happen on the input side
+// (netlist/case_document.h) and are validated into a new Case.
 #include <array>
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "netlist/limit_spec.h"
+#include "netlist/parameter_reader.h"
+#include "netlist/run_spec.h"
+#include "netlist/scenario_spec.h"
+#include "netlist/sequence_spec.h"
+#include "netlist/tolerance_spec.h"
 #include "netlist/tree.h"
+#include "netlist/variant_spec.h"
 
 namespace linkrise::netlist {
 
+/// One part as written: name, kind and nodes checked; its parameters are read by the part model of its kind
+/// through parameters(), which validates them (units, bounds, unknown keys).
 struct PartSpec {
   std::string name;
   std::string kind;
   std::array<std::string, 2> nodes;  // positive, negative
   SourceMark mark;                   // where the part's block starts
-  Tree block;                        // the whole block, parameters included
+  SourceMark kind_mark;              // where its kind is written
+
+  /// A reader of the part's parameters that already knows the keys every part has (name, kind, nodes).
+  ParameterReader parameters() const;
+
+ private:
+  friend PartSpec read_part(const Tree& block, std::size_t index);
+  Tree block_;  // the part's block as written, read only through parameters()
 };
 
 /// Scheduled switching: at a known time a part receives an action ("close", "open", "enable", "disable").
@@ -27,34 +43,35 @@ struct EventSpec {
   SourceMark mark;
 };
 
-struct RunSpec {
-  double duration = 0.0;               // s
-  double relative_tolerance = 1e-7;    // CVODE rtol
-  double absolute_tolerance = 1e-8;    // CVODE atol, in each state's SI unit (scaled per state kind)
-  double max_step = 0.0;               // s; 0 means no limit
-  std::optional<double> sample;        // s; uniform output grid from dense output
-  long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
-};
-
-struct Case {
+/// What the solver and the analysis need of a case besides its parts' parameters.
+struct CaseSettings {
   std::string file;
   std::string title;
   std::string ground;
   double ambient = 298.15;  // K
-  std::vector<PartSpec> parts;
   std::vector<EventSpec> events;
   RunSpec run;
-  Tree root;  // the whole file, for the sections other layers read
-
-  const PartSpec* find_part(const std::string& name) const;
-  /// A top-level section such as "sequence" or "limits"; nullptr when absent.
-  const Tree* section(const std::string& name) const;
+  std::optional<SequenceSpec> sequence;  // the BMS sequence, when the case has one
+  std::vector<LimitSpec> limits;         // the case's limits block (part ratings are added by the analysis)
 };
 
-/// The top-level keys a case file may contain (validated here or by a later layer).
+struct Case : CaseSettings {
+  std::vector<PartSpec> parts;
+  std::vector<ScenarioSpec> scenarios;    // fault and what-if scenarios (`linkrise faults`)
+  std::vector<VariantSpec> variants;      // design alternatives (`linkrise compare`)
+  std::vector<ToleranceSpec> tolerances;  // the tolerance spread (`linkrise spread`, `linkrise window`)
+
+  const PartSpec* find_part(const std::string& name) const;
+  /// Names of the parts, in file order.
+  std::vector<std::string> part_names() const;
+  /// Every node some part connects, sorted.
+  std::vector<std::string> node_names() const;
+};
+
+/// The top-level keys a case file may contain.
 const std::vector<std::string>& case_sections();
 
-/// Validates the structure of a case held as a tree. Throws InputError on the first problem.
+/// Validates a case held as a tree: every section. Throws InputError on the first problem.
 Case read_case(const Tree& root, const std::string& file);
 /// Loads and validates a case file.
 Case load_case(const std::string& path);

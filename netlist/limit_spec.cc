@@ -6,10 +6,10 @@
 
 namespace linkrise::netlist {
 
-std::vector<LimitSpec> read_limits(const Case& spec) {
+std::vector<LimitSpec> read_limits(const Tree& root) {
   std::vector<LimitSpec> limits;
-  const Tree* block = spec.section("limits");
-  if (block == nullptr) return limits;
+  const Tree* block = root.find("limits");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return limits;
   if (!block->is_map()) {
     throw InputError(block->mark, "'limits' must be a block of '<metric>: {min: ..., max: ...}' lines",
                      "write e.g. 'r_pre.energy: {max: 150 J}'");

@@ -13,7 +13,7 @@
 #include <string>
 #include <vector>
 
-#include "netlist/case.h"
+#include "netlist/tree.h"
 #include "netlist/units.h"
 
 namespace linkrise::netlist {
@@ -28,7 +28,7 @@ struct LimitSpec {
   SourceMark minimum_mark, maximum_mark;
 };
 
-/// Reads the case's `limits:` block (empty when absent). Throws InputError on a malformed entry.
-std::vector<LimitSpec> read_limits(const Case& spec);
+/// Reads the `limits:` block of a case tree (empty when absent). Throws InputError on a malformed entry.
+std::vector<LimitSpec> read_limits(const Tree& root);
 
 }  // namespace linkrise::netlist

@@ -30,9 +30,9 @@ std::string example_for(const Dimension& dimension) {
 }
 }  // namespace
 
-ParameterReader::ParameterReader(const Tree& block, std::string owner) : block_(block), owner_(std::move(owner)) {
-  if (!block_.is_map() && block_.kind != Tree::Kind::Null) {
-    throw InputError(block_.mark, fmt::format("{} must be a block of 'key: value' lines", owner_),
+ParameterReader::ParameterReader(const Tree& block, std::string owner) : block_(&block), owner_(std::move(owner)) {
+  if (!block_->is_map() && block_->kind != Tree::Kind::Null) {
+    throw InputError(block_->mark, fmt::format("{} must be a block of 'key: value' lines", owner_),
                      "indent the parameters under the name of the block");
   }
 }
@@ -88,17 +88,17 @@ double ParameterReader::read_value(const Tree& node, const Dimension& dimension,
 
 double ParameterReader::required(const std::string& key, const Dimension& dimension, Bound bound) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) {
     // A misspelt key ("resistence") is the likelier cause: name it, with the did-you-mean, at its own place.
-    for (std::size_t i = 0; i < block_.entries.size(); ++i) {
-      const std::string& given = block_.entries[i].first;
+    for (std::size_t i = 0; i < block_->entries.size(); ++i) {
+      const std::string& given = block_->entries[i].first;
       if (std::find(known_.begin(), known_.end(), given) != known_.end()) continue;
       if (closest_match(given, {key}) != key) continue;
-      throw InputError(i < block_.key_marks.size() ? block_.key_marks[i] : block_.mark,
+      throw InputError(i < block_->key_marks.size() ? block_->key_marks[i] : block_->mark,
                        fmt::format("{} has no parameter '{}'", owner_, given), fmt::format("did you mean '{}'?", key));
     }
-    throw InputError(block_.mark, fmt::format("{} needs the parameter '{}' ({})", owner_, key, dimension.describe()),
+    throw InputError(block_->mark, fmt::format("{} needs the parameter '{}' ({})", owner_, key, dimension.describe()),
                      fmt::format("add a line '{}: {}'", key, example_for(dimension)));
   }
   return read_value(*node, dimension, bound, fmt::format("{} parameter '{}'", owner_, key));
@@ -111,7 +111,7 @@ double ParameterReader::quantity(const std::string& key, const Dimension& dimens
 
 std::optional<double> ParameterReader::optional(const std::string& key, const Dimension& dimension, Bound bound) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return std::nullopt;
   return read_value(*node, dimension, bound, fmt::format("{} parameter '{}'", owner_, key));
 }
@@ -119,7 +119,7 @@ std::optional<double> ParameterReader::optional(const std::string& key, const Di
 std::string ParameterReader::word(const std::string& key, const std::vector<std::string>& allowed,
                                   const std::string& fallback) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return fallback;
   std::string list;
   for (const auto& option : allowed) list += (list.empty() ? "" : ", ") + option;
@@ -135,7 +135,7 @@ std::string ParameterReader::word(const std::string& key, const std::vector<std:
 
 int ParameterReader::count(const std::string& key, int fallback, int minimum) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return fallback;
   int value = 0;
   const std::string& text = node->text;
@@ -151,7 +151,7 @@ int ParameterReader::count(const std::string& key, int fallback, int minimum) {
 
 std::optional<std::string> ParameterReader::text(const std::string& key) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return std::nullopt;
   if (!node->is_scalar()) {
     throw InputError(node->mark, fmt::format("{} parameter '{}' must be a single text value", owner_, key));
@@ -163,7 +163,7 @@ std::vector<std::vector<double>> ParameterReader::table(const std::string& key,
                                                         const std::vector<Dimension>& columns) {
   known_.push_back(key);
   std::vector<std::vector<double>> rows;
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return rows;
   if (!node->is_list() || node->items.empty()) {
     throw InputError(node->mark, fmt::format("{} parameter '{}' must be a list of rows", owner_, key),
@@ -186,23 +186,46 @@ std::vector<std::vector<double>> ParameterReader::table(const std::string& key,
   return rows;
 }
 
+std::optional<ParameterReader> ParameterReader::block(const std::string& key) {
+  const Tree* node = child(key);
+  if (node == nullptr) return std::nullopt;
+  return ParameterReader(*node, fmt::format("{} block '{}'", owner_, key));
+}
+
+std::vector<ParameterReader> ParameterReader::blocks(const std::string& key, const std::string& item, std::size_t most,
+                                                     const std::string& problem, const std::string& fix) {
+  std::vector<ParameterReader> items;
+  const Tree* node = child(key);
+  if (node == nullptr) return items;
+  if (!node->is_list() || node->items.size() > most) fail(key, problem, fix);
+  for (std::size_t i = 0; i < node->items.size(); ++i) {
+    items.emplace_back(node->items[i], fmt::format("{} {} {}", owner_, item, i + 1));
+  }
+  return items;
+}
+
+bool ParameterReader::is_word(const std::string& key, const std::string& word) const {
+  const Tree* node = block_->find(key);
+  return node != nullptr && node->is_scalar() && node->text == word;
+}
+
 const Tree* ParameterReader::child(const std::string& key) {
   known_.push_back(key);
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return nullptr;
   return node;
 }
 
 bool ParameterReader::has(const std::string& key) const {
-  const Tree* node = block_.find(key);
+  const Tree* node = block_->find(key);
   return node != nullptr && node->kind != Tree::Kind::Null;
 }
 
 void ParameterReader::accept(const std::string& key) { known_.push_back(key); }
 
 SourceMark ParameterReader::mark(const std::string& key) const {
-  const Tree* node = block_.find(key);
-  return node != nullptr ? node->mark : block_.mark;
+  const Tree* node = block_->find(key);
+  return node != nullptr ? node->mark : block_->mark;
 }
 
 void ParameterReader::fail(const std::string& key, const std::string& problem, const std::string& fix) const {
@@ -210,10 +233,10 @@ void ParameterReader::fail(const std::string& key, const std::string& problem, c
 }
 
 void ParameterReader::finish() const {
-  for (std::size_t i = 0; i < block_.entries.size(); ++i) {
-    const std::string& key = block_.entries[i].first;
+  for (std::size_t i = 0; i < block_->entries.size(); ++i) {
+    const std::string& key = block_->entries[i].first;
     if (std::find(known_.begin(), known_.end(), key) != known_.end()) continue;
-    SourceMark where = i < block_.key_marks.size() ? block_.key_marks[i] : block_.mark;
+    SourceMark where = i < block_->key_marks.size() ? block_->key_marks[i] : block_->mark;
     std::vector<std::string> sorted = known_;
     std::sort(sorted.begin(), sorted.end());
     sorted.erase(std::unique(sorted.begin(), sorted.end()), sorted.end());

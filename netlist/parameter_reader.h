@@ -33,7 +33,15 @@ class ParameterReader {
   std::optional<std::string> text(const std::string& key);
   /// A table: a list of rows, each a list of quantities with the given column dimensions.
   std::vector<std::vector<double>> table(const std::string& key, const std::vector<Dimension>& columns);
-  /// A nested block (map or list) to be read by the caller; nullptr when absent.
+  /// A nested block read by its own reader (owner "<this owner> block '<key>'"); std::nullopt when absent.
+  std::optional<ParameterReader> block(const std::string& key);
+  /// A list of at most `most` blocks, each read by its own reader (owner "<this owner> <item> <n>"); empty when
+  /// absent. A value that is no list, or a longer one, fails with `problem` and `fix`.
+  std::vector<ParameterReader> blocks(const std::string& key, const std::string& item, std::size_t most,
+                                      const std::string& problem, const std::string& fix);
+  /// True when the key holds exactly this word (e.g. `adiabatic` in place of a quantity).
+  bool is_word(const std::string& key, const std::string& word) const;
+  /// The raw node (map, list or scalar) for readers inside netlist/; nullptr when absent.
   const Tree* child(const std::string& key);
   bool has(const std::string& key) const;
   /// Marks a key as known without reading it (it is read elsewhere).
@@ -49,7 +57,7 @@ class ParameterReader {
   static double read_value(const Tree& node, const Dimension& dimension, Bound bound, const std::string& what);
 
  private:
-  const Tree& block_;
+  const Tree* block_;
   std::string owner_;
   std::vector<std::string> known_;
 };

@@ -10,7 +10,7 @@
 
 namespace linkrise::netlist {
 
-std::vector<ScenarioSpec> read_scenarios(const Tree& root, const std::vector<std::string>& built_in) {
+std::vector<ScenarioSpec> read_scenarios(const Tree& root) {
   std::vector<ScenarioSpec> scenarios;
   const Tree* block = root.find("scenarios");
   if (block == nullptr || block->kind == Tree::Kind::Null) return scenarios;
@@ -37,16 +37,10 @@ std::vector<ScenarioSpec> read_scenarios(const Tree& root, const std::vector<std
       scenario.overrides =
           read_set_block(*set, "a scenario's", "write e.g. 'set: {r_pre.resistance: 20 Ohm, ambient: 50 degC}'");
     }
-    bool is_built_in = std::find(built_in.begin(), built_in.end(), scenario.name) != built_in.end();
     if (reader.has("expect")) {
       scenario.expected = reader.word("expect", sequence_outcomes(), "closed");
     } else {
       reader.accept("expect");
-      if (!is_built_in) {
-        throw InputError(item.mark, fmt::format("scenario '{}' needs 'expect', the outcome the BMS should reach",
-                                                scenario.name),
-                         "add e.g. 'expect: no_rise' (closed, timeout, no_rise, too_fast)");
-      }
     }
     scenario.note = reader.text("note").value_or("");
     reader.finish();

@@ -19,13 +19,13 @@ namespace linkrise::netlist {
 struct ScenarioSpec {
   std::string name;
   std::vector<Override> overrides;
-  std::optional<std::string> expected;  // required unless the name is a built-in scenario's
+  std::optional<std::string> expected;  // absent: a built-in scenario's own expectation (checked by `faults`)
   std::string note;
   SourceMark mark;
 };
 
-/// Reads the `scenarios:` block of a case tree (empty when absent). `built_in` lists the names that may be
-/// given without `expect`. Throws InputError for a malformed entry.
-std::vector<ScenarioSpec> read_scenarios(const Tree& root, const std::vector<std::string>& built_in);
+/// Reads the `scenarios:` block of a case tree (empty when absent). Throws InputError for a malformed entry.
+/// `expect` may be left out only for a built-in scenario, which the faults study checks (it owns that list).
+std::vector<ScenarioSpec> read_scenarios(const Tree& root);
 
 }  // namespace linkrise::netlist

@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "netlist/case.h"
 #include "netlist/parameter_reader.h"
 
 namespace linkrise::netlist {
@@ -21,33 +22,23 @@ std::string SequenceSpec::rule_text() const {
   return text;
 }
 
+std::vector<std::pair<std::string, SourceMark>> SequenceSpec::moved_contactors() const {
+  std::vector<std::pair<std::string, SourceMark>> moved;
+  for (std::size_t i = 0; i < start_closed.size(); ++i) {
+    moved.emplace_back(start_closed[i], i < start_closed_marks.size() ? start_closed_marks[i] : mark);
+  }
+  moved.emplace_back(main, main_mark);
+  return moved;
+}
+
 namespace {
-
-std::vector<std::string> part_names(const Case& spec) {
-  std::vector<std::string> names;
-  for (const auto& part : spec.parts) names.push_back(part.name);
-  return names;
-}
-
-std::vector<std::string> node_names(const Case& spec) {
-  std::set<std::string> nodes;
-  for (const auto& part : spec.parts) nodes.insert(part.nodes.begin(), part.nodes.end());
-  return {nodes.begin(), nodes.end()};
-}
-
 
 // A part name that must name a contactor of the case.
 std::string contactor_name(const Case& spec, const Tree& node, const std::string& what) {
   if (!node.is_scalar()) throw InputError(node.mark, fmt::format("the sequence's {} must be a part name", what));
-  const PartSpec* part = spec.find_part(node.text);
-  if (part == nullptr) {
+  if (spec.find_part(node.text) == nullptr) {
     throw InputError(node.mark, fmt::format("the sequence's {} '{}' is not in the parts list", what, node.text),
-                     did_you_mean(node.text, part_names(spec), "name one of the case's contactors"));
-  }
-  if (part->kind != "contactor") {
-    throw InputError(node.mark,
-                     fmt::format("the sequence's {} '{}' is a {}, not a contactor", what, node.text, part->kind),
-                     "name a part of kind 'contactor'");
+                     did_you_mean(node.text, spec.part_names(), "name one of the case's contactors"));
   }
   return node.text;
 }
@@ -62,7 +53,7 @@ NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string&
     throw InputError(node->mark, fmt::format("the sequence's '{}' must list two nodes [plus, minus]", key),
                      fmt::format("write '{}: [plus_node, minus_node]'", key));
   }
-  auto nodes = node_names(spec);
+  auto nodes = spec.node_names();
   for (const Tree& item : node->items) {
     if (std::find(nodes.begin(), nodes.end(), item.text) == nodes.end()) {
       throw InputError(item.mark, fmt::format("the sequence's '{}' names node '{}', which no part connects", key,
@@ -79,9 +70,9 @@ NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string&
 
 }  // namespace
 
-std::optional<SequenceSpec> read_sequence(const Case& spec) {
-  const Tree* block = spec.section("sequence");
-  if (block == nullptr) return std::nullopt;
+std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
+  const Tree* block = root.find("sequence");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return std::nullopt;
   ParameterReader reader(*block, "the sequence block");
   SequenceSpec sequence;
   sequence.mark = block->mark;
@@ -99,6 +90,7 @@ std::optional<SequenceSpec> read_sequence(const Case& spec) {
                        "list each contactor once");
     }
     sequence.start_closed.push_back(name);
+    sequence.start_closed_marks.push_back(item.mark);
   }
   auto required_contactor = [&](const std::string& key, const std::string& what, const std::string& example) {
     const Tree* node = reader.child(key);
@@ -109,7 +101,9 @@ std::optional<SequenceSpec> read_sequence(const Case& spec) {
     return contactor_name(spec, *node, fmt::format("'{}' contactor", key));
   };
   sequence.main = required_contactor("main", "the main contactor", "k_main");
+  sequence.main_mark = reader.mark("main");
   sequence.precharge = required_contactor("precharge", "the pre-charge contactor", "k_pre");
+  sequence.precharge_mark = reader.mark("precharge");
   if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.main) !=
       sequence.start_closed.end()) {
     reader.fail("main", fmt::format("'{}' is also in start_closed; the main contactor closes only on the decision",
@@ -130,9 +124,10 @@ std::optional<SequenceSpec> read_sequence(const Case& spec) {
     }
     if (!node->is_scalar() || spec.find_part(node->text) == nullptr) {
       throw InputError(node->mark, fmt::format("the sequence's resistor '{}' is not in the parts list", node->text),
-                       did_you_mean(node->text, part_names(spec), "name the pre-charge resistor part"));
+                       did_you_mean(node->text, spec.part_names(), "name the pre-charge resistor part"));
     }
     sequence.resistor = node->text;
+    sequence.resistor_mark = node->mark;
   }
   sequence.overlap = reader.quantity("overlap", Dimension::time(), Bound::NonNegative, 0.0);
   sequence.pack = node_pair(spec, reader, "pack");

@@ -23,11 +23,14 @@
 // All times of an attempt are measured from its start (the sample at which the coils are energised).
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
-#include "netlist/case.h"
+#include "netlist/tree.h"
 
 namespace linkrise::netlist {
+
+struct Case;
 
 enum class ClosingRule { Ratio, Difference };
 
@@ -55,6 +58,12 @@ struct SequenceSpec {
   double cool_down = 0.0;            // s
   std::string expected_outcome = "closed";
   SourceMark mark;
+  // Where each named part is written, for the checks made once the part kinds are known.
+  std::vector<SourceMark> start_closed_marks;
+  SourceMark main_mark, precharge_mark, resistor_mark;
+
+  /// Every contactor the sequence moves (start_closed, then main) with the place it is named.
+  std::vector<std::pair<std::string, SourceMark>> moved_contactors() const;
 
   /// The closing level on the link for a given pack voltage: ratio·pack or pack − difference.
   double closing_level(double pack_voltage) const {
@@ -67,8 +76,9 @@ struct SequenceSpec {
 /// The outcomes a sequence can end with.
 const std::vector<std::string>& sequence_outcomes();
 
-/// Reads and validates the case's `sequence:` block against its parts and nodes; std::nullopt when the case
-/// has none. Throws InputError with the position of the first problem.
-std::optional<SequenceSpec> read_sequence(const Case& spec);
+/// Reads and validates the `sequence:` block of a case tree against the parts, nodes, events and run already
+/// read into `spec`; std::nullopt when the case has none. That the named contactors are switches is checked
+/// when the circuit is built (the part kinds are known to the models only). Throws InputError with the position of the first problem.
+std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec);
 
 }  // namespace linkrise::netlist

@@ -237,7 +237,7 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
     return quantity;
   }
   if (unit == "degC" || unit == "°C") {
-    quantity.value = number + 273.15;
+    quantity.value = number + kelvin_offset;
     quantity.dimension = Dimension::temperature();
     quantity.absolute_temperature = true;
     return quantity;
@@ -306,6 +306,20 @@ std::string format_si(double value, std::string_view unit, int significant) {
   }
   double scaled = value / std::pow(10.0, exponent3);
   return fmt::format("{:.{}g} {}{}", scaled, significant, prefix, unit);
+}
+
+std::string display_quantity(const Quantity& quantity) {
+  if (quantity.absolute_temperature) return fmt::format("{:.4g} degC", quantity.value - kelvin_offset);
+  std::string unit = quantity.dimension.symbol();
+  if (quantity.dimension == Dimension::none()) return fmt::format("{:.4g}", quantity.value);
+  return format_si(quantity.value, unit);
+}
+
+std::string quantity_text(double value, const Dimension& dimension, bool absolute_temperature) {
+  if (absolute_temperature) return fmt::format("{:.17g} degC", value - kelvin_offset);
+  std::string unit = dimension.symbol();
+  if (dimension == Dimension::none() || unit.empty() || unit == "1") return fmt::format("{:.17g}", value);
+  return fmt::format("{:.17g} {}", value, unit);
 }
 
 }  // namespace linkrise::netlist

@@ -40,6 +40,9 @@ struct Dimension {
   static Dimension frequency();
 };
 
+/// 0 degC in kelvin: the one offset between the two temperature scales.
+inline constexpr double kelvin_offset = 273.15;
+
 /// A parsed value in SI base units. `bare` is true when the text had no unit at all.
 struct Quantity {
   double value = 0.0;
@@ -56,5 +59,9 @@ std::optional<Quantity> parse_quantity(std::string_view text, std::string& probl
 
 /// Formats a number with an SI prefix and unit, e.g. 0.0012 F -> "1.2 mF" (for messages and terminal output).
 std::string format_si(double value, std::string_view unit, int significant = 4);
+/// A quantity for people: SI prefix and unit, an absolute temperature in degC ("33 Ohm", "25 degC").
+std::string display_quantity(const Quantity& quantity);
+/// Case-file text of a value that reads back exactly ("3.3000000000000003e-05 F", "25 degC").
+std::string quantity_text(double value, const Dimension& dimension, bool absolute_temperature);
 
 }  // namespace linkrise::netlist

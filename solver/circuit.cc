@@ -33,7 +33,7 @@ struct Groups {
 
 Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
   std::map<std::string, int> nodes;
-  for (const auto& part_spec : spec_.parts) {
+  for (const auto& part_spec : spec.parts) {
     parts_.push_back(models::create_part(part_spec));
     for (const auto& node : part_spec.nodes) {
       if (node != spec_.ground && nodes.find(node) == nodes.end()) {
@@ -79,6 +79,7 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
     }
   }
   check_topology();
+  check_sequence_parts();
   // Scheduled events must name an action the target part accepts.
   for (const auto& event : spec_.events) {
     int index = find_part(event.target);
@@ -86,6 +87,21 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
     auto change = parts_[index]->command(event.action, layouts_[index], scratch.data());
     if (!change.problem.empty()) {
       throw netlist::InputError(event.mark, change.problem, "switch contactors with close/open, loads with enable/disable");
+    }
+  }
+}
+
+// The sequence's contactors must be switches and its resistor resistive; the kinds are known only here.
+void Circuit::check_sequence_parts() const {
+  if (!spec_.sequence) return;
+  const netlist::SequenceSpec& sequence = *spec_.sequence;
+  for (const auto& [name, mark] : sequence.moved_contactors()) {
+    const models::Part& part = *parts_[find_part(name)];
+    if (part.role() != models::Role::Switch) {
+      throw netlist::InputError(mark,
+                                fmt::format("the sequence moves '{}', a {} part ({}), which cannot switch", name,
+                                            models::role_word(part.role()), part.kind()),
+                                "name a part of kind 'contactor'");
     }
   }
 }
@@ -138,7 +154,7 @@ void Circuit::check_topology() const {
       for (std::size_t p = 0; p < parts_.size(); ++p) {
         if (layouts_[p].node[0] == n || layouts_[p].node[1] == n) part_name = parts_[p]->name();
       }
-      throw netlist::InputError(spec_.find_part(part_name)->mark,
+      throw netlist::InputError(parts_[find_part(part_name)]->mark(),
                                 fmt::format("node '{}' has no path to ground '{}': it belongs to a separate "
                                             "circuit with no connection to the rest",
                                             node_names_[n], spec_.ground),
@@ -183,7 +199,7 @@ void Circuit::check_topology() const {
     }
     std::string list;
     for (const auto& member : members) list += (list.empty() ? "" : ", ") + member;
-    throw netlist::InputError(first ? first->mark() : spec_.parts.front().mark,
+    throw netlist::InputError(first ? first->mark() : parts_.front()->mark(),
                               fmt::format("node(s) {} connect to the rest of the circuit only through inductors or "
                                           "current-drawing loads ({}): their currents cannot balance",
                                           list, boundary),

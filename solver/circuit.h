@@ -27,7 +27,8 @@ class Circuit {
   /// Builds and checks the circuit; throws netlist::InputError naming the offending part or node.
   explicit Circuit(const netlist::Case& spec);
 
-  const netlist::Case& spec() const { return spec_; }
+  /// The case's settings (file, title, ground, ambient, events, run, sequence, limits); no input tree.
+  const netlist::CaseSettings& spec() const { return spec_; }
   int part_count() const { return static_cast<int>(parts_.size()); }
   const models::Part& part(int index) const { return *parts_[index]; }
   const models::Layout& layout(int index) const { return layouts_[index]; }
@@ -60,8 +61,9 @@ class Circuit {
 
  private:
   void check_topology() const;
+  void check_sequence_parts() const;
 
-  netlist::Case spec_;
+  netlist::CaseSettings spec_;
   std::vector<std::unique_ptr<models::Part>> parts_;
   std::vector<models::Layout> layouts_;
   std::vector<std::string> node_names_;

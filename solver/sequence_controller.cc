@@ -6,7 +6,6 @@
 
 #include <fmt/format.h>
 
-#include "models/contactor.h"
 #include "netlist/units.h"
 
 namespace linkrise::solver {
@@ -15,15 +14,15 @@ using netlist::format_si;
 
 int contactor_index(const Circuit& circuit, const std::string& name, const netlist::SourceMark& mark) {
   int index = circuit.find_part(name);
-  if (index < 0 || !models::contactor_timing(circuit.part(index))) {
+  if (index < 0 || !circuit.part(index).actuation()) {
     throw netlist::InputError(mark, fmt::format("the sequence names '{}', which is not a contactor", name),
                               "name a part of kind 'contactor'");
   }
   return index;
 }
 
-models::ContactorTiming timing_of(const Circuit& circuit, int part) {
-  return *models::contactor_timing(circuit.part(part));
+models::Actuation timing_of(const Circuit& circuit, int part) {
+  return *circuit.part(part).actuation();
 }
 }  // namespace
 

@@ -1,0 +1,86 @@
+#include "netlist/case_document.h"
+
+#include <fmt/format.h>
+
+namespace linkrise::netlist {
+
+CaseDocument CaseDocument::load(const std::string& path) { return CaseDocument(load_yaml_file(path), path); }
+
+CaseDocument CaseDocument::parse(const std::string& text, const std::string& file) {
+  return CaseDocument(parse_yaml(text, file), file);
+}
+
+Case CaseDocument::validate() const { return read_case(root_, file_); }
+
+void CaseDocument::apply(const Override& change) { apply_override(root_, change); }
+
+void CaseDocument::apply(const std::vector<Override>& changes) { apply_overrides(root_, changes); }
+
+CaseDocument CaseDocument::with(const std::vector<Override>& changes) const {
+  CaseDocument changed = *this;
+  changed.apply(changes);
+  return changed;
+}
+
+CaseDocument CaseDocument::with_variant(const VariantSpec& variant) const {
+  CaseDocument changed = *this;
+  // A swap of technology changes the part's kind and its whole parameter set, which a path override cannot
+  // express (the old kind's parameters would remain); only name and nodes carry over.
+  for (std::size_t i = 0; i < variant.replaced_parts.size(); ++i) {
+    Tree& block = part_block(changed.root_, variant.replaced_parts[i], variant.mark);
+    Tree fresh = variant.replacement_blocks_[i];
+    Tree name = *block.find("name");
+    const Tree* nodes = block.find("nodes");
+    fresh.entries.insert(fresh.entries.begin(), {"name", name});
+    fresh.key_marks.insert(fresh.key_marks.begin(), name.mark);
+    if (nodes != nullptr) {
+      fresh.entries.insert(fresh.entries.begin() + 1, {"nodes", *nodes});
+      fresh.key_marks.insert(fresh.key_marks.begin() + 1, nodes->mark);
+    }
+    block = std::move(fresh);
+  }
+  changed.apply(variant.overrides);
+  return changed;
+}
+
+std::optional<Quantity> CaseDocument::quantity_at(const std::string& path, const SourceMark& mark) const {
+  const Tree* node = find_value(root_, path, mark);
+  if (node == nullptr) return std::nullopt;
+  if (!node->is_scalar()) {
+    throw InputError(mark, fmt::format("'{}' has no single value in the case", path),
+                     "name a parameter that holds one value, e.g. 'r_pre.resistance'");
+  }
+  std::string problem;
+  auto quantity = parse_quantity(node->text, problem);
+  if (!quantity) {
+    throw InputError(node->mark, fmt::format("the value of '{}' '{}' is not a quantity: {}", path, node->text, problem),
+                     "write a number with a unit, e.g. '22 Ohm' or '1.5 mF'");
+  }
+  return quantity;
+}
+
+void CaseDocument::scale(const std::string& path, double factor, const SourceMark& mark) {
+  scale_value(root_, path, factor, mark);
+}
+
+void CaseDocument::add_part(const std::string& name, const std::string& kind, const std::string& plus,
+                            const std::string& minus, const std::vector<std::pair<std::string, std::string>>& parameters,
+                            const SourceMark& mark) {
+  netlist::add_part(root_, name, kind, plus, minus, parameters, mark);
+}
+
+void CaseDocument::replace_part(const std::string& name, const std::string& kind,
+                                const std::vector<std::pair<std::string, std::string>>& parameters,
+                                const SourceMark& mark) {
+  netlist::replace_part(root_, name, kind, parameters, mark);
+}
+
+void CaseDocument::reverse_part(const std::string& name, const SourceMark& mark) {
+  netlist::reverse_part(root_, name, mark);
+}
+
+std::string CaseDocument::unused_part_name(const std::string& base) const {
+  return netlist::unused_part_name(root_, base);
+}
+
+}  // namespace linkrise::netlist
