@@ -182,24 +182,7 @@ Case read_case(const Tree& root, const std::string& file) {
   if (run == nullptr) {
     throw InputError(root.mark, "the case has no 'run' block", "add 'run: {duration: 2 s}'");
   }
-  ParameterReader run_reader(*run, "the run block");
-  result.run.duration = run_reader.required("duration", Dimension::time(), Bound::Positive);
-  result.run.relative_tolerance =
-      run_reader.quantity("rtol", Dimension::none(), Bound::Positive, result.run.relative_tolerance);
-  result.run.absolute_tolerance =
-      run_reader.quantity("atol", Dimension::none(), Bound::Positive, result.run.absolute_tolerance);
-  result.run.max_step = run_reader.quantity("max_step", Dimension::time(), Bound::NonNegative, 0.0);
-  result.run.sample = run_reader.optional("sample", Dimension::time(), Bound::Positive);
-  result.run.max_steps = run_reader.count("max_steps", 2'000'000, 10);
-  if (result.run.relative_tolerance < 1e-14) {
-    run_reader.fail("rtol", fmt::format("{} is below what double precision can resolve", result.run.relative_tolerance),
-                    "use 1e-12 or looser");
-  }
-  if (result.run.relative_tolerance > 1e-2) {
-    run_reader.fail("rtol", fmt::format("{} is too loose to judge limits", result.run.relative_tolerance),
-                    "use 1e-6 or tighter");
-  }
-  run_reader.finish();
+  result.run = read_run(*run);
   for (const auto& event : result.events) {
     if (event.at > result.run.duration) {
       throw InputError(event.mark,

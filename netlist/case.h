@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "netlist/run_spec.h"
 #include "netlist/tree.h"
 
 namespace linkrise::netlist {
@@ -25,15 +26,6 @@ struct EventSpec {
   std::string action;
   std::string target;
   SourceMark mark;
-};
-
-struct RunSpec {
-  double duration = 0.0;               // s
-  double relative_tolerance = 1e-7;    // CVODE rtol
-  double absolute_tolerance = 1e-8;    // CVODE atol, in each state's SI unit (scaled per state kind)
-  double max_step = 0.0;               // s; 0 means no limit
-  std::optional<double> sample;        // s; uniform output grid from dense output
-  long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
 };
 
 struct Case {
