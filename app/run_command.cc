@@ -14,25 +14,39 @@
 #include "app/verdict_summary.h"
 #include "app/waveform_csv.h"
 #include "netlist/parameter_reader.h"
+#include "netlist/run_spec.h"
 #include "solver/circuit.h"
 #include "solver/transient.h"
 
 namespace linkrise::app {
 
+namespace {
+// The command line's run options replace the case's and pass the same check, marked with the option's name.
+void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
+  if (arguments.sample) {
+    netlist::SourceMark mark{"option --sample", 0, 0};
+    netlist::Tree node = netlist::Tree::scalar(*arguments.sample, mark);
+    run.sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Any,
+                                                      "option --sample");
+    run.marks.sample = mark;
+  }
+  if (arguments.relative_tolerance) {
+    run.relative_tolerance = *arguments.relative_tolerance;
+    run.marks.rtol = netlist::SourceMark{"option --rtol", 0, 0};
+  }
+  if (arguments.absolute_tolerance) {
+    run.absolute_tolerance = *arguments.absolute_tolerance;
+    run.marks.atol = netlist::SourceMark{"option --atol", 0, 0};
+  }
+  netlist::require_valid_run(run);
+}
+}  // namespace
+
 int run_command(const RunArguments& arguments) {
   try {
     netlist::Case spec = netlist::load_case(arguments.case_file);
-    std::optional<double> sample;
-    if (arguments.sample) {
-      netlist::Tree node = netlist::Tree::scalar(*arguments.sample, netlist::SourceMark{"--sample", 0, 0});
-      sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Positive,
-                                                    "option --sample");
-    }
-    CaseRun run(spec, [&](solver::Options& options) {
-      if (sample) options.sample = sample;
-      if (arguments.relative_tolerance) options.relative_tolerance = *arguments.relative_tolerance;
-      if (arguments.absolute_tolerance) options.absolute_tolerance = *arguments.absolute_tolerance;
-    });
+    apply_run_options(arguments, spec.run);
+    CaseRun run(spec);
     const solver::Circuit& circuit = run.circuit();
     const solver::Options& options = run.options();
     const solver::Result& result = run.result();

@@ -207,7 +207,11 @@ Case read_case(const Tree& root, const std::string& file) {
 
   read_parts(root, result);
   result.events = read_events(root, result);
-  result.run = read_run(root);
+  const Tree* run = root.find("run");
+  if (run == nullptr) {
+    throw InputError(root.mark, "the case has no 'run' block", "add 'run: {duration: 2 s}'");
+  }
+  result.run = read_run(*run);
   for (const auto& event : result.events) {
     if (event.at > result.run.duration) {
       throw InputError(event.mark,

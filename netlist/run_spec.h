@@ -1,7 +1,24 @@
 #pragma once
-// The `run:` block: how long to simulate and how accurately.
+// The run block: how long to simulate and how accurately. One check, check_run(), holds the accepted ranges;
+// the case file, overrides (scenarios, studies' --set run.*) and the command line (--rtol, --atol, --sample)
+// all pass through it, so a bad value is an input error at the place it was written, never a solver failure.
+//
+// Accepted ranges and why:
+//   duration   > 0 s, finite
+//   rtol       1e-12 ... 1e-2. Tighter than 1e-12, the error test would compare against the rounding of the
+//              network solve inside every right-hand side (stopped at about 1e-14 relative, double precision
+//              2.2e-16), so CVODE would shrink steps chasing noise. Looser than 1 %, the error control is
+//              coarser than the limits' margins, the BMS thresholds and the energy audit it feeds.
+//   atol       > 0, finite (in each state's SI unit; zero leaves a state that passes through 0 without any
+//              error control)
+//   max_step   >= 0 s, finite (0: no limit)
+//   sample     > 0 s, finite, when given
+//   max_steps  >= 10 (even a single RC charge takes dozens of steps: BDF starts at order 1 with a tiny first
+//              step, so a smaller limit is a slip)
 #include <optional>
+#include <string>
 
+#include "netlist/input_error.h"
 #include "netlist/tree.h"
 
 namespace linkrise::netlist {
@@ -13,9 +30,37 @@ struct RunSpec {
   double max_step = 0.0;               // s; 0 means no limit
   std::optional<double> sample;        // s; uniform output grid from dense output
   long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
+
+  // Where each value was written: its place in the case file (or of an override), an option such as
+  // "option --rtol" (line 0), or the run block's own place for a default.
+  struct Marks {
+    SourceMark duration, rtol, atol, max_step, sample, max_steps;
+  } marks;
 };
 
-/// Reads and validates the case's `run:` block. Throws InputError at the offending value.
-RunSpec read_run(const Tree& root);
+/// The smallest and largest relative tolerance accepted (see the ranges above).
+inline constexpr double kTightestRelativeTolerance = 1e-12;
+inline constexpr double kLoosestRelativeTolerance = 1e-2;
+inline constexpr long kFewestSteps = 10;
+
+/// One run setting outside its accepted range.
+struct FieldProblem {
+  std::string field;  // the run block's key: "rtol", "atol", "duration"...
+  double value = 0.0;
+  std::string rule;   // the violated constraint, e.g. "must be at most 1e-2"
+  std::string why;    // the reason for the rule
+  std::string fix;
+  SourceMark mark;    // where the value was written
+};
+
+/// The first setting outside its accepted range, or nothing when all are usable.
+std::optional<FieldProblem> check_run(const RunSpec& run);
+/// The problem as an input error at the setting's place.
+InputError run_input_error(const FieldProblem& problem);
+/// Throws run_input_error() when check_run() finds a problem.
+void require_valid_run(const RunSpec& run);
+
+/// Reads and checks the run block `block` of a case; throws InputError at the offending value.
+RunSpec read_run(const Tree& block);
 
 }  // namespace linkrise::netlist

@@ -64,6 +64,7 @@ struct CvodeHandles {
   SUNMatrix matrix = nullptr;
   SUNLinearSolver linear_solver = nullptr;
   void* memory = nullptr;
+  // The release calls fail only for a null object, which the guards exclude; nothing is left to report then.
   ~CvodeHandles() {
     if (memory) CVodeFree(&memory);
     if (linear_solver) SUNLinSolFree(linear_solver);
@@ -219,7 +220,11 @@ class Driver {
     record_step_row(t, states);
     recorded_until_ = t;
   }
+  // CVODE set up for a run from t0; the error handler is installed before any call that could report.
   void initialise_cvode(double t0);
+  void create_vectors(double t0);
+  void attach_solver(double t0);
+  void attach_roots(double t0);
   // The accounts vector holds the quadratures at the last step's end only after this (fetched on demand:
   // most steps need no copy).
   void sync_accounts(double t) {
@@ -231,12 +236,23 @@ class Driver {
   }
   void reinitialise(double t) {
     sync_accounts(t);
-    harvest_statistics();
+    harvest_statistics(t);
     check(CVodeReInit(handles_.memory, t, handles_.states), "CVodeReInit", t);
     if (accounts_ > 0) check(CVodeQuadReInit(handles_.memory, handles_.accounts), "CVodeQuadReInit", t);
     ++result_.statistics.reinitialisations;
   }
-  void harvest_statistics();
+  // Adds CVODE's counters since the last (re)initialisation to harvested_ (all or none).
+  void harvest_statistics(double t);
+  // The run's phases: initial operating point, the integration loop, and the bookkeeping after a failure.
+  void prepare(double t0);
+  void integrate(double t0);
+  double advance(double t);
+  std::optional<double> visit_step(double reached);
+  void switch_inside_step(double command_time, double reached);
+  void take_sample(double sample_time);
+  void handle_roots(double reached);
+  void record_failure(const SolverError& error);
+  void collect_statistics(std::chrono::steady_clock::time_point started);
   // Applies every pending command at time t (states in x()). Returns true when a mode changed.
   bool apply_commands(double t);
   void stored_energies(double t, const double* states, std::vector<double>& out) {
@@ -263,6 +279,8 @@ class Driver {
   long next_grid_index_ = 0;
   double last_sample_ = -std::numeric_limits<double>::infinity();
   Statistics harvested_;
+  bool cvode_ready_ = false;  // every CVODE object attached: the statistics can be read
+  long steps_taken_ = 0;      // CVODE steps of the whole run, against Options::max_steps
 };
 
 // CVODE's own messages are replaced by check(), which names the call and the time.
@@ -281,7 +299,7 @@ int root_callback(double t, N_Vector x, double* out, void* user) {
   return static_cast<Driver*>(user)->roots(t, N_VGetArrayPointer(x), out);
 }
 
-void Driver::initialise_cvode(double t0) {
+void Driver::create_vectors(double t0) {
   check(SUNContext_Create(nullptr, &handles_.context), "SUNContext_Create", t0);
   handles_.states = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.states, "N_VNew_Serial");
@@ -301,10 +319,17 @@ void Driver::initialise_cvode(double t0) {
     check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
-  handles_.memory = CVodeCreate(CV_BDF, handles_.context);
-  check_pointer(handles_.memory, "CVodeCreate");
   std::fill(x(), x() + n_, 0.0);
   std::copy(result_.initial_states.begin(), result_.initial_states.begin() + states_, x());
+}
+
+void Driver::initialise_cvode(double t0) {
+  create_vectors(t0);
+  handles_.memory = CVodeCreate(CV_BDF, handles_.context);
+  check_pointer(handles_.memory, "CVodeCreate");
+  // First, so that no later call (CVodeInit, tolerances, the linear solver) prints CVODE's own text.
+  check(CVodeSetErrHandlerFn(handles_.memory, quiet_error_handler, nullptr), "CVodeSetErrHandlerFn", t0);
+  check(CVodeSetMaxHnilWarns(handles_.memory, -1), "CVodeSetMaxHnilWarns", t0);
   check(CVodeInit(handles_.memory, rhs_callback, t0, handles_.states), "CVodeInit", t0);
   if (accounts_ > 0) {
     // Quadratures stay out of the Newton system and out of the error test: they are as accurate as the
@@ -316,6 +341,12 @@ void Driver::initialise_cvode(double t0) {
   }
   check(CVodeSetUserData(handles_.memory, this), "CVodeSetUserData", t0);
   check(CVodeSVtolerances(handles_.memory, options_.relative_tolerance, handles_.tolerances), "CVodeSVtolerances", t0);
+  attach_solver(t0);
+  attach_roots(t0);
+  cvode_ready_ = true;
+}
+
+void Driver::attach_solver(double t0) {
   handles_.matrix = SUNDenseMatrix(n_, n_, handles_.context);
   check_pointer(handles_.matrix, "SUNDenseMatrix");
   handles_.linear_solver = SUNLinSol_Dense(handles_.states, handles_.matrix, handles_.context);
@@ -323,39 +354,41 @@ void Driver::initialise_cvode(double t0) {
   check(CVodeSetLinearSolver(handles_.memory, handles_.linear_solver, handles_.matrix), "CVodeSetLinearSolver", t0);
   check(CVodeSetJacFn(handles_.memory, jacobian_callback), "CVodeSetJacFn", t0);
   check(CVodeSetMaxNumSteps(handles_.memory, 100000), "CVodeSetMaxNumSteps", t0);
-  check(CVodeSetErrHandlerFn(handles_.memory, quiet_error_handler, nullptr), "CVodeSetErrHandlerFn", t0);
-  check(CVodeSetMaxHnilWarns(handles_.memory, -1), "CVodeSetMaxHnilWarns", t0);
   if (options_.max_step > 0.0) check(CVodeSetMaxStep(handles_.memory, options_.max_step), "CVodeSetMaxStep", t0);
-  int root_total = circuit_.root_count() + static_cast<int>(options_.watches.size());
-  if (root_total > 0) {
-    check(CVodeRootInit(handles_.memory, root_total, root_callback), "CVodeRootInit", t0);
-    std::vector<int> directions(root_total, 0);
-    for (int r = 0; r < circuit_.root_count(); ++r) {
-      int owner = circuit_.root_owner(r);
-      directions[r] = circuit_.part(owner).root_direction(r - circuit_.root_first(owner));
-    }
-    check(CVodeSetRootDirection(handles_.memory, directions.data()), "CVodeSetRootDirection", t0);
-  }
 }
 
-void Driver::harvest_statistics() {
-  if (!handles_.memory) return;
-  long value = 0;
-  Statistics& s = harvested_;
-  CVodeGetNumSteps(handles_.memory, &value);
-  s.steps += value;
-  CVodeGetNumRhsEvals(handles_.memory, &value);
-  s.rhs_evaluations += value;
-  CVodeGetNumJacEvals(handles_.memory, &value);
-  s.jacobian_evaluations += value;
-  CVodeGetNumNonlinSolvIters(handles_.memory, &value);
-  s.nonlinear_iterations += value;
-  CVodeGetNumErrTestFails(handles_.memory, &value);
-  s.error_test_failures += value;
-  if (circuit_.root_count() + options_.watches.size() > 0) {
-    CVodeGetNumGEvals(handles_.memory, &value);
-    s.root_evaluations += value;
+void Driver::attach_roots(double t0) {
+  int root_total = circuit_.root_count() + static_cast<int>(options_.watches.size());
+  if (root_total == 0) return;
+  check(CVodeRootInit(handles_.memory, root_total, root_callback), "CVodeRootInit", t0);
+  std::vector<int> directions(root_total, 0);
+  for (int r = 0; r < circuit_.root_count(); ++r) {
+    int owner = circuit_.root_owner(r);
+    directions[r] = circuit_.part(owner).root_direction(r - circuit_.root_first(owner));
   }
+  check(CVodeSetRootDirection(handles_.memory, directions.data()), "CVodeSetRootDirection", t0);
+}
+
+void Driver::harvest_statistics(double t) {
+  if (!cvode_ready_) return;
+  struct Counter {
+    int (*read)(void*, long*);
+    const char* call;
+    long Statistics::*total;
+  };
+  static const Counter counters[] = {
+      {CVodeGetNumSteps, "CVodeGetNumSteps", &Statistics::steps},
+      {CVodeGetNumRhsEvals, "CVodeGetNumRhsEvals", &Statistics::rhs_evaluations},
+      {CVodeGetNumJacEvals, "CVodeGetNumJacEvals", &Statistics::jacobian_evaluations},
+      {CVodeGetNumNonlinSolvIters, "CVodeGetNumNonlinSolvIters", &Statistics::nonlinear_iterations},
+      {CVodeGetNumErrTestFails, "CVodeGetNumErrTestFails", &Statistics::error_test_failures},
+      {CVodeGetNumGEvals, "CVodeGetNumGEvals", &Statistics::root_evaluations}};
+  // CVODE counts root evaluations only with rootfinding on; without it the last counter stays zero.
+  const bool roots = circuit_.root_count() + options_.watches.size() > 0;
+  const std::size_t used = std::size(counters) - (roots ? 0 : 1);
+  long values[std::size(counters)] = {};
+  for (std::size_t c = 0; c < used; ++c) check(counters[c].read(handles_.memory, &values[c]), counters[c].call, t);
+  for (std::size_t c = 0; c < used; ++c) harvested_.*counters[c].total += values[c];
 }
 
 bool Driver::apply_commands(double t) {
@@ -380,133 +413,153 @@ bool Driver::apply_commands(double t) {
   return any;
 }
 
-Result Driver::run() {
-  auto started = std::chrono::steady_clock::now();
-  const double t0 = 0.0;
-  result_.initial_states = circuit_.initial_states();
-  try {
-    // Initial network, then let modes follow the initial voltages.
-    solve_at(t0, result_.initial_states.data());
-    {
-      models::Point point = equations_.point(t0, result_.initial_states.data(), modes_.data(), unknowns_.data());
-      bool changed = false;
-      for (int p = 0; p < circuit_.part_count(); ++p) {
-        changed = circuit_.part(p).settle(point, circuit_.layout(p), modes_.data()).changed || changed;
-      }
-      if (changed) solve_at(t0, result_.initial_states.data());
+// Initial network, then let modes follow the initial voltages; then CVODE.
+void Driver::prepare(double t0) {
+  solve_at(t0, result_.initial_states.data());
+  models::Point point = equations_.point(t0, result_.initial_states.data(), modes_.data(), unknowns_.data());
+  bool changed = false;
+  for (int p = 0; p < circuit_.part_count(); ++p) {
+    changed = circuit_.part(p).settle(point, circuit_.layout(p), modes_.data()).changed || changed;
+  }
+  if (changed) solve_at(t0, result_.initial_states.data());
+  stored_energies(t0, result_.initial_states.data(), result_.initial_stored);
+  initialise_cvode(t0);
+}
+
+void Driver::integrate(double t0) {
+  double t = t0;
+  record_until(t0, x());
+  if (apply_commands(t0)) reinitialise(t0);
+  while (t < options_.duration) {
+    if (options_.supervisor && options_.supervisor->finished()) {
+      result_.outcome = Outcome::SupervisorFinished;
+      break;
     }
-    stored_energies(t0, result_.initial_states.data(), result_.initial_stored);
-    initialise_cvode(t0);
-    double t = t0;
-    record_until(t0, x());
-    if (apply_commands(t0)) reinitialise(t0);
-    long steps = 0;
-    const double end = options_.duration;
-    while (t < end) {
-      if (options_.supervisor && options_.supervisor->finished()) {
-        result_.outcome = Outcome::SupervisorFinished;
-        break;
-      }
-      double stop = pending_.empty() ? end : std::min(end, pending_.front().time);
-      check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
-      double reached = t;
-      int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
-      check(flag, "CVode", reached);
-      accounts_stale_ = true;
-      if (++steps > options_.max_steps) {
-        throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
-      }
-      // Supervisor samples and commands inside (t, reached], in time order; commands first on a tie.
-      bool stepped_back = false;
-      double* dense = N_VGetArrayPointer(handles_.scratch);
-      while (true) {
-        double command_time = pending_.empty() ? std::numeric_limits<double>::infinity() : pending_.front().time;
-        double sample_time = options_.supervisor ? options_.supervisor->next_sample(last_sample_)
-                                                 : std::numeric_limits<double>::infinity();
-        if (std::min(command_time, sample_time) > reached) break;
-        if (command_time <= sample_time) {
-          if (command_time < reached) {
-            check(CVodeGetDky(handles_.memory, command_time, 0, handles_.scratch), "CVodeGetDky", command_time);
-            if (accounts_ > 0) {
-              check(CVodeGetQuadDky(handles_.memory, command_time, 0, handles_.accounts), "CVodeGetQuadDky",
-                    command_time);
-            }
-            accounts_stale_ = false;
-            result_.steps.truncate_after(command_time);
-            record_until(command_time, dense);
-            std::copy(dense, dense + n_, x());
-            ++result_.statistics.step_backs;
-          } else {
-            record_until(reached, x());
-          }
-          apply_commands(command_time);
-          reinitialise(command_time);
-          t = command_time;
-          stepped_back = true;
-          break;
-        }
-        check(CVodeGetDky(handles_.memory, sample_time, 0, handles_.scratch), "CVodeGetDky", sample_time);
-        solve_at(sample_time, dense);
-        Probe probe{&circuit_, sample_time, dense, unknowns_.data(), modes_.data()};
-        std::vector<Command> decided;
-        options_.supervisor->sample(probe, decided, result_.timeline);
-        for (auto& command : decided) {
-          command.time = std::max(command.time, sample_time);
-          auto position = std::upper_bound(pending_.begin(), pending_.end(), command,
-                                           [](const Command& a, const Command& b) { return a.time < b.time; });
-          pending_.insert(position, command);
-        }
-        last_sample_ = sample_time;
-      }
-      if (stepped_back) continue;
-      record_until(reached, x());
-      if (flag == CV_ROOT_RETURN) {
-        int total = circuit_.root_count() + static_cast<int>(options_.watches.size());
-        std::vector<int> found(total, 0);
-        check(CVodeGetRootInfo(handles_.memory, found.data()), "CVodeGetRootInfo", reached);
-        bool changed = false;
-        for (int r = 0; r < circuit_.root_count(); ++r) {
-          if (found[r] == 0) continue;
-          int owner = circuit_.root_owner(r);
-          auto change = circuit_.part(owner).on_root(r - circuit_.root_first(owner), found[r],
-                                                     circuit_.layout(owner), modes_.data());
-          if (change.changed) {
-            changed = true;
-            ++result_.statistics.events;
-            result_.timeline.push_back(TimelineEntry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
-                                                     found[r] > 0 ? "voltage rose through a threshold"
-                                                                  : "voltage fell through a threshold"});
-          }
-        }
-        for (std::size_t w = 0; w < options_.watches.size(); ++w) {
-          int direction = found[circuit_.root_count() + w];
-          if (direction != 0) result_.crossings.push_back(Crossing{reached, static_cast<int>(w), direction});
-        }
-        if (changed) {
-          record_step_row(reached, x());
-          reinitialise(reached);
-        }
-      }
-      t = reached;
+    t = advance(t);
+  }
+  result_.end_time = t;
+  sync_accounts(t);
+  result_.final_states = full_state();
+  stored_energies(t, result_.final_states.data(), result_.final_stored);
+}
+
+// One CVODE step towards the next known-time command (or the end); returns the time the run stands at.
+double Driver::advance(double t) {
+  double stop = pending_.empty() ? options_.duration : std::min(options_.duration, pending_.front().time);
+  check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
+  double reached = t;
+  int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
+  check(flag, "CVode", reached);
+  accounts_stale_ = true;
+  if (++steps_taken_ > options_.max_steps) {
+    throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
+  }
+  if (auto switched = visit_step(reached)) return *switched;
+  record_until(reached, x());
+  if (flag == CV_ROOT_RETURN) handle_roots(reached);
+  return reached;
+}
+
+// Supervisor samples and commands inside the step just taken, in time order (commands first on a tie).
+// Returns the command time when one was applied there: the run continues from it.
+std::optional<double> Driver::visit_step(double reached) {
+  while (true) {
+    double command_time = pending_.empty() ? std::numeric_limits<double>::infinity() : pending_.front().time;
+    double sample_time = options_.supervisor ? options_.supervisor->next_sample(last_sample_)
+                                             : std::numeric_limits<double>::infinity();
+    if (std::min(command_time, sample_time) > reached) return std::nullopt;
+    if (command_time <= sample_time) {
+      switch_inside_step(command_time, reached);
+      return command_time;
     }
-    result_.end_time = t;
-    sync_accounts(t);
-    result_.final_states = full_state();
-    stored_energies(t, result_.final_states.data(), result_.final_stored);
-  } catch (const SolverError& error) {
-    result_.outcome = Outcome::SolverFailure;
-    result_.message = error.what();
-    result_.end_time = error.time();
-    if (handles_.states) {
-      try {
-        sync_accounts(result_.end_time);
-      } catch (const SolverError&) {
-        // keep the accounts of the last synchronised time
-      }
-      result_.final_states = full_state();
+    take_sample(sample_time);
+  }
+}
+
+// Goes back to a command inside the step (state from dense output, later rows dropped), applies it, restarts.
+void Driver::switch_inside_step(double command_time, double reached) {
+  if (command_time < reached) {
+    double* dense = N_VGetArrayPointer(handles_.scratch);
+    check(CVodeGetDky(handles_.memory, command_time, 0, handles_.scratch), "CVodeGetDky", command_time);
+    if (accounts_ > 0) {
+      check(CVodeGetQuadDky(handles_.memory, command_time, 0, handles_.accounts), "CVodeGetQuadDky", command_time);
+    }
+    accounts_stale_ = false;
+    result_.steps.truncate_after(command_time);
+    record_until(command_time, dense);
+    std::copy(dense, dense + n_, x());
+    ++result_.statistics.step_backs;
+  } else {
+    record_until(reached, x());
+  }
+  apply_commands(command_time);
+  reinitialise(command_time);
+}
+
+void Driver::take_sample(double sample_time) {
+  double* dense = N_VGetArrayPointer(handles_.scratch);
+  check(CVodeGetDky(handles_.memory, sample_time, 0, handles_.scratch), "CVodeGetDky", sample_time);
+  solve_at(sample_time, dense);
+  Probe probe{&circuit_, sample_time, dense, unknowns_.data(), modes_.data()};
+  std::vector<Command> decided;
+  options_.supervisor->sample(probe, decided, result_.timeline);
+  for (auto& command : decided) {
+    command.time = std::max(command.time, sample_time);
+    auto position = std::upper_bound(pending_.begin(), pending_.end(), command,
+                                     [](const Command& a, const Command& b) { return a.time < b.time; });
+    pending_.insert(position, command);
+  }
+  last_sample_ = sample_time;
+}
+
+// State events flip the parts' modes (then CVODE restarts); level watches record their crossings.
+void Driver::handle_roots(double reached) {
+  int total = circuit_.root_count() + static_cast<int>(options_.watches.size());
+  std::vector<int> found(total, 0);
+  check(CVodeGetRootInfo(handles_.memory, found.data()), "CVodeGetRootInfo", reached);
+  bool changed = false;
+  for (int r = 0; r < circuit_.root_count(); ++r) {
+    if (found[r] == 0) continue;
+    int owner = circuit_.root_owner(r);
+    auto change = circuit_.part(owner).on_root(r - circuit_.root_first(owner), found[r], circuit_.layout(owner),
+                                               modes_.data());
+    if (change.changed) {
+      changed = true;
+      ++result_.statistics.events;
+      result_.timeline.push_back(TimelineEntry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
+                                               found[r] > 0 ? "voltage rose through a threshold"
+                                                            : "voltage fell through a threshold"});
     }
   }
-  harvest_statistics();
+  for (std::size_t w = 0; w < options_.watches.size(); ++w) {
+    int direction = found[circuit_.root_count() + w];
+    if (direction != 0) result_.crossings.push_back(Crossing{reached, static_cast<int>(w), direction});
+  }
+  if (changed) {
+    record_step_row(reached, x());
+    reinitialise(reached);
+  }
+}
+
+void Driver::record_failure(const SolverError& error) {
+  result_.outcome = Outcome::SolverFailure;
+  result_.message = error.what();
+  result_.end_time = error.time();
+  if (!handles_.states) return;
+  // After a failure these reads are best effort: the failure's own message is what the run reports, and the
+  // accounts and counters keep their last values read.
+  try {
+    sync_accounts(result_.end_time);
+  } catch (const SolverError&) {
+  }
+  result_.final_states = full_state();
+  try {
+    harvest_statistics(result_.end_time);
+  } catch (const SolverError&) {
+  }
+}
+
+void Driver::collect_statistics(std::chrono::steady_clock::time_point started) {
   Statistics& s = result_.statistics;
   s.steps = harvested_.steps;
   s.rhs_evaluations = harvested_.rhs_evaluations;
@@ -515,8 +568,22 @@ Result Driver::run() {
   s.error_test_failures = harvested_.error_test_failures;
   s.root_evaluations = harvested_.root_evaluations;
   s.network_newton_iterations = equations_.newton_iterations();
-  result_.final_modes = modes_;
   s.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+}
+
+Result Driver::run() {
+  auto started = std::chrono::steady_clock::now();
+  const double t0 = 0.0;
+  result_.initial_states = circuit_.initial_states();
+  try {
+    prepare(t0);
+    integrate(t0);
+    harvest_statistics(result_.end_time);
+  } catch (const SolverError& error) {
+    record_failure(error);
+  }
+  result_.final_modes = modes_;
+  collect_statistics(started);
   return std::move(result_);
 }
 

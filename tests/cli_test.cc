@@ -58,6 +58,16 @@ class Cli : public ::testing::Test {
     std::ofstream(path) << text;
     return path;
   }
+  // A capacitor charged through a source's resistance; the run block `run_line` is line 5.
+  fs::path write_capacitor_case(const std::string& name, const std::string& run_line) const {
+    return write_case(name,
+                      "ground: gnd\n"
+                      "parts:\n"
+                      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, "
+                      "series_resistance: 1 Ohm}\n"
+                      "  - {name: c1, kind: capacitor, nodes: [plus, gnd], capacitance: 1 uF}\n" +
+                          run_line + "\n");
+  }
   static std::vector<std::string> split(const std::string& line) {
     std::vector<std::string> cells;
     std::stringstream stream(line);
@@ -182,17 +192,45 @@ TEST_F(Cli, BadCaseExitsWithTwoAndWritesNothing) {
 TEST_F(Cli, SolverFailureExitsWithThreeAndItsOwnMessage) {
   // A 1 ps step limit over a 1 s run needs 1e12 steps: the run's step limit stops it [by construction].
   fs::path output = directory_ / "failed_out";
-  fs::path file = write_case("step_limit.yaml",
-                             "ground: gnd\n"
-                             "parts:\n"
-                             "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, "
-                             "series_resistance: 1 Ohm}\n"
-                             "  - {name: c1, kind: capacitor, nodes: [plus, gnd], capacitance: 1 uF}\n"
-                             "run: {duration: 1 s, max_step: 1 ps, max_steps: 20000}\n");
+  fs::path file = write_capacitor_case("step_limit.yaml", "run: {duration: 1 s, max_step: 1 ps, max_steps: 20000}");
   Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
   EXPECT_EQ(result.exit_code, 3) << result.err;
   EXPECT_NE(result.err.find("solver failure"), std::string::npos) << result.err;
   EXPECT_NE(result.err.find("steps before t ="), std::string::npos) << result.err;
   EXPECT_EQ(result.err.find("error:"), std::string::npos) << "not reported as an input error: " << result.err;
+  EXPECT_TRUE(empty_directory(output));
+}
+
+TEST_F(Cli, BadRunOptionIsAnInputErrorNamingTheOptionAndSundialsStaysSilent) {
+  // The accepted ranges are the run block's (netlist/run_spec.h): 1e-12 <= rtol <= 1e-2, atol > 0.
+  struct Bad {
+    const char* arguments;
+    const char* option;
+  };
+  const Bad cases[] = {{"--rtol 0.5", "option --rtol"}, {"--rtol -1", "option --rtol"}, {"--atol 0", "option --atol"}};
+  fs::path output = directory_ / "bad_option_out";
+  for (const auto& bad : cases) {
+    Outcome result = run(std::string("run \"") + kDemo + "\" -q -o \"" + output.string() + "\" " + bad.arguments);
+    EXPECT_EQ(result.exit_code, 2) << bad.arguments << ": " << result.err;
+    EXPECT_NE(result.err.find(std::string(bad.option) + ": error:"), std::string::npos) << result.err;
+    EXPECT_NE(result.err.find("fix:"), std::string::npos) << result.err;
+    EXPECT_EQ(result.err.find("solver failure"), std::string::npos) << result.err;
+    // Nothing of SUNDIALS' own text: its reports are replaced by linkrise's messages.
+    for (const char* foreign : {"[CVODE", "[CVSLS", "SUNDIALS", "illegal"}) {
+      EXPECT_EQ(result.err.find(foreign), std::string::npos) << bad.arguments << ": " << result.err;
+    }
+    EXPECT_TRUE(empty_directory(output)) << "no output after an input error";
+  }
+}
+
+TEST_F(Cli, BadRunBlockValueExitsWithTwoAtItsPlace) {
+  fs::path output = directory_ / "bad_run_out";
+  fs::path file = write_capacitor_case("bad_rtol.yaml", "run: {duration: 1 s, rtol: -1}");
+  Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
+  EXPECT_EQ(result.exit_code, 2) << result.err;
+  // Line 5, column 28: the '-1' after "run: {duration: 1 s, rtol: " [counted by hand].
+  EXPECT_NE(result.err.find(file.string() + ":5:28: error: run setting 'rtol' = -1"), std::string::npos)
+      << result.err;
+  EXPECT_EQ(result.err.find("[CVODE"), std::string::npos) << result.err;
   EXPECT_TRUE(empty_directory(output));
 }

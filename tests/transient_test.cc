@@ -473,3 +473,17 @@ TEST(Transient, ConstantPowerLoadBeyondMaximumPowerCollapsesTheLink) {
   auto link = column(result.steps, "plus");
   EXPECT_NEAR(link.back(), v_end, 1e-3 * v_end);
 }
+
+TEST(Transient, IllegalToleranceIsReportedByNameAndSundialsPrintsNothing) {
+  // A caller bypassing the run block's check (netlist/run_spec.h) hands CVODE a negative rtol; CVODE rejects it
+  // (CV_ILL_INPUT, its documented reply to rtol < 0, SUNDIALS CVODES guide [mem]). The driver names the call;
+  // CVODE's own report, and the statistics read after the failure, print nothing.
+  Simulation sim(rc_case());
+  sim.options.relative_tolerance = -1.0;
+  ::testing::internal::CaptureStderr();
+  Result result = sim.run();
+  std::string printed = ::testing::internal::GetCapturedStderr();
+  EXPECT_EQ(result.outcome, Outcome::SolverFailure);
+  EXPECT_NE(result.message.find("tolerances failed with CV_ILL_INPUT"), std::string::npos) << result.message;
+  EXPECT_TRUE(printed.empty()) << printed;
+}
