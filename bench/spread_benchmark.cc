@@ -5,7 +5,7 @@
 //   linkrise_bench --benchmark_filter=Spread
 #include <benchmark/benchmark.h>
 
-#include "app/spread_command.h"
+#include "app/studies/spread.h"
 
 namespace {
 

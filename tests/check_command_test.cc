@@ -9,8 +9,8 @@
 #include <fstream>
 #include <sstream>
 
-#include "app/check_command.h"
-#include "app/golden.h"
+#include "app/regression/check.h"
+#include "app/regression/golden.h"
 #include "tests/xml_check.h"
 
 namespace fs = std::filesystem;

@@ -1,7 +1,7 @@
 // The detection-matrix report: well-formed (XHTML-compatible), one table row per scenario, failing rows marked
 // by word as well as by colour, byte-reproducible at any thread count, hostile text escaped, and the kept
 // link-voltage traces true to the waveform.
-#include "app/faults_report.h"
+#include "app/report/faults_report.h"
 
 #include <gtest/gtest.h>
 #include <sys/wait.h>
@@ -19,7 +19,7 @@
 
 #include <fmt/format.h>
 
-#include "app/faults_command.h"
+#include "app/studies/faults.h"
 #include "tests/circuit_fixture.h"
 #include "tests/xml_check.h"
 

@@ -1,6 +1,6 @@
 // The detection matrix on the stored sequence cases: a well-designed case catches every built-in fault, a badly
 // designed one shows failing rows, and structure the case lacks is reported as not applicable.
-#include "app/faults_command.h"
+#include "app/studies/faults.h"
 
 #include <gtest/gtest.h>
 

@@ -172,8 +172,8 @@ TEST(ReportBrowser, ChromiumRendersTheDemoReport) {
   const Image image = decode_png(shot);
   ASSERT_TRUE(image.error.empty()) << image.error;
   ASSERT_EQ(image.rgb.size(), std::size_t{1200} * 3000 * 3);
-  // A blank page is one or two background colours (#efece5 around, #fcfbf8 on the page; app/report_html.cc).
-  // Pure white is only the plot areas (app/svg_plot.cc), each about 620 x 270 px: at least three of them must
+  // A blank page is one or two background colours (#efece5 around, #fcfbf8 on the page; app/report/report_html.cc).
+  // Pure white is only the plot areas (app/report/svg_plot.cc), each about 620 x 270 px: at least three of them must
   // be on the first 3000 px (the demo report measured about 740 000 white pixels).
   EXPECT_GT(pixels_near(image, 0xffffff, 0), 3 * 150000);
   // The second series colour, #c0562a, appears nowhere but in plotted curves and their legend samples
@@ -186,7 +186,7 @@ TEST(ReportBrowser, ChromiumRendersTheDemoReport) {
   if (!::testing::Test::HasFailure()) fs::remove_all(work, ignored);
 }
 
-// The detection-matrix report (app/faults_report.h) of the deliberately failing design: the browser built one
+// The detection-matrix report (app/report/faults_report.h) of the deliberately failing design: the browser built one
 // matrix row per scenario of faults.json, the failing rows with their class and word, and every plot.
 TEST(ReportBrowser, ChromiumRendersTheFaultsReport) {
   const std::string chromium = find_chromium();

@@ -1,6 +1,6 @@
 // The HTML report: well-formed (XHTML-compatible), self-contained, byte-reproducible, escaped, and showing
 // the run's numbers. The in-browser rendering is checked by report_browser_test.cc.
-#include "app/report_html.h"
+#include "app/report/report_html.h"
 
 #include <algorithm>
 #include <cmath>

@@ -1,5 +1,5 @@
-// The counter-based random stream of the tolerance studies (app/random_stream.h).
-#include "app/random_stream.h"
+// The counter-based random stream of the tolerance studies (app/studies/random_stream.h).
+#include "app/studies/random_stream.h"
 
 #include <cmath>
 #include <vector>

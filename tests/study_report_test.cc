@@ -1,7 +1,7 @@
-// The study reports (app/study_report.h): well-formed (XHTML-compatible) with unique ids, the expected plots and
+// The study reports (app/report/study_report.h): well-formed (XHTML-compatible) with unique ids, the expected plots and
 // table rows, byte-identical at one and two threads, hostile text escaped, and the tables and curves carrying
 // closed-form RC numbers. Small RC cases (tests/study_fixture.h) keep each study to a few fast simulations.
-#include "app/study_report.h"
+#include "app/report/study_report.h"
 
 #include <gtest/gtest.h>
 #include <sys/wait.h>
@@ -19,7 +19,7 @@
 #include <fmt/format.h>
 
 #include "analysis/metrics.h"
-#include "app/study_parameters.h"
+#include "app/studies/study_parameters.h"
 #include "study_fixture.h"
 #include "tests/xml_check.h"
 

@@ -1,6 +1,6 @@
-// Tolerance spread (app/spread_command.h): corners against the RC closed form, Monte Carlo statistics
+// Tolerance spread (app/studies/spread.h): corners against the RC closed form, Monte Carlo statistics
 // against the analytic distribution of τ = R·C, determinism across thread counts and shards.
-#include "app/spread_command.h"
+#include "app/studies/spread.h"
 
 #include <algorithm>
 #include <cmath>

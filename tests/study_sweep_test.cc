@@ -1,12 +1,12 @@
-// Sweeps (app/sweep_command.h) and the command-line parameter forms (app/study_parameters.h): every sweep point
+// Sweeps (app/studies/sweep.h) and the command-line parameter forms (app/studies/study_parameters.h): every sweep point
 // equals an individual run of the case with that value, and follows the RC closed form.
-#include "app/sweep_command.h"
+#include "app/studies/sweep.h"
 
 #include <cmath>
 
 #include <gtest/gtest.h>
 
-#include "app/case_evaluation.h"
+#include "app/evaluation/case_evaluation.h"
 #include "netlist/input_error.h"
 #include "netlist/overrides.h"
 #include "study_fixture.h"

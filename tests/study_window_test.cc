@@ -1,6 +1,6 @@
-// The fault window (app/fault_window.h): recommended from the spread by the stated rule, and verified by
+// The fault window (app/studies/fault_window.h): recommended from the spread by the stated rule, and verified by
 // re-running the fault scenarios with it.
-#include "app/fault_window.h"
+#include "app/studies/fault_window.h"
 
 #include <cmath>
 

@@ -1,4 +1,4 @@
-#include "app/svg_plot.h"
+#include "app/report/svg_plot.h"
 
 #include <algorithm>
 #include <cmath>
@@ -11,6 +11,8 @@
 
 #include <gtest/gtest.h>
 
+#include "app/output/decimation.h"
+#include "app/output/text_format.h"
 #include "tests/xml_check.h"
 
 namespace linkrise::app {

@@ -1,0 +1,63 @@
+// linkrise command line: each subcommand lives in its own app/commands/<name>_command.cc.
+#include <iostream>
+
+#include <CLI/CLI.hpp>
+
+#include "app/commands/check_command.h"
+#include "app/commands/exit_codes.h"
+#include "app/commands/faults_command.h"
+#include "app/commands/run_command.h"
+#include "app/cli/study_commands.h"
+
+int main(int argc, char** argv) {
+  using namespace linkrise::app;
+  CLI::App cli{"linkrise — simulate and judge the pre-charge of battery-pack DC links"};
+  cli.require_subcommand(1);
+  cli.set_version_flag("--version", LINKRISE_VERSION);
+
+  RunArguments run;
+  auto* run_cli = cli.add_subcommand("run", "simulate one case; write waveforms.csv and summary.json");
+  run_cli->add_option("case", run.case_file, "case file (YAML)")->required();
+  run_cli->add_option("-o,--output", run.output_directory, "output directory")->capture_default_str();
+  run_cli->add_option("--sample", run.sample, "uniform output grid, e.g. '100 us'");
+  run_cli->add_option("--rtol", run.relative_tolerance, "relative tolerance (overrides the case)");
+  run_cli->add_option("--atol", run.absolute_tolerance, "absolute tolerance (overrides the case)");
+  run_cli->add_option("--report", run.report, "also write a self-contained HTML report to this file");
+  run_cli->add_flag("-q,--quiet", run.quiet, "print nothing on success");
+
+  CheckArguments check;
+  auto* check_cli = cli.add_subcommand("check", "re-run the stored cases and compare them with their golden results");
+  check_cli->add_option("paths", check.paths, "case files or directories (default: cases)");
+  check_cli->add_option("--junit", check.junit_file, "also write a JUnit XML report to this file");
+  check_cli->add_flag("--update", check.update, "rewrite the golden results, listing every value that changed");
+  check_cli->add_flag("--all", check.show_all, "list unchanged items too");
+  check_cli->add_option("-j,--jobs", check.jobs, "parallel cases (default: one per core)");
+
+  FaultsArguments faults;
+  auto* faults_cli =
+      cli.add_subcommand("faults", "run the built-in and the case's fault scenarios; write the detection matrix");
+  faults_cli->add_option("case", faults.case_file, "case file (YAML) with a sequence block")->required();
+  faults_cli->add_option("-o,--output", faults.output_directory, "output directory")->capture_default_str();
+  faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
+  faults_cli->add_option("--report", faults.report, "also write a self-contained HTML report to this file");
+  faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");
+
+  StudyCommands studies(cli);  // compare, sweep, spread, window (app/cli/study_commands.h)
+
+  try {
+    cli.parse(argc, argv);
+  } catch (const CLI::ParseError& error) {
+    int code = cli.exit(error);
+    return code == 0 ? kExitOk : kExitInputError;
+  }
+  try {
+    if (run_cli->parsed()) return run_command(run);
+    if (check_cli->parsed()) return check_command(check);
+    if (faults_cli->parsed()) return faults_command(faults);
+    if (auto code = studies.dispatch()) return *code;
+  } catch (const std::exception& error) {
+    std::cerr << "linkrise: " << error.what() << "\n";
+    return kExitInputError;
+  }
+  return kExitOk;
+}

@@ -1,0 +1,64 @@
+#include "app/cli/study_commands.h"
+
+namespace linkrise::app {
+
+StudyCommands::StudyCommands(CLI::App& cli) {
+  const char* set_help = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
+  const char* report_help = "also write a self-contained HTML report to this file";
+  const char* jobs_help = "parallel evaluations (default: one per core; results do not depend on it)";
+
+  compare_cli_ = cli.add_subcommand("compare", "run the case's variants side by side with the nominal case");
+  compare_cli_->add_option("case", compare_.case_file, "case file (YAML) with a variants block")->required();
+  compare_cli_->add_option("--set", compare_.settings, set_help);
+  compare_cli_->add_option("-o,--output", compare_.output_directory, "output directory")->capture_default_str();
+  compare_cli_->add_option("-j,--jobs", compare_.jobs, jobs_help);
+  compare_cli_->add_flag("-q,--quiet", compare_.quiet, "print nothing on success");
+  compare_cli_->add_option("--report", compare_.report, report_help);
+
+  sweep_cli_ = cli.add_subcommand("sweep", "vary one or two parameters over lists or ranges");
+  sweep_cli_->add_option("case", sweep_.case_file, "case file (YAML)")->required();
+  sweep_cli_->add_option("--vary", sweep_.vary,
+                         "PATH=A,B,C or PATH=A..B[:lin|:log][:N] (once or twice), e.g. r_pre.resistance=22Ohm..68Ohm:log:5")
+      ->required();
+  sweep_cli_->add_option("--set", sweep_.settings, set_help);
+  sweep_cli_->add_option("--metrics", sweep_.metrics, "metrics for the terminal table, comma-separated");
+  sweep_cli_->add_option("-o,--output", sweep_.output_directory, "output directory")->capture_default_str();
+  sweep_cli_->add_option("-j,--jobs", sweep_.jobs, jobs_help);
+  sweep_cli_->add_flag("-q,--quiet", sweep_.quiet, "print nothing on success");
+  sweep_cli_->add_option("--report", sweep_.report, report_help);
+
+  auto add_population = [&](CLI::App* command, SpreadArguments& arguments) {
+    command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
+    command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples");
+    command->add_option("--seed", arguments.seed, "Monte Carlo seed")->capture_default_str();
+    command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4");
+    command->add_option("--set", arguments.settings, set_help);
+    command->add_option("--metrics", arguments.metrics, "metrics for the terminal tables, comma-separated");
+    command->add_option("-o,--output", arguments.output_directory, "output directory")->capture_default_str();
+    command->add_option("-j,--jobs", arguments.jobs, jobs_help);
+    command->add_flag("-q,--quiet", arguments.quiet, "print nothing on success");
+    command->add_option("--report", arguments.report, report_help);
+  };
+  spread_cli_ = cli.add_subcommand("spread", "tolerance spread: corners or Monte Carlo over the tolerances block");
+  spread_cli_->add_option("case", spread_.case_file, "case file (YAML) with a tolerances block")->required();
+  add_population(spread_cli_, spread_);
+
+  window_cli_ = cli.add_subcommand(
+      "window", "recommend the BMS minimum time and timeout from the spread, then verify them on the fault scenarios");
+  window_cli_->add_option("case", window_.spread.case_file, "case file (YAML) with sequence and tolerances blocks")
+      ->required();
+  add_population(window_cli_, window_.spread);
+  window_cli_->add_option("--margin", window_.margin, "margin below the fastest and above the slowest charge, e.g. 20%")
+      ->capture_default_str();
+
+}
+
+std::optional<int> StudyCommands::dispatch() const {
+  if (compare_cli_->parsed()) return compare_command(compare_);
+  if (sweep_cli_->parsed()) return sweep_command(sweep_);
+  if (spread_cli_->parsed()) return spread_command(spread_);
+  if (window_cli_->parsed()) return window_command(window_);
+  return std::nullopt;
+}
+
+}  // namespace linkrise::app

@@ -1,0 +1,59 @@
+#include "app/evaluation/case_evaluation.h"
+
+#include <chrono>
+
+#include "app/evaluation/case_run.h"
+#include "netlist/case.h"
+
+namespace linkrise::app {
+
+const char* status_word(CaseEvaluation::Status status) {
+  switch (status) {
+    case CaseEvaluation::Status::Evaluated: return "evaluated";
+    case CaseEvaluation::Status::InputError: return "input error";
+    case CaseEvaluation::Status::SolverFailure: return "solver failure";
+  }
+  return "unknown";
+}
+
+CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file, solver::Waveform* row_store) {
+  auto started = std::chrono::steady_clock::now();
+  CaseEvaluation evaluation;
+  try {
+    netlist::Case spec = netlist::read_case(root, file);
+    CaseRun run(spec, [row_store](solver::Options& options) { options.step_store = row_store; });
+    if (run.solver_failed()) {
+      evaluation.status = CaseEvaluation::Status::SolverFailure;
+      evaluation.message = run.result().message;
+    } else {
+      evaluation.outcome = run.report() ? run.report()->outcome : "completed";
+      evaluation.verdict = run.evaluation().pass ? "pass" : "fail";
+      for (const auto& metric : run.evaluation().metrics.list()) {
+        evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
+      }
+    }
+    if (row_store) *row_store = run.release_steps();
+  } catch (const netlist::InputError& error) {
+    evaluation.status = CaseEvaluation::Status::InputError;
+    evaluation.message = error.what();
+  } catch (const std::exception& error) {
+    // Anything else (an output or model error) is still one failed case, never the end of a library run.
+    evaluation.status = CaseEvaluation::Status::InputError;
+    evaluation.message = std::string("could not evaluate: ") + error.what();
+  }
+  evaluation.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  return evaluation;
+}
+
+CaseEvaluation evaluate_case_file(const std::string& path) {
+  try {
+    return evaluate_case_tree(netlist::load_yaml_file(path), path);
+  } catch (const netlist::InputError& error) {
+    CaseEvaluation evaluation;
+    evaluation.status = CaseEvaluation::Status::InputError;
+    evaluation.message = error.what();
+    return evaluation;
+  }
+}
+
+}  // namespace linkrise::app

@@ -1,0 +1,39 @@
+#pragma once
+// One case evaluated end to end — parse, build, simulate, analyse — reduced to what regression checks and
+// studies compare: status, outcome, verdict and named metrics. Errors are values here, never exceptions, so
+// a broken case in a library run is one failed row, not a crash.
+#include <string>
+#include <vector>
+
+#include "netlist/tree.h"
+#include "solver/waveform.h"
+
+namespace linkrise::app {
+
+/// One named metric of an evaluation, in its unit.
+struct MetricValue {
+  std::string name;
+  double value = 0.0;
+  std::string unit;
+};
+
+struct CaseEvaluation {
+  enum class Status { Evaluated, InputError, SolverFailure };
+  Status status = Status::Evaluated;
+  std::string message;  // the error text when not evaluated
+  std::string outcome;  // sequence outcome ("closed", "timeout"...) or run outcome ("completed")
+  std::string verdict;  // "pass" or "fail"
+  std::vector<MetricValue> metrics;
+  double seconds = 0.0;  // wall time of the evaluation
+};
+
+/// Evaluates a case file.
+CaseEvaluation evaluate_case_file(const std::string& path);
+/// Evaluates a case held as a tree (after overrides); `file` names it in messages. With `row_store`, the run
+/// records its step rows in that storage and gives it back afterwards (a study's worker reuses one).
+CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file,
+                                  solver::Waveform* row_store = nullptr);
+
+const char* status_word(CaseEvaluation::Status status);
+
+}  // namespace linkrise::app

@@ -1,0 +1,16 @@
+#include "app/output/json_fields.h"
+
+#include <cmath>
+
+namespace linkrise::app {
+
+nlohmann::json quantity(double value, const std::string& unit) {
+  nlohmann::json q;
+  q["value"] = std::isfinite(value) ? nlohmann::json(value) : nlohmann::json(nullptr);
+  q["unit"] = unit;
+  return q;
+}
+
+std::string json_text(const nlohmann::json& value) { return value.dump(2) + "\n"; }
+
+}  // namespace linkrise::app

@@ -1,0 +1,146 @@
+#include "app/regression/golden.h"
+
+#include <cmath>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "netlist/parameter_reader.h"
+#include "netlist/tree.h"
+
+namespace linkrise::app {
+
+std::filesystem::path golden_path(const std::filesystem::path& case_file) {
+  std::filesystem::path path = case_file;
+  path.replace_extension(".golden.yaml");
+  return path;
+}
+
+namespace {
+double read_number(const netlist::Tree& node, const std::string& what) {
+  // "not reached" metrics are stored as YAML's NaN.
+  if (node.is_scalar() && (node.text == ".nan" || node.text == ".NaN" || node.text == "nan")) {
+    return std::numeric_limits<double>::quiet_NaN();
+  }
+  return netlist::ParameterReader::read_value(node, netlist::Dimension::none(), netlist::Bound::Any, what);
+}
+}  // namespace
+
+Golden read_golden(const std::filesystem::path& path) {
+  netlist::Tree root = netlist::load_yaml_file(path.string());
+  netlist::ParameterReader top(root, "the golden file");
+  Golden golden;
+  golden.outcome = top.text("outcome").value_or("");
+  golden.verdict = top.text("verdict").value_or("");
+  if (const netlist::Tree* defaults = top.child("defaults")) {
+    netlist::ParameterReader reader(*defaults, "the golden defaults");
+    golden.relative = reader.quantity("relative", netlist::Dimension::none(), netlist::Bound::NonNegative, golden.relative);
+    golden.absolute = reader.quantity("absolute", netlist::Dimension::none(), netlist::Bound::NonNegative, golden.absolute);
+    reader.finish();
+  }
+  if (const netlist::Tree* metrics = top.child("metrics")) {
+    if (!metrics->is_map()) {
+      throw netlist::InputError(metrics->mark, "golden 'metrics' must be a block of '<metric>: {value, unit}' lines");
+    }
+    for (std::size_t i = 0; i < metrics->entries.size(); ++i) {
+      const auto& [name, node] = metrics->entries[i];
+      netlist::ParameterReader reader(node, fmt::format("golden metric '{}'", name));
+      GoldenMetric metric;
+      metric.name = name;
+      const netlist::Tree* value = reader.child("value");
+      if (value == nullptr) reader.fail("value", "is missing", "add 'value: <number in the metric's unit>'");
+      metric.value = read_number(*value, fmt::format("golden metric '{}' value", name));
+      metric.unit = reader.text("unit").value_or("");
+      metric.relative = reader.optional("relative", netlist::Dimension::none(), netlist::Bound::NonNegative);
+      metric.absolute = reader.optional("absolute", netlist::Dimension::none(), netlist::Bound::NonNegative);
+      reader.finish();
+      golden.metrics.push_back(metric);
+    }
+  }
+  top.finish();
+  return golden;
+}
+
+std::string golden_text(const Golden& golden, const std::string& case_name) {
+  std::string text = fmt::format(
+      "# Golden results for {} — written by `linkrise check --update`.\n"
+      "# Tolerances may be edited: a metric passes when |actual - value| <= max(absolute, relative * |value|).\n",
+      case_name);
+  text += fmt::format("outcome: {}\nverdict: {}\n", golden.outcome, golden.verdict);
+  text += fmt::format("defaults: {{relative: {:g}, absolute: {:g}}}\n", golden.relative, golden.absolute);
+  text += "metrics:\n";
+  for (const auto& metric : golden.metrics) {
+    std::string extra;
+    if (metric.relative) extra += fmt::format(", relative: {:g}", *metric.relative);
+    if (metric.absolute) extra += fmt::format(", absolute: {:g}", *metric.absolute);
+    std::string value = std::isfinite(metric.value) ? fmt::format("{:.10g}", metric.value) : std::string(".nan");
+    text += fmt::format("  {}: {{value: {}, unit: \"{}\"{}}}\n", metric.name, value, metric.unit, extra);
+  }
+  return text;
+}
+
+std::vector<Comparison> compare_with_golden(const Golden& golden, const std::string& outcome,
+                                            const std::string& verdict, const std::vector<MetricValue>& metrics) {
+  std::vector<Comparison> rows;
+  if (!golden.outcome.empty()) rows.push_back({"outcome", golden.outcome, outcome, 0.0, 0.0, golden.outcome == outcome});
+  if (!golden.verdict.empty()) rows.push_back({"verdict", golden.verdict, verdict, 0.0, 0.0, golden.verdict == verdict});
+  for (const auto& expected : golden.metrics) {
+    Comparison row;
+    row.item = expected.name;
+    row.expected = fmt::format("{:.6g} {}", expected.value, expected.unit);
+    const MetricValue* actual = nullptr;
+    for (const auto& metric : metrics) {
+      if (metric.name == expected.name) actual = &metric;
+    }
+    if (actual == nullptr) {
+      row.actual = "missing";
+      row.pass = false;
+      rows.push_back(row);
+      continue;
+    }
+    row.actual = fmt::format("{:.6g} {}", actual->value, actual->unit);
+    if (actual->unit != expected.unit) {
+      row.actual += " (unit changed)";
+      row.pass = false;
+      rows.push_back(row);
+      continue;
+    }
+    double relative = expected.relative.value_or(golden.relative);
+    double absolute = expected.absolute.value_or(golden.absolute);
+    row.allowed = std::max(absolute, relative * std::fabs(expected.value));
+    if (std::isnan(expected.value) || std::isnan(actual->value)) {
+      row.pass = std::isnan(expected.value) && std::isnan(actual->value);
+      row.deviation = 0.0;
+    } else {
+      row.deviation = actual->value - expected.value;
+      row.pass = std::fabs(row.deviation) <= row.allowed;
+    }
+    rows.push_back(row);
+  }
+  return rows;
+}
+
+Golden golden_from(const std::string& outcome, const std::string& verdict, const std::vector<MetricValue>& metrics,
+                   const Golden* previous) {
+  Golden golden;
+  golden.outcome = outcome;
+  golden.verdict = verdict;
+  if (previous) {
+    golden.relative = previous->relative;
+    golden.absolute = previous->absolute;
+    for (const auto& old : previous->metrics) {
+      for (const auto& metric : metrics) {
+        if (metric.name != old.name) continue;
+        GoldenMetric updated = old;
+        updated.value = metric.value;
+        updated.unit = metric.unit;
+        golden.metrics.push_back(updated);
+      }
+    }
+    if (!golden.metrics.empty()) return golden;
+  }
+  for (const auto& metric : metrics) golden.metrics.push_back({metric.name, metric.value, metric.unit, {}, {}});
+  return golden;
+}
+
+}  // namespace linkrise::app

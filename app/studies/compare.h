@@ -1,0 +1,55 @@
+#pragma once
+// `linkrise compare CASE.yaml`: the case's variants side by side with the nominal case.
+//
+//   variants:
+//     - name: ptc                        # letters, digits, '_'
+//       note: "PTC thermistor instead of the wire-wound resistor"   # optional
+//       replace:                         # optional: parts swapped for another kind (name and nodes kept)
+//         r_pre: {kind: ptc_thermistor, minimum_resistance: 47 Ohm, ...}
+//       set: {r_pre.thermal.heat_capacity: 5 J/K}   # optional overrides (netlist/overrides.h), after replace
+//
+// Output: a table with one row per metric and one column per variant (nominal first), the outcome and verdict
+// rows, and the best value per row marked '*' (smaller is better except for minimum_* metrics and the stall
+// equilibrium, see larger_is_better; a row where every value ties is not marked). Writes compare.csv and
+// compare.json. Exit 0 when every variant was evaluated, 2 for bad input, 3 when the solver failed somewhere.
+#include <string>
+#include <vector>
+
+#include "app/studies/study_run.h"
+#include "netlist/overrides.h"
+#include "netlist/tree.h"
+
+namespace linkrise::app {
+
+struct Variant {
+  std::string name;
+  std::string note;
+  std::vector<std::pair<std::string, netlist::Tree>> replacements;  // part name -> new block (kind, parameters)
+  std::vector<netlist::Override> overrides;
+  netlist::SourceMark mark;
+};
+
+/// Reads the `variants:` block (empty when absent). Throws InputError for a malformed entry.
+std::vector<Variant> read_variants(const netlist::Tree& root);
+/// The case with a variant applied: replacements first, then overrides.
+netlist::Tree apply_variant(const netlist::Tree& root, const Variant& variant);
+
+struct VariantComparison {
+  std::string case_file;
+  std::string title;
+  std::vector<std::string> names;  // "nominal", then the variants
+  std::vector<std::string> notes;  // the variants' notes, in the same order (empty for the nominal case)
+  StudyResults results;            // one point per name
+  /// Indices of the best entries of a metric column (empty when all tie or fewer than two are reached).
+  std::vector<std::size_t> best(std::size_t column) const;
+};
+
+/// Runs the comparison. Throws InputError for bad input (also a variant whose values are out of range).
+VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs);
+
+std::string comparison_text(const VariantComparison& comparison);
+std::string comparison_csv(const VariantComparison& comparison);
+/// compare.json as text.
+std::string comparison_json(const VariantComparison& comparison);
+
+}  // namespace linkrise::app

@@ -1,0 +1,376 @@
+#include "app/output/text_format.h"
+#include "app/studies/faults.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <optional>
+#include <thread>
+
+#include <fmt/format.h>
+
+#include "analysis/metrics.h"
+#include "app/evaluation/case_run.h"
+#include "app/output/decimation.h"
+#include "app/output/json_fields.h"
+#include "app/studies/faults_json.h"
+#include "app/studies/study_pool.h"
+#include "app/studies/study_run.h"
+#include "netlist/case.h"
+#include "netlist/overrides.h"
+#include "netlist/scenario_spec.h"
+#include "netlist/sequence_spec.h"
+#include "netlist/units.h"
+
+namespace linkrise::app {
+
+bool DetectionMatrix::pass() const {
+  return std::all_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.pass; });
+}
+
+bool DetectionMatrix::solver_failure() const {
+  return std::any_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.actual == "solver_failure"; });
+}
+
+const DetectionRow* DetectionMatrix::find(const std::string& scenario) const {
+  auto found = std::find_if(rows.begin(), rows.end(), [&](const DetectionRow& row) { return row.scenario == scenario; });
+  return found == rows.end() ? nullptr : &*found;
+}
+
+namespace {
+using netlist::Tree;
+
+const std::vector<std::string>& built_in_names() {
+  static const std::vector<std::string> names = {"nominal",
+                                                 "shorted_link",
+                                                 "open_precharge_resistor",
+                                                 "missing_capacitance",
+                                                 "oversize_capacitance",
+                                                 "constant_power_from_start",
+                                                 "reversed_connection"};
+  return names;
+}
+
+struct Planned {
+  DetectionRow row;
+  Tree tree;
+  bool expect_from_stall = false;  // the expectation follows from the run's own stall diagnostic
+  std::optional<netlist::Case> spec;
+};
+
+bool across_link(const netlist::PartSpec& part, const netlist::NodePair& link) {
+  return (part.nodes[0] == link.plus && part.nodes[1] == link.minus) ||
+         (part.nodes[0] == link.minus && part.nodes[1] == link.plus);
+}
+
+std::vector<std::string> names_where(const netlist::Case& spec, const netlist::SequenceSpec& sequence,
+                                     const std::string& kind, bool only_across_link) {
+  std::vector<std::string> names;
+  for (const auto& part : spec.parts) {
+    if (part.kind == kind && (!only_across_link || across_link(part, sequence.link))) names.push_back(part.name);
+  }
+  return names;
+}
+
+std::vector<Planned> plan(const Tree& root, const netlist::Case& nominal, const netlist::SequenceSpec& sequence) {
+  const netlist::SourceMark at = sequence.mark;  // built-in edits point at the sequence block
+  const std::string caught = sequence.rise_fraction ? "no_rise" : "timeout";
+  std::vector<Planned> planned;
+  auto add = [&](const std::string& name, const std::string& description, const std::string& expected) -> Planned& {
+    Planned p;
+    p.row.scenario = name;
+    p.row.description = description;
+    p.row.expected = expected;
+    p.tree = root;
+    planned.push_back(std::move(p));
+    return planned.back();
+  };
+  auto not_applicable = [](Planned& p, const std::string& reason) {
+    p.row.applicable = false;
+    p.row.actual = "not_applicable";
+    p.row.note = reason;
+  };
+
+  add("nominal", "the case as written", sequence.expected_outcome);
+
+  {
+    Planned& p = add("shorted_link", "1 mOhm short across the sensed link nodes", caught);
+    netlist::add_part(p.tree, netlist::unused_part_name(p.tree, "scenario_short"), "resistor", sequence.link.plus,
+                      sequence.link.minus, {{"resistance", "1 mOhm"}}, at);
+  }
+  {
+    Planned& p = add("open_precharge_resistor", fmt::format("{} open (1 GOhm)", sequence.resistor), caught);
+    const netlist::PartSpec* resistor = nominal.find_part(sequence.resistor);
+    if (resistor->kind == "resistor") {
+      netlist::apply_override(p.tree, {sequence.resistor + ".resistance", "1 GOhm", at});
+    } else {
+      netlist::replace_part(p.tree, sequence.resistor, "resistor", {{"resistance", "1 GOhm"}}, at);
+      p.row.note = fmt::format("the {} part is replaced by a plain 1 GOhm resistor", resistor->kind);
+    }
+  }
+  auto capacitors = names_where(nominal, sequence, "capacitor", true);
+  for (auto [name, factor, expected, description] :
+       {std::tuple{"missing_capacitance", 1e-3, std::string("too_fast"), "link capacitance at 0.1 % (stray only)"},
+        std::tuple{"oversize_capacitance", 2.0, std::string("closed"), "link capacitance doubled"}}) {
+    Planned& p = add(name, description, expected);
+    if (capacitors.empty()) {
+      not_applicable(p, "no capacitor is connected across the sensed link nodes");
+      continue;
+    }
+    for (const auto& capacitor : capacitors) netlist::scale_value(p.tree, capacitor + ".capacitance", factor, at);
+  }
+  {
+    auto loads = names_where(nominal, sequence, "constant_power_load", false);
+    Planned& p = add("constant_power_from_start", "constant-power loads draw from 0 V on", "closed");
+    p.expect_from_stall = true;
+    if (loads.empty()) not_applicable(p, "the case has no constant_power_load");
+    for (const auto& load : loads) {
+      netlist::apply_override(p.tree, {load + ".enable_voltage", "0 V", at});
+      netlist::apply_override(p.tree, {load + ".disable_voltage", "0 V", at});
+      netlist::apply_override(p.tree, {load + ".initial", "enabled", at});
+    }
+  }
+  {
+    Planned& p = add("reversed_connection", "load side connected the other way round", caught);
+    if (names_where(nominal, sequence, "diode", true).empty()) {
+      not_applicable(p,
+                     "no diode across the sensed link nodes to clamp a reversed link (add the inverter's body "
+                     "diodes as a diode part)");
+    } else {
+      for (const auto& part : nominal.parts) {
+        if (across_link(part, sequence.link)) netlist::reverse_part(p.tree, part.name, at);
+      }
+    }
+  }
+
+  for (const auto& scenario : netlist::read_scenarios(root, built_in_names())) {
+    auto existing = std::find_if(planned.begin(), planned.end(),
+                                 [&](const Planned& p) { return p.row.scenario == scenario.name; });
+    Planned* p = nullptr;
+    if (existing != planned.end()) {
+      p = &*existing;
+    } else {
+      p = &add(scenario.name, "defined by the case", *scenario.expected);
+    }
+    if (scenario.expected) {
+      p->row.expected = *scenario.expected;
+      p->expect_from_stall = false;
+    }
+    if (!scenario.note.empty()) p->row.note = scenario.note;
+    if (!scenario.overrides.empty()) {
+      netlist::apply_overrides(p->tree, scenario.overrides);
+      if (existing == planned.end() || p->row.description == "defined by the case") {
+        std::string list;
+        for (const auto& change : scenario.overrides) list += (list.empty() ? "" : ", ") + change.path + " = " + change.value;
+        p->row.description = list;
+      }
+    }
+  }
+  return planned;
+}
+
+// The outcome the quadratic predicts for constant-power loads that draw from 0 V on (analysis/stall.h). The link
+// must first climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2: where the loads are still constant-power
+// there (the root lies above their resistive floor) it cannot, and stays near 0 V. Past it, the link settles at the
+// upper root, which must reach the closing level.
+std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const netlist::SequenceSpec& sequence,
+                               std::string& explanation) {
+  explanation = stall.explanation;
+  if (!stall.applicable) return "closed";
+  const std::string caught = sequence.rise_fraction ? "no_rise" : "timeout";
+  if (std::isnan(stall.equilibrium)) return caught;
+  if (stall.lower_root >= stall.resistive_below) {
+    explanation = fmt::format(
+        "stall at the bottom: drawing from 0 V, the loads take more than the path delivers below the lower root "
+        "[Vs − √(Vs² − 4PR)]/2 = {}, so the link cannot climb past it",
+        netlist::format_si(stall.lower_root, "V"));
+    return caught;
+  }
+  if (!stall.stalls) return "closed";
+  if (sequence.rise_fraction && stall.equilibrium < *sequence.rise_fraction * stall.source_voltage) return "no_rise";
+  return "timeout";
+}
+
+void run_row(Planned& p) {
+  DetectionRow& row = p.row;
+  CaseRun run(*p.spec);
+  if (run.solver_failed()) {
+    row.actual = "solver_failure";
+    row.note = run.result().message;
+    row.pass = false;
+    return;
+  }
+  const solver::SequenceReport& report = *run.report();
+  const netlist::SequenceSpec& sequence = report.spec;
+  const analysis::Evaluation& evaluation = run.evaluation();
+  row.actual = report.outcome;
+  row.attempts = report.attempts;
+  row.detection_time = report.first_fault_time;
+  keep_link_trace(row, run.result(), sequence, report.ground);  // for the HTML report's plots
+  if (p.expect_from_stall && evaluation.stall) {
+    row.expected = outcome_from_stall(*evaluation.stall, sequence, row.note);
+  }
+  row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
+  row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
+  for (const auto& limit : evaluation.limits) {
+    if (limit.rated_part != sequence.resistor) continue;  // only the resistor's own ratings
+    bool temperature = limit.metric == sequence.resistor + ".peak_temperature";
+    bool energy = limit.metric == sequence.resistor + ".energy";
+    if (!temperature && !energy) continue;
+    (temperature ? row.temperature_rating : row.energy_rating) = limit.limit;
+    if (limit.judged && !limit.pass) row.resistor_survived = false;
+  }
+  row.pass = row.actual == row.expected && row.resistor_survived;
+}
+
+std::string cell(double value, const std::string& unit) { return analysis::format_metric(value, unit); }
+
+std::string against(double value, double rating, const std::string& unit) {
+  if (std::isnan(value)) return "-";
+  if (std::isnan(rating)) return cell(value, unit);
+  return fmt::format("{} / {}", cell(value, unit), cell(rating, unit));
+}
+}  // namespace
+
+void keep_link_trace(DetectionRow& row, const solver::Result& result, const netlist::SequenceSpec& sequence,
+                     const std::string& ground) {
+  const solver::Waveform& waveform = result.steps.row_count() > 0 ? result.steps : result.samples;
+  const auto column_of = [&](const std::string& node) { return node == ground ? -2 : waveform.column(node); };
+  const int plus = column_of(sequence.link.plus);
+  const int minus = column_of(sequence.link.minus);
+  row.link_time.clear();
+  row.link_voltage.clear();
+  if (plus == -1 || minus == -1 || waveform.row_count() == 0) return;
+  std::vector<double> link(waveform.row_count());
+  for (std::size_t r = 0; r < link.size(); ++r) {
+    link[r] = (plus >= 0 ? waveform.value(r, plus) : 0.0) - (minus >= 0 ? waveform.value(r, minus) : 0.0);
+  }
+  const auto& times = waveform.times();
+  for (const Point& point : decimate_min_max(times, link, times.front(), times.back(), kLinkTraceColumns)) {
+    row.link_time.push_back(point.x);
+    row.link_voltage.push_back(point.y);
+  }
+}
+
+DetectionMatrix detection_matrix(const std::string& case_file, int jobs) {
+  return detection_matrix(netlist::load_yaml_file(case_file), case_file, jobs);
+}
+
+// Extracted for `linkrise window` (app/studies/fault_window.cc), which re-runs the scenarios on a case tree that
+// carries the recommended minimum time and timeout as overrides.
+DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jobs) {
+  netlist::Case nominal = netlist::read_case(root, case_file);
+  auto sequence = netlist::read_sequence(nominal);
+  if (!sequence) {
+    throw netlist::InputError(netlist::SourceMark{case_file, 1, 1},
+                              "`linkrise faults` needs a 'sequence:' block: the matrix judges the BMS checks",
+                              "add a sequence block (see docs/sequence-and-limits.md)");
+  }
+  // Every attempt must fit in the run, or faulted scenarios end 'unfinished' while waiting for a retry. The
+  // controller stops the run after its last fault, so the longer duration costs only the closed scenarios'
+  // settled tail.
+  const double needed = sequence->start + sequence->attempts * (sequence->timeout + 4.0 * sequence->sample_period) +
+                        (sequence->attempts - 1) * sequence->cool_down + 0.2;
+  if (needed > nominal.run.duration) {
+    netlist::apply_override(root, {"run.duration", fmt::format("{:.9g} s", needed), sequence->mark});
+  }
+  std::vector<Planned> planned = plan(root, nominal, *sequence);
+  // Every scenario is validated before any is simulated, so bad input costs no run and writes nothing.
+  for (auto& p : planned) {
+    if (!p.row.applicable) continue;
+    p.spec = netlist::read_case(p.tree, case_file);
+    solver::Circuit check(*p.spec);
+    if (!netlist::read_sequence(*p.spec)) throw std::logic_error("scenario lost its sequence block");
+  }
+  // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread count.
+  for_each_index(planned.size(), jobs, [&](std::size_t i) {
+    if (planned[i].row.applicable) run_row(planned[i]);
+  });
+  DetectionMatrix matrix;
+  matrix.case_file = case_file;
+  matrix.title = nominal.title;
+  matrix.resistor = sequence->resistor;
+  for (auto& p : planned) matrix.rows.push_back(std::move(p.row));
+  return matrix;
+}
+
+std::vector<std::string> failure_reasons(const DetectionRow& row) {
+  std::vector<std::string> reasons;
+  if (!row.applicable || row.pass) return reasons;
+  if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual, row.expected));
+  if (!row.resistor_survived) reasons.push_back("the resistor exceeded its rating before the fault was cleared");
+  return reasons;
+}
+
+std::string matrix_text(const DetectionMatrix& matrix) {
+  std::string out = fmt::format("linkrise faults — {}\n", matrix.title);
+  out += fmt::format("  pre-charge resistor: {} (peak temperature and energy / rating)\n", matrix.resistor);
+  out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", "scenario", "expected", "actual", "n",
+                     "detected", "peak temperature", "energy", "result");
+  for (const auto& row : matrix.rows) {
+    std::string result = !row.applicable ? "n/a" : row.pass ? "pass" : "FAIL";
+    out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected,
+                       row.actual, row.applicable ? std::to_string(row.attempts) : "-",
+                       cell(row.detection_time, "s"), against(row.peak_temperature, row.temperature_rating, "degC"),
+                       against(row.energy, row.energy_rating, "J"), result);
+    if (!row.applicable || !row.note.empty() || (row.applicable && !row.pass)) {
+      std::string why = row.note;
+      for (const auto& reason : failure_reasons(row)) why += (why.empty() ? "" : "; ") + reason;
+      if (!why.empty()) out += fmt::format("      {}\n", why);
+    }
+  }
+  std::size_t failed = std::count_if(matrix.rows.begin(), matrix.rows.end(), [](const DetectionRow& r) { return !r.pass; });
+  out += fmt::format("  matrix    {} ({} of {} rows failed)\n", matrix.pass() ? "PASS" : "FAIL", failed,
+                     matrix.rows.size());
+  return out;
+}
+
+std::string matrix_csv(const DetectionMatrix& matrix) {
+  auto quoted = [](const std::string& text) {
+    std::string out = "\"";
+    for (char c : text) out += c == '"' ? std::string("\"\"") : std::string(1, c);
+    return out + "\"";
+  };
+  auto number = [](double value) { return csv_number(value); };
+  std::string out =
+      "scenario,expected,actual,applicable,attempts,detection_time [s],peak_temperature [degC],"
+      "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
+  for (const auto& row : matrix.rows) {
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected, row.actual,
+                       row.applicable ? "yes" : "no", row.attempts, number(row.detection_time),
+                       number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
+                       number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
+                       quoted(row.note));
+  }
+  return out;
+}
+
+nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
+  nlohmann::json rows = nlohmann::json::array();
+  for (const auto& row : matrix.rows) {
+    rows.push_back({{"scenario", row.scenario},
+                    {"description", row.description},
+                    {"expected", row.expected},
+                    {"actual", row.actual},
+                    {"applicable", row.applicable},
+                    {"attempts", row.attempts},
+                    {"detection_time", quantity(row.detection_time, "s")},
+                    {"peak_temperature", quantity(row.peak_temperature, "degC")},
+                    {"temperature_rating", quantity(row.temperature_rating, "degC")},
+                    {"energy", quantity(row.energy, "J")},
+                    {"energy_rating", quantity(row.energy_rating, "J")},
+                    {"resistor_survived", row.resistor_survived},
+                    {"pass", row.pass},
+                    {"note", row.note}});
+  }
+  return {{"tool", {{"name", "linkrise"}, {"version", LINKRISE_VERSION}}},
+          {"case", {{"title", matrix.title}, {"file", matrix.case_file}}},
+          {"resistor", matrix.resistor},
+          {"verdict", matrix.pass() ? "pass" : "fail"},
+          {"rows", rows}};
+}
+
+std::string matrix_json(const DetectionMatrix& matrix) { return json_text(detection_matrix_json(matrix)); }
+
+}  // namespace linkrise::app

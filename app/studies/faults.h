@@ -1,0 +1,89 @@
+#pragma once
+// `linkrise faults CASE.yaml`: the detection matrix. Runs the nominal case and fault scenarios applied as
+// overrides (netlist/overrides.h) and checks that the BMS sequence catches each fault in time — with the
+// expected outcome, and with the pre-charge resistor inside its temperature and energy ratings.
+//
+// Built-in scenarios (expected outcome in brackets):
+//   nominal                    the case as written [sequence.expected_outcome, default closed]
+//   shorted_link               1 mOhm across the sensed link nodes [no_rise; timeout without a rise check]
+//   open_precharge_resistor    the pre-charge resistor at 1 GOhm [no_rise; timeout without a rise check]
+//   missing_capacitance        capacitors across the link at 0.1 % of their value [too_fast]
+//   oversize_capacitance       capacitors across the link doubled [closed]
+//   constant_power_from_start  constant-power loads draw from 0 V on [from the quadratic equilibrium
+//                              v = [Vs + √(Vs² − 4PR)]/2 of that run: closed above the closing level, otherwise
+//                              timeout, or no_rise when below the rise-check level]
+//   reversed_connection        the parts across the link connected the other way round, so the link's diode
+//                              (inverter body diodes) clamps it [no_rise; timeout without a rise check]
+// A scenario the case lacks the structure for (no capacitor, no constant-power load, no diode across the link)
+// is reported as not applicable with the reason. The case's `scenarios:` add rows or change a built-in's
+// expectation (netlist/scenario_spec.h).
+// Writes faults.json and faults.csv, and with --report an HTML report (app/report/faults_report.h). Exit 0 when every
+// applicable row passes, 1 otherwise, 2 for bad input, 3 when the solver failed in a scenario.
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "netlist/sequence_spec.h"
+#include "netlist/tree.h"
+#include "solver/transient.h"
+
+namespace linkrise::app {
+
+struct DetectionRow {
+  std::string scenario;
+  std::string description;
+  std::string expected;
+  std::string actual;  // the sequence outcome, "not_applicable" or "solver_failure"
+  bool applicable = true;
+  std::string note;  // why not applicable, the solver's message, or the scenario's note
+  int attempts = 0;
+  double detection_time = std::numeric_limits<double>::quiet_NaN();   // s, first fault
+  double peak_temperature = std::numeric_limits<double>::quiet_NaN();  // degC, pre-charge resistor
+  double temperature_rating = std::numeric_limits<double>::quiet_NaN();
+  double energy = std::numeric_limits<double>::quiet_NaN();  // J, pre-charge resistor over the run
+  double energy_rating = std::numeric_limits<double>::quiet_NaN();
+  bool resistor_survived = true;
+  bool pass = true;
+  // For the HTML report only (app/report/faults_report.h): the sensed link voltage over the scenario's run, reduced
+  // to a few samples per drawing column (at most 2400 points), so a matrix stays small in memory.
+  std::vector<double> link_time;     // s
+  std::vector<double> link_voltage;  // V
+};
+
+struct DetectionMatrix {
+  std::string case_file;
+  std::string title;
+  std::string resistor;
+  std::vector<DetectionRow> rows;
+  bool pass() const;
+  bool solver_failure() const;
+  /// The row of a scenario; null when there is none.
+  const DetectionRow* find(const std::string& scenario) const;
+};
+
+/// Drawing columns the kept link-voltage trace is reduced to (decimate_min_max: at most four samples per
+/// column, so a one-step spike survives): enough for a 720 px plot, a few tens of kB per scenario.
+constexpr int kLinkTraceColumns = 600;
+
+/// Keeps the sensed link voltage of a scenario's run in `row` (link_time, link_voltage), decimated to
+/// kLinkTraceColumns columns. `ground` is the case's ground node (it has no waveform column). Leaves the trace
+/// empty when a link node has no waveform column.
+void keep_link_trace(DetectionRow& row, const solver::Result& result, const netlist::SequenceSpec& sequence,
+                     const std::string& ground);
+
+/// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
+/// netlist::InputError for a bad case or scenario.
+DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
+/// The same on a case already held as a tree (e.g. with overrides applied); `case_file` names it in messages.
+DetectionMatrix detection_matrix(netlist::Tree root, const std::string& case_file, int jobs = 1);
+
+/// Why an applicable row failed, one phrase per reason (empty for a passing row).
+std::vector<std::string> failure_reasons(const DetectionRow& row);
+
+std::string matrix_text(const DetectionMatrix& matrix);
+std::string matrix_csv(const DetectionMatrix& matrix);
+/// faults.json as text.
+std::string matrix_json(const DetectionMatrix& matrix);
+
+}  // namespace linkrise::app

@@ -1,0 +1,195 @@
+#include "app/studies/study_run.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "app/studies/study_pool.h"
+#include "solver/waveform.h"
+#include "netlist/input_error.h"
+
+namespace linkrise::app {
+
+int StudyResults::column(const std::string& name) const {
+  for (std::size_t i = 0; i < columns.size(); ++i) {
+    if (columns[i].name == name) return static_cast<int>(i);
+  }
+  return -1;
+}
+
+double StudyResults::value(std::size_t point, const std::string& name) const {
+  int c = column(name);
+  const auto& values = points.at(point).values;
+  if (c < 0 || static_cast<std::size_t>(c) >= values.size()) return std::numeric_limits<double>::quiet_NaN();
+  return values[static_cast<std::size_t>(c)];
+}
+
+long StudyResults::first_input_error() const {
+  for (std::size_t i = 0; i < points.size(); ++i) {
+    if (points[i].status == CaseEvaluation::Status::InputError) return static_cast<long>(i);
+  }
+  return -1;
+}
+
+bool StudyResults::any_solver_failure() const {
+  return std::any_of(points.begin(), points.end(),
+                     [](const PointResult& p) { return p.status == CaseEvaluation::Status::SolverFailure; });
+}
+
+void reject_input_errors(const StudyResults& results, const std::string& file,
+                         const std::function<std::string(std::size_t)>& label_of) {
+  long bad = results.first_input_error();
+  if (bad < 0) return;
+  auto index = static_cast<std::size_t>(bad);
+  throw netlist::InputError(netlist::SourceMark{file, 0, 0},
+                            fmt::format("{} is not a valid case:\n{}", label_of(index), results.points[index].message),
+                            "change the value the study gives it");
+}
+
+netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes) {
+  netlist::Tree tree = base;
+  netlist::apply_overrides(tree, changes);
+  return tree;
+}
+
+namespace {
+std::vector<double> aligned(const std::vector<MetricValue>& metrics, const std::vector<MetricColumn>& columns) {
+  std::vector<double> values(columns.size(), std::numeric_limits<double>::quiet_NaN());
+  // The metric order is the same from run to run of one circuit structure, so try the same position first.
+  for (std::size_t i = 0; i < metrics.size(); ++i) {
+    if (i < columns.size() && columns[i].name == metrics[i].name) {
+      values[i] = metrics[i].value;
+      continue;
+    }
+    for (std::size_t c = 0; c < columns.size(); ++c) {
+      if (columns[c].name == metrics[i].name) {
+        values[c] = metrics[i].value;
+        break;
+      }
+    }
+  }
+  return values;
+}
+}  // namespace
+
+StudyResults run_study(const std::string& file, std::size_t count, const TreeOf& tree_of, int jobs,
+                       const std::string& progress_label, const std::vector<MetricColumn>* fixed_columns) {
+  StudyResults results;
+  results.points.resize(count);
+  std::vector<std::vector<MetricValue>> raw(fixed_columns ? 0 : count);
+  for_each_index(
+      count, jobs,
+      [&](std::size_t i) {
+        // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
+        thread_local solver::Waveform row_store;
+        CaseEvaluation evaluation = evaluate_case_tree(tree_of(i), file, &row_store);
+        PointResult& point = results.points[i];
+        point.status = evaluation.status;
+        point.message = std::move(evaluation.message);
+        point.outcome = std::move(evaluation.outcome);
+        point.verdict = std::move(evaluation.verdict);
+        if (fixed_columns) {
+          point.values = aligned(evaluation.metrics, *fixed_columns);
+        } else {
+          raw[i] = std::move(evaluation.metrics);
+        }
+      },
+      progress_label);
+  if (fixed_columns) {
+    results.columns = *fixed_columns;
+    return results;
+  }
+  for (const auto& metrics : raw) {
+    for (const auto& metric : metrics) {
+      if (results.column(metric.name) < 0) results.columns.push_back(MetricColumn{metric.name, metric.unit});
+    }
+  }
+  for (std::size_t i = 0; i < count; ++i) results.points[i].values = aligned(raw[i], results.columns);
+  return results;
+}
+
+bool larger_is_better(const std::string& metric) {
+  std::size_t dot = metric.rfind('.');
+  std::string last = dot == std::string::npos ? metric : metric.substr(dot + 1);
+  return last.rfind("minimum_", 0) == 0 || last == "stall_equilibrium";
+}
+
+std::vector<std::string> headline_metrics(const netlist::Tree& root, const std::vector<MetricColumn>& columns,
+                                          std::size_t at_least) {
+  std::vector<std::string> names;
+  auto add = [&](const std::string& name) {
+    bool known = std::any_of(columns.begin(), columns.end(), [&](const MetricColumn& c) { return c.name == name; });
+    if (known && std::find(names.begin(), names.end(), name) == names.end()) names.push_back(name);
+  };
+  if (const netlist::Tree* limits = root.find("limits"); limits != nullptr && limits->is_map()) {
+    for (const auto& [name, limit] : limits->entries) add(name);
+  }
+  if (const netlist::Tree* sequence = root.find("sequence"); sequence != nullptr && sequence->is_map()) {
+    add("sequence.precharge_time");
+    if (const netlist::Tree* resistor = sequence->find("resistor"); resistor != nullptr && resistor->is_scalar()) {
+      add(resistor->text + ".peak_temperature");
+      add(resistor->text + ".energy");
+    }
+  }
+  for (const auto& column : columns) {
+    if (names.size() >= at_least) break;
+    add(column.name);
+  }
+  return names;
+}
+
+std::vector<std::string> chosen_metrics(const std::string& list, const std::vector<MetricColumn>& columns,
+                                        const netlist::SourceMark& mark) {
+  std::vector<std::string> names, known;
+  for (const auto& column : columns) known.push_back(column.name);
+  std::size_t start = 0;
+  while (start <= list.size()) {
+    std::size_t comma = list.find(',', start);
+    std::string name = list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    if (!name.empty()) {
+      if (std::find(known.begin(), known.end(), name) == known.end()) {
+        std::string suggestion = netlist::closest_match(name, known);
+        throw netlist::InputError(mark, fmt::format("'{}' is not a metric of this case", name),
+                                  suggestion.empty() ? "see the CSV header for the metric names"
+                                                     : fmt::format("did you mean '{}'?", suggestion));
+      }
+      names.push_back(name);
+    }
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  return names;
+}
+
+std::string text_table(const std::vector<std::string>& header, const std::vector<std::vector<std::string>>& rows,
+                       std::size_t left) {
+  // Display width in code points, so 'µ', '²' and '…' do not push the columns apart.
+  auto width = [](const std::string& text) {
+    std::size_t n = 0;
+    for (unsigned char c : text) n += (c & 0xC0) != 0x80;
+    return n;
+  };
+  std::vector<std::size_t> widths(header.size(), 0);
+  auto measure = [&](const std::vector<std::string>& row) {
+    for (std::size_t i = 0; i < row.size() && i < widths.size(); ++i) widths[i] = std::max(widths[i], width(row[i]));
+  };
+  measure(header);
+  for (const auto& row : rows) measure(row);
+  auto line = [&](const std::vector<std::string>& row) {
+    std::string out = " ";
+    for (std::size_t i = 0; i < widths.size(); ++i) {
+      std::string cell = i < row.size() ? row[i] : "";
+      std::string pad(widths[i] - std::min(widths[i], width(cell)), ' ');
+      out.append(" ").append((i < left ? cell + pad : pad + cell));
+    }
+    while (!out.empty() && out.back() == ' ') out.pop_back();
+    return out + "\n";
+  };
+  std::string out = line(header);
+  for (const auto& row : rows) out += line(row);
+  return out;
+}
+
+}  // namespace linkrise::app

@@ -1,0 +1,192 @@
+#include "app/studies/study_tolerances.h"
+
+#include <cmath>
+#include <optional>
+
+#include <fmt/format.h>
+
+#include "app/studies/random_stream.h"
+#include "app/studies/study_parameters.h"
+#include "netlist/parameter_reader.h"
+
+namespace linkrise::app {
+using netlist::InputError;
+using netlist::Quantity;
+using netlist::Tree;
+
+double Tolerance::draw(double u) const {
+  if (shape == Shape::Normal) return truncated_normal(u, centre, sigma, lower, upper);
+  return lower + u * (upper - lower);
+}
+
+std::string Tolerance::text(double value) const { return quantity_text(value, dimension, absolute_temperature); }
+
+std::string Tolerance::display(double value) const {
+  Quantity quantity;
+  quantity.value = value;
+  quantity.dimension = dimension;
+  quantity.absolute_temperature = absolute_temperature;
+  return display_quantity(quantity);
+}
+
+namespace {
+
+Quantity quantity_of(const Tree& node, const std::string& what) {
+  if (!node.is_scalar()) {
+    throw InputError(node.mark, fmt::format("{} must be a single value", what), "write e.g. '5 %' or '2 ms'");
+  }
+  std::string problem;
+  auto quantity = netlist::parse_quantity(node.text, problem);
+  if (!quantity) {
+    throw InputError(node.mark, fmt::format("{}: '{}' is not a quantity ({})", what, node.text, problem),
+                     "write e.g. '5 %' or '2 ms'");
+  }
+  return *quantity;
+}
+
+// An offset from the nominal value: a fraction of it (dimensionless) or a quantity in the parameter's unit.
+double offset(const Tree& node, const std::string& what, const std::optional<Quantity>& nominal,
+              const std::string& path) {
+  Quantity amount = quantity_of(node, what);
+  if (!nominal) {
+    throw InputError(node.mark, fmt::format("'{}' has no nominal value in the case to take {} from", path, what),
+                     "give the parameter a value in the case, or write 'range: [low, high]'");
+  }
+  bool relative = amount.dimension == netlist::Dimension::none() && !amount.absolute_temperature;
+  bool same_unit = amount.dimension == nominal->dimension && !amount.absolute_temperature;
+  if (relative && !(nominal->dimension == netlist::Dimension::none())) {
+    if (nominal->absolute_temperature) {
+      throw InputError(node.mark, fmt::format("{} of an absolute temperature cannot be a percentage", what),
+                       "give it in K, e.g. 'plus_minus: 10 K', or write 'range: [-20 degC, 45 degC]'");
+    }
+    return amount.value * std::fabs(nominal->value);
+  }
+  if (relative) return amount.value * std::fabs(nominal->value);  // a fraction of a dimensionless value
+  if (!same_unit) {
+    throw InputError(node.mark,
+                     fmt::format("{} '{}' is {}, but '{}' is {}", what, node.text, amount.dimension.describe(), path,
+                                 nominal->dimension.describe()),
+                     "give a percentage of the nominal value or a quantity in the parameter's unit");
+  }
+  if (amount.value < 0.0) throw InputError(node.mark, fmt::format("{} must not be negative", what));
+  return amount.value;
+}
+
+}  // namespace
+
+std::vector<Tolerance> read_tolerances(const Tree& root) {
+  std::vector<Tolerance> tolerances;
+  const Tree* block = root.find("tolerances");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return tolerances;
+  if (!block->is_map()) {
+    throw InputError(block->mark, "'tolerances' must be a block of '<path>: {...}' entries",
+                     "write e.g. 'r_pre.resistance: {plus_minus: 5 %}'");
+  }
+  for (std::size_t i = 0; i < block->entries.size(); ++i) {
+    const auto& [path, entry] = block->entries[i];
+    netlist::SourceMark mark = i < block->key_marks.size() ? block->key_marks[i] : block->mark;
+    if (!entry.is_map()) {
+      throw InputError(entry.mark, fmt::format("tolerance '{}' must be a block", path),
+                       "write e.g. '{plus_minus: 5 %}', '{minus: 10 %, plus: 20 %}' or '{range: [20 %, 90 %]}'");
+    }
+    for (const auto& other : tolerances) {
+      if (other.path == path) throw InputError(mark, fmt::format("tolerance '{}' is given twice", path));
+    }
+    netlist::ParameterReader reader(entry, fmt::format("tolerance '{}'", path));
+    Tolerance t;
+    t.path = path;
+    t.mark = mark;
+    const Tree* plus_minus = reader.child("plus_minus");
+    const Tree* minus = reader.child("minus");
+    const Tree* plus = reader.child("plus");
+    const Tree* range = reader.child("range");
+    const Tree* sigma = reader.child("sigma");
+    std::string distribution = reader.word("distribution", {"uniform", "normal"}, "uniform");
+    reader.finish();
+    int forms = (plus_minus != nullptr) + (minus != nullptr || plus != nullptr) + (range != nullptr);
+    if (forms != 1) {
+      throw InputError(entry.mark, fmt::format("tolerance '{}' needs exactly one of plus_minus, minus/plus or range", path),
+                       "write e.g. '{plus_minus: 5 %}'");
+    }
+
+    // The nominal value, when the case gives one (a range does not need it).
+    std::optional<Quantity> nominal;
+    const Tree* nominal_node = netlist::find_value(root, path, mark);
+    if (nominal_node != nullptr) nominal = value_at(root, path, mark);
+
+    if (range != nullptr) {
+      if (!range->is_list() || range->items.size() != 2) {
+        throw InputError(range->mark, fmt::format("tolerance '{}': range must be a list [low, high]", path),
+                         "write e.g. 'range: [20 %, 90 %]'");
+      }
+      Quantity low = quantity_of(range->items[0], "range start");
+      Quantity high = quantity_of(range->items[1], "range end");
+      if (!(low.dimension == high.dimension) || low.absolute_temperature != high.absolute_temperature) {
+        throw InputError(range->mark, fmt::format("tolerance '{}': the range ends have different units", path),
+                         "give both ends in one unit");
+      }
+      if (nominal && !nominal->bare && !(nominal->dimension == low.dimension)) {
+        throw InputError(range->mark,
+                         fmt::format("tolerance '{}': the range is {}, but the parameter is {}", path,
+                                     low.dimension.describe(), nominal->dimension.describe()));
+      }
+      if (!(low.value < high.value)) {
+        throw InputError(range->mark, fmt::format("tolerance '{}': the range must run from low to high", path));
+      }
+      t.lower = low.value;
+      t.upper = high.value;
+      t.centre = 0.5 * (low.value + high.value);
+      t.dimension = low.dimension;
+      t.absolute_temperature = low.absolute_temperature;
+      t.description = fmt::format("{} … {}", t.display(t.lower), t.display(t.upper));
+    } else {
+      if (!nominal) {
+        throw InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
+                         "give the parameter a value in the case, or write 'range: [low, high]'");
+      }
+      double below = 0.0, above = 0.0;
+      if (plus_minus != nullptr) {
+        below = above = offset(*plus_minus, "plus_minus", nominal, path);
+      } else {
+        if (minus != nullptr) below = offset(*minus, "minus", nominal, path);
+        if (plus != nullptr) above = offset(*plus, "plus", nominal, path);
+      }
+      t.lower = nominal->value - below;
+      t.upper = nominal->value + above;
+      t.centre = nominal->value;
+      t.dimension = nominal->dimension;
+      t.absolute_temperature = nominal->absolute_temperature;
+      if (!(t.lower < t.upper)) {
+        throw InputError(mark, fmt::format("tolerance '{}' spans no range", path), "give a non-zero tolerance");
+      }
+      t.description = fmt::format("{} ({} … {})", t.display(t.centre), t.display(t.lower), t.display(t.upper));
+    }
+    if (distribution == "normal") {
+      t.shape = Tolerance::Shape::Normal;
+      if (sigma == nullptr) {
+        throw InputError(entry.mark, fmt::format("tolerance '{}': a normal distribution needs 'sigma'", path),
+                         "add e.g. 'sigma: 2 %' (of the nominal value) or a quantity such as 'sigma: 1 Ohm'");
+      }
+      std::optional<Quantity> scale = nominal;
+      if (!scale) {
+        Quantity middle;
+        middle.value = t.centre;
+        middle.dimension = t.dimension;
+        middle.absolute_temperature = t.absolute_temperature;
+        scale = middle;
+      }
+      t.sigma = offset(*sigma, "sigma", scale, path);
+      if (!(t.sigma > 0.0)) throw InputError(sigma->mark, fmt::format("tolerance '{}': sigma must be positive", path));
+      t.description += fmt::format(", normal σ = {} truncated", netlist::format_si(t.sigma, t.dimension.symbol()));
+    } else if (sigma != nullptr) {
+      throw InputError(sigma->mark, fmt::format("tolerance '{}': sigma belongs to a normal distribution", path),
+                       "add 'distribution: normal' or remove sigma");
+    } else {
+      t.description += ", uniform";
+    }
+    tolerances.push_back(std::move(t));
+  }
+  return tolerances;
+}
+
+}  // namespace linkrise::app
