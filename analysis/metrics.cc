@@ -8,7 +8,6 @@
 
 #include "analysis/part_metrics.h"
 #include "analysis/trace.h"
-#include "netlist/parameter_reader.h"
 
 namespace linkrise::analysis {
 
@@ -151,21 +150,10 @@ MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& res
 
 std::vector<ConstantPowerLoad> constant_power_loads(const solver::Circuit& circuit) {
   std::vector<ConstantPowerLoad> loads;
-  for (const auto& spec : circuit.spec().parts) {
-    if (spec.kind != "constant_power_load") continue;
-    const netlist::Tree* power = spec.block.find("power");
-    if (power == nullptr) continue;
-    ConstantPowerLoad load;
-    load.name = spec.name;
-    load.power = netlist::ParameterReader::read_value(*power, netlist::Dimension::power_(), netlist::Bound::NonNegative,
-                                                      "load power");
-    // The part's own reader has validated both; 10 V is its documented default (models/switched_load.h).
-    const netlist::Tree* floor = spec.block.find("resistive_below");
-    load.resistive_below = floor == nullptr ? 10.0
-                                            : netlist::ParameterReader::read_value(*floor, netlist::Dimension::voltage(),
-                                                                                   netlist::Bound::Positive,
-                                                                                   "resistive_below");
-    loads.push_back(load);
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    const auto demand = circuit.part(p).load_demand();
+    if (!demand || !demand->constant_power) continue;
+    loads.push_back({circuit.part(p).name(), demand->demand, demand->resistive_below});
   }
   return loads;
 }

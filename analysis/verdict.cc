@@ -14,7 +14,7 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
   }
   evaluation.metrics.append(part_metrics(circuit, result, audit));
 
-  std::vector<netlist::LimitSpec> limits = netlist::read_limits(circuit.spec());
+  std::vector<netlist::LimitSpec> limits = circuit.spec().limits;
   for (auto& rating : rating_limits(circuit)) limits.push_back(std::move(rating));
   evaluation.limits = judge_limits(limits, evaluation.metrics);
 

@@ -21,6 +21,7 @@ class CaseDocument {
   static CaseDocument load(const std::string& path);
   /// Reads case text; `file` names it in messages.
   static CaseDocument parse(const std::string& text, const std::string& file);
+  CaseDocument() = default;
   CaseDocument(Tree root, std::string file) : root_(std::move(root)), file_(std::move(file)) {}
 
   const std::string& file() const { return file_; }

@@ -186,6 +186,11 @@ std::vector<std::vector<double>> ParameterReader::table(const std::string& key,
   return rows;
 }
 
+double ParameterReader::read_text(const std::string& text, const SourceMark& mark, const Dimension& dimension,
+                                  Bound bound, const std::string& what) {
+  return read_value(Tree::scalar(text, mark), dimension, bound, what);
+}
+
 std::optional<ParameterReader> ParameterReader::block(const std::string& key) {
   const Tree* node = child(key);
   if (node == nullptr) return std::nullopt;

@@ -55,6 +55,9 @@ class ParameterReader {
 
   /// Parses one scalar node as a quantity of `dimension` and checks `bound`; `what` names it in messages.
   static double read_value(const Tree& node, const Dimension& dimension, Bound bound, const std::string& what);
+  /// The same for a value given as text (a command-line option), placed at `mark` in messages.
+  static double read_text(const std::string& text, const SourceMark& mark, const Dimension& dimension, Bound bound,
+                          const std::string& what);
 
  private:
   const Tree* block_;

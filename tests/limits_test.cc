@@ -34,7 +34,7 @@ MetricSet metrics() {
 }
 
 std::vector<linkrise::analysis::JudgedLimit> judged(const std::string& lines) {
-  auto limits = linkrise::netlist::read_limits(case_from(kParts + lines));
+  auto limits = case_from(kParts + lines).limits;
   return linkrise::analysis::judge_limits(limits, metrics());
 }
 }  // namespace
@@ -88,11 +88,11 @@ TEST(Limits, WrongUnitIsAnErrorAtTheBound) {
 }
 
 TEST(Limits, MalformedEntriesAreRejectedWhileReading) {
-  auto neither = input_error([] { linkrise::netlist::read_limits(case_from(kParts + "  r1.energy: {margin: 5 %}\n")); });
+  auto neither = input_error([] { case_from(kParts + "  r1.energy: {margin: 5 %}\n").limits; });
   EXPECT_TRUE(contains(neither.what(), "neither 'min' nor 'max'")) << neither.what();
-  auto typo = input_error([] { linkrise::netlist::read_limits(case_from(kParts + "  r1.energy: {maxi: 5 J}\n")); });
+  auto typo = input_error([] { case_from(kParts + "  r1.energy: {maxi: 5 J}\n").limits; });
   EXPECT_TRUE(contains(typo.what(), "did you mean 'max'?")) << typo.what();
-  auto order = input_error([] { linkrise::netlist::read_limits(case_from(kParts + "  r1.energy: {min: 5 J, max: 1 J}\n")); });
+  auto order = input_error([] { case_from(kParts + "  r1.energy: {min: 5 J, max: 1 J}\n").limits; });
   EXPECT_TRUE(contains(order.what(), "min must lie below max")) << order.what();
 }
 

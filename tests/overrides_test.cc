@@ -46,24 +46,24 @@ TEST(Overrides, SetsAPartParameterAmbientAndASequenceSetting) {
                                             {"sequence.close_when.ratio", "90 %", kWhere},
                                             {"run.duration", "2 s", kWhere}});
   auto spec = validated(root);
-  EXPECT_EQ(spec.find_part("r_pre")->block.find("resistance")->text, "47 Ohm");
+  EXPECT_EQ(spec.find_part("r_pre")->parameters().text("resistance").value_or(""), "47 Ohm");
   EXPECT_DOUBLE_EQ(spec.ambient, 333.15);
   EXPECT_DOUBLE_EQ(spec.run.duration, 2.0);
-  auto sequence = linkrise::netlist::read_sequence(spec);
+  auto sequence = spec.sequence;
   EXPECT_DOUBLE_EQ(sequence->timeout, 0.5);
   EXPECT_DOUBLE_EQ(sequence->rule_value, 0.9);
   // The override carries its own position.
-  EXPECT_EQ(spec.find_part("r_pre")->block.find("resistance")->mark.to_string(), "scenario.yaml:7:5");
+  EXPECT_EQ(spec.find_part("r_pre")->parameters().mark("resistance").to_string(), "scenario.yaml:7:5");
 }
 
 TEST(Overrides, AddsAParameterLeftAtItsDefaultAndABlockValue) {
   Tree root = tree();
   linkrise::netlist::apply_override(root, {"k_main.closing_delay", "20 ms", kWhere});
   linkrise::netlist::apply_override(root, {"sequence.rise_check", "{above: 20 %, by: 30 ms}", kWhere});
-  auto sequence = linkrise::netlist::read_sequence(validated(root));
+  auto sequence = validated(root).sequence;
   ASSERT_TRUE(sequence->rise_fraction.has_value());
   EXPECT_DOUBLE_EQ(*sequence->rise_fraction, 0.2);
-  EXPECT_EQ(validated(root).find_part("k_main")->block.find("closing_delay")->text, "20 ms");
+  EXPECT_EQ(validated(root).find_part("k_main")->parameters().text("closing_delay").value_or(""), "20 ms");
 }
 
 TEST(Overrides, UnknownPartGetsADidYouMeanAtTheOverride) {
@@ -110,7 +110,7 @@ TEST(Overrides, StructuralEditsAddReplaceAndReverseParts) {
   linkrise::netlist::reverse_part(root, "c1", kWhere);
   auto spec = validated(root);
   ASSERT_NE(spec.find_part("short"), nullptr);
-  EXPECT_EQ(spec.find_part("r_pre")->block.find("resistance")->text, "1 GOhm");
+  EXPECT_EQ(spec.find_part("r_pre")->parameters().text("resistance").value_or(""), "1 GOhm");
   EXPECT_EQ(spec.find_part("c1")->nodes[0], "gnd");
   EXPECT_EQ(spec.find_part("c1")->nodes[1], "link");
   auto taken = input_error([&] { linkrise::netlist::add_part(root, "c1", "resistor", "a", "b", {}, kWhere); });

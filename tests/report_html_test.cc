@@ -276,7 +276,7 @@ TEST(RunReport, SequenceCaseCarriesTheAnalysersVerdict) {
   const netlist::Case spec = netlist::load_case(LINKRISE_SOURCE_DIR "/cases/sequence_clean_close.yaml");
   const solver::Circuit circuit(spec);
   solver::Options options = solver::options_from(circuit);
-  const std::optional<netlist::SequenceSpec> sequence = netlist::read_sequence(spec);
+  const std::optional<netlist::SequenceSpec> sequence = spec.sequence;
   ASSERT_TRUE(sequence.has_value());
   solver::SequenceController controller(circuit, *sequence);
   solver::attach(controller, options);

@@ -29,7 +29,7 @@ constexpr double kTime = 1e-12;  // s
 struct SequenceRun {
   explicit SequenceRun(const std::string& yaml, double rtol = 1e-10, double atol = 1e-10) : sim(yaml) {
     sim.tight(rtol, atol);
-    auto spec = linkrise::netlist::read_sequence(sim.circuit.spec());
+    auto spec = sim.circuit.spec().sequence;
     EXPECT_TRUE(spec.has_value());
     controller.emplace(sim.circuit, *spec);
     linkrise::solver::attach(*controller, sim.options);

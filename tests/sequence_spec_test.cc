@@ -38,13 +38,12 @@ const std::string kGood =
     "  timeout: 300 ms\n";                // 18
 
 std::string error_of(const std::string& yaml) {
-  auto spec = case_from(yaml);
-  return input_error([&] { linkrise::netlist::read_sequence(spec); }).what();
+  return input_error([&] { linkrise::solver::Circuit circuit(case_from(yaml)); }).what();
 }
 }  // namespace
 
 TEST(SequenceSpec, ReadsAValidBlockWithDefaults) {
-  auto sequence = linkrise::netlist::read_sequence(case_from(with_sequence(kGood)));
+  auto sequence = case_from(with_sequence(kGood)).sequence;
   ASSERT_TRUE(sequence.has_value());
   EXPECT_EQ(sequence->main, "k_main");
   EXPECT_EQ(sequence->rule, linkrise::netlist::ClosingRule::Ratio);
@@ -53,13 +52,13 @@ TEST(SequenceSpec, ReadsAValidBlockWithDefaults) {
   EXPECT_EQ(sequence->attempts, 1);
   EXPECT_EQ(sequence->expected_outcome, "closed");
   EXPECT_FALSE(sequence->rise_fraction.has_value());
-  EXPECT_FALSE(linkrise::netlist::read_sequence(case_from(kParts)).has_value());
+  EXPECT_FALSE(case_from(kParts).sequence.has_value());
 }
 
 TEST(SequenceSpec, DifferenceRuleAndRate) {
   std::string text = kGood;
   text.replace(text.find("{ratio: 95 %}"), 13, "{difference: 15 V, max_rate: 2 kV/s}");
-  auto sequence = linkrise::netlist::read_sequence(case_from(with_sequence(text)));
+  auto sequence = case_from(with_sequence(text)).sequence;
   ASSERT_TRUE(sequence.has_value());
   EXPECT_DOUBLE_EQ(sequence->closing_level(400.0), 385.0);
   ASSERT_TRUE(sequence->max_rate.has_value());
@@ -75,12 +74,13 @@ TEST(SequenceSpec, MisspeltKeyIsNamedWithItsPositionAndASuggestion) {
   EXPECT_TRUE(contains(message, "did you mean 'timeout'?")) << message;
 }
 
+// Checked when the circuit is built: only the part models know that a resistor cannot switch.
 TEST(SequenceSpec, MainMustBeAContactor) {
   std::string text = kGood;
   text.replace(text.find("main: k_main"), 12, "main: r_pre");
   std::string message = error_of(with_sequence(text));
   EXPECT_TRUE(contains(message, "test.yaml:12:9")) << message;
-  EXPECT_TRUE(contains(message, "is a resistor, not a contactor")) << message;
+  EXPECT_TRUE(contains(message, "'r_pre', a resistive part (resistor), which cannot switch")) << message;
 }
 
 TEST(SequenceSpec, UnknownNodeGetsADidYouMean) {

@@ -44,12 +44,10 @@ TEST(StudySweep, PointsEqualIndividualRunsAndTheClosedForm) {
                                           parse_variation("link.capacitance=0.8mF,1.2mF", mark)};
   Sweep sweep = run_sweep(file, {}, parameters, 2);
   ASSERT_EQ(sweep.points.size(), 6u);
-  netlist::Tree base = netlist::load_yaml_file(file);
+  const netlist::CaseDocument base = netlist::CaseDocument::load(file);
   const double resistances[] = {60.0, 90.0, 120.0}, capacitances[] = {0.8e-3, 1.2e-3};
   for (std::size_t i = 0; i < 6; ++i) {
-    netlist::Tree tree = base;
-    netlist::apply_overrides(tree, sweep.overrides(i));
-    CaseEvaluation alone = evaluate_case_tree(tree, file);
+    CaseEvaluation alone = evaluate_case_document(base.with(sweep.overrides(i)));
     ASSERT_EQ(alone.metrics.size(), sweep.results.columns.size());
     for (std::size_t c = 0; c < alone.metrics.size(); ++c) {
       double a = alone.metrics[c].value, b = sweep.results.points[i].values[c];

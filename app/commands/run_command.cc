@@ -25,9 +25,8 @@ namespace {
 void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   if (arguments.sample) {
     netlist::SourceMark mark{"option --sample", 0, 0};
-    netlist::Tree node = netlist::Tree::scalar(*arguments.sample, mark);
-    run.sample = netlist::ParameterReader::read_value(node, netlist::Dimension::time(), netlist::Bound::Any,
-                                                      "option --sample");
+    run.sample = netlist::ParameterReader::read_text(*arguments.sample, mark, netlist::Dimension::time(),
+                                                     netlist::Bound::Any, "option --sample");
     run.marks.sample = mark;
   }
   if (arguments.relative_tolerance) {

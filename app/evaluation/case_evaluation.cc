@@ -16,11 +16,11 @@ const char* status_word(CaseEvaluation::Status status) {
   return "unknown";
 }
 
-CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file, solver::Waveform* row_store) {
+CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, solver::Waveform* row_store) {
   auto started = std::chrono::steady_clock::now();
   CaseEvaluation evaluation;
   try {
-    netlist::Case spec = netlist::read_case(root, file);
+    netlist::Case spec = document.validate();
     CaseRun run(spec, [row_store](solver::Options& options) { options.step_store = row_store; });
     if (run.solver_failed()) {
       evaluation.status = CaseEvaluation::Status::SolverFailure;
@@ -47,7 +47,7 @@ CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& 
 
 CaseEvaluation evaluate_case_file(const std::string& path) {
   try {
-    return evaluate_case_tree(netlist::load_yaml_file(path), path);
+    return evaluate_case_document(netlist::CaseDocument::load(path));
   } catch (const netlist::InputError& error) {
     CaseEvaluation evaluation;
     evaluation.status = CaseEvaluation::Status::InputError;

@@ -5,7 +5,7 @@
 #include <string>
 #include <vector>
 
-#include "netlist/tree.h"
+#include "netlist/case_document.h"
 #include "solver/waveform.h"
 
 namespace linkrise::app {
@@ -29,10 +29,9 @@ struct CaseEvaluation {
 
 /// Evaluates a case file.
 CaseEvaluation evaluate_case_file(const std::string& path);
-/// Evaluates a case held as a tree (after overrides); `file` names it in messages. With `row_store`, the run
-/// records its step rows in that storage and gives it back afterwards (a study's worker reuses one).
-CaseEvaluation evaluate_case_tree(const netlist::Tree& root, const std::string& file,
-                                  solver::Waveform* row_store = nullptr);
+/// Evaluates a case document (after its overrides). With `row_store`, the run records its step rows in that
+/// storage and gives it back afterwards (a study's worker reuses one).
+CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, solver::Waveform* row_store = nullptr);
 
 const char* status_word(CaseEvaluation::Status status);
 

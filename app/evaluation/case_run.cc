@@ -1,13 +1,12 @@
 #include "app/evaluation/case_run.h"
 
-#include "netlist/sequence_spec.h"
 
 namespace linkrise::app {
 
 CaseRun::CaseRun(const netlist::Case& spec, const std::function<void(solver::Options&)>& adjust)
     : circuit_(spec), options_(solver::options_from(circuit_)) {
   if (adjust) adjust(options_);
-  if (auto sequence = netlist::read_sequence(circuit_.spec())) {
+  if (const auto& sequence = circuit_.spec().sequence) {
     solver::attach(controller_.emplace(circuit_, *sequence), options_);
   }
   result_ = solver::simulate(circuit_, options_);

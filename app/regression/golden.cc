@@ -5,60 +5,12 @@
 
 #include <fmt/format.h>
 
-#include "netlist/parameter_reader.h"
-#include "netlist/tree.h"
-
 namespace linkrise::app {
 
 std::filesystem::path golden_path(const std::filesystem::path& case_file) {
   std::filesystem::path path = case_file;
   path.replace_extension(".golden.yaml");
   return path;
-}
-
-namespace {
-double read_number(const netlist::Tree& node, const std::string& what) {
-  // "not reached" metrics are stored as YAML's NaN.
-  if (node.is_scalar() && (node.text == ".nan" || node.text == ".NaN" || node.text == "nan")) {
-    return std::numeric_limits<double>::quiet_NaN();
-  }
-  return netlist::ParameterReader::read_value(node, netlist::Dimension::none(), netlist::Bound::Any, what);
-}
-}  // namespace
-
-Golden read_golden(const std::filesystem::path& path) {
-  netlist::Tree root = netlist::load_yaml_file(path.string());
-  netlist::ParameterReader top(root, "the golden file");
-  Golden golden;
-  golden.outcome = top.text("outcome").value_or("");
-  golden.verdict = top.text("verdict").value_or("");
-  if (const netlist::Tree* defaults = top.child("defaults")) {
-    netlist::ParameterReader reader(*defaults, "the golden defaults");
-    golden.relative = reader.quantity("relative", netlist::Dimension::none(), netlist::Bound::NonNegative, golden.relative);
-    golden.absolute = reader.quantity("absolute", netlist::Dimension::none(), netlist::Bound::NonNegative, golden.absolute);
-    reader.finish();
-  }
-  if (const netlist::Tree* metrics = top.child("metrics")) {
-    if (!metrics->is_map()) {
-      throw netlist::InputError(metrics->mark, "golden 'metrics' must be a block of '<metric>: {value, unit}' lines");
-    }
-    for (std::size_t i = 0; i < metrics->entries.size(); ++i) {
-      const auto& [name, node] = metrics->entries[i];
-      netlist::ParameterReader reader(node, fmt::format("golden metric '{}'", name));
-      GoldenMetric metric;
-      metric.name = name;
-      const netlist::Tree* value = reader.child("value");
-      if (value == nullptr) reader.fail("value", "is missing", "add 'value: <number in the metric's unit>'");
-      metric.value = read_number(*value, fmt::format("golden metric '{}' value", name));
-      metric.unit = reader.text("unit").value_or("");
-      metric.relative = reader.optional("relative", netlist::Dimension::none(), netlist::Bound::NonNegative);
-      metric.absolute = reader.optional("absolute", netlist::Dimension::none(), netlist::Bound::NonNegative);
-      reader.finish();
-      golden.metrics.push_back(metric);
-    }
-  }
-  top.finish();
-  return golden;
 }
 
 std::string golden_text(const Golden& golden, const std::string& case_name) {

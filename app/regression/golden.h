@@ -1,45 +1,22 @@
 #pragma once
-// Golden results of a stored case: the expected outcome, verdict and chosen metrics with tolerances.
-// They live beside the case as <case>.golden.yaml, written by `linkrise check --update` and editable by hand
-// (tolerances especially):
-//
-//   outcome: closed
-//   verdict: pass
-//   defaults: {relative: 1e-4, absolute: 1e-9}   # optional; these are the built-in defaults
-//   metrics:
-//     time_to_threshold: {value: 0.21073, unit: s}
-//     k_main.peak_current: {value: 274.31, unit: A, relative: 1e-3}
-//
-// A metric passes when |actual - expected| <= max(absolute, relative * |expected|), in the metric's unit.
+// Golden results of a stored case (read by netlist/golden_spec.h): where they live, how they are written, how an
+// evaluation compares with them.
 #include <filesystem>
 #include <optional>
 #include <string>
 #include <vector>
 
 #include "app/evaluation/case_evaluation.h"
+#include "netlist/golden_spec.h"
 
 namespace linkrise::app {
 
-struct GoldenMetric {
-  std::string name;
-  double value = 0.0;
-  std::string unit;
-  std::optional<double> relative;  // overrides the defaults for this metric
-  std::optional<double> absolute;
-};
-
-struct Golden {
-  std::string outcome;
-  std::string verdict;
-  double relative = 1e-4;
-  double absolute = 1e-9;
-  std::vector<GoldenMetric> metrics;
-};
+using netlist::Golden;
+using netlist::GoldenMetric;
+using netlist::read_golden;
 
 /// The golden file that belongs to a case file.
 std::filesystem::path golden_path(const std::filesystem::path& case_file);
-/// Reads a golden file; throws netlist::InputError with file:line:column on a malformed one.
-Golden read_golden(const std::filesystem::path& path);
 /// Writes golden results as YAML text (deterministic layout, values with 10 significant digits).
 std::string golden_text(const Golden& golden, const std::string& case_name);
 

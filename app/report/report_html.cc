@@ -204,29 +204,6 @@ std::string HtmlReport::html() const {
 
 namespace {
 
-bool is_source_kind(const std::string& kind) { return kind == "cell_string" || kind == "dc_source"; }
-
-// A sequence entry naming two nodes of the circuit: [plus, minus].
-std::optional<NodePair> node_pair(const netlist::Tree& value, const solver::Circuit& circuit) {
-  if (!value.is_list() || value.items.size() != 2) return std::nullopt;
-  const auto known = [&](const netlist::Tree& item) {
-    return item.is_scalar() && (circuit.has_node(item.text) || item.text == circuit.spec().ground);
-  };
-  if (!known(value.items[0]) || !known(value.items[1])) return std::nullopt;
-  return NodePair{value.items[0].text, value.items[1].text};
-}
-
-void search_sequence(const netlist::Tree& tree, const solver::Circuit& circuit, int depth, SensedVoltages& found) {
-  if (!tree.is_map() || depth > 2) return;
-  for (const auto& [key, value] : tree.entries) {
-    if (auto pair = node_pair(value, circuit)) {
-      if (!found.pack && key.find("pack") != std::string::npos) found.pack = pair;
-      if (!found.link && key.find("link") != std::string::npos) found.link = pair;
-    }
-    search_sequence(value, circuit, depth + 1, found);
-  }
-}
-
 // Voltage between two nodes, sample by sample; ground (or an empty name) is 0 V.
 std::vector<double> pair_voltage(const solver::Circuit& circuit, const solver::Waveform& waveform,
                                  const NodePair& pair) {
@@ -260,19 +237,20 @@ SensedVoltages sensed_voltages(const solver::Circuit& circuit, const SequenceHin
   SensedVoltages sensed;
   sensed.pack = hints.pack;
   sensed.link = hints.link;
-  if (const netlist::Tree* sequence = circuit.spec().section("sequence")) {
-    search_sequence(*sequence, circuit, 0, sensed);
+  if (const auto& sequence = circuit.spec().sequence) {
+    if (!sensed.pack) sensed.pack = sequence->pack;
+    if (!sensed.link) sensed.link = sequence->link;
   }
   std::vector<std::string> chosen;
   if (sensed.pack || sensed.link) chosen.push_back("the sequence block's sensed nodes");
   bool from_parts = false;
   for (int p = 0; p < circuit.part_count(); ++p) {
     const auto& part = circuit.part(p);
-    if (!sensed.pack && is_source_kind(part.kind())) {
+    if (!sensed.pack && part.role() == models::Role::Source) {
       sensed.pack = NodePair{part.nodes()[0], part.nodes()[1]};
       from_parts = true;
     }
-    if (!sensed.link && part.kind() == "capacitor") {
+    if (!sensed.link && part.role() == models::Role::Storage) {
       sensed.link = NodePair{part.nodes()[0], part.nodes()[1]};
       from_parts = true;
     }
@@ -311,7 +289,7 @@ ContactorRoles contactor_roles(const solver::Circuit& circuit, const solver::Wav
   };
   std::vector<Contactor> contactors;
   for (int p = 0; p < circuit.part_count(); ++p) {
-    if (circuit.part(p).kind() != "contactor") continue;
+    if (circuit.part(p).role() != models::Role::Switch) continue;
     const std::string& name = circuit.part(p).name();
     const int current = waveform.column(name + ".current");
     const int closed = waveform.column(name + ".closed");
@@ -418,23 +396,19 @@ PlotSpec time_plot(const std::string& title, const std::string& y_label, const s
   return plot;
 }
 
-// Resistive parts that take the pre-charge heat: parts with a heat channel that are not contactors, cables,
-// sources, capacitors, inductors, diodes or loads, dissipating at least 5 % of the largest such heat (so a
-// bleed resistor across the link does not crowd the plot).
+// Resistive parts that take the pre-charge heat (role resistive: resistors and thermistors, not contactors,
+// cables, sources or loads), dissipating at least 5 % of the largest such heat (so a bleed resistor across the
+// link does not crowd the plot).
 std::vector<int> heated_resistors(const solver::Circuit& circuit, const analysis::EnergyAudit& audit,
                                   const SequenceHints& hints) {
   if (!hints.precharge_resistor.empty() && circuit.find_part(hints.precharge_resistor) >= 0) {
     return {circuit.find_part(hints.precharge_resistor)};
   }
-  static const std::vector<std::string> not_resistors = {
-      "contactor", "cable", "cell_string", "dc_source", "capacitor", "inductor",
-      "diode", "constant_power_load", "constant_current_load"};
   std::vector<int> parts;
   double largest = 0.0;
   for (int p = 0; p < circuit.part_count(); ++p) {
     const auto& part = circuit.part(p);
-    if (!part.power_channels().heat) continue;
-    if (std::find(not_resistors.begin(), not_resistors.end(), part.kind()) != not_resistors.end()) continue;
+    if (!part.power_channels().heat || part.role() != models::Role::Resistive) continue;
     parts.push_back(p);
     largest = std::max(largest, audit.parts[p].dissipated);
   }

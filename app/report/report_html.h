@@ -18,6 +18,7 @@
 #include "analysis/verdict.h"
 #include "app/report/svg_plot.h"
 #include "netlist/case.h"
+#include "netlist/sequence_spec.h"
 #include "solver/circuit.h"
 #include "solver/sequence_report.h"
 #include "solver/transient.h"
@@ -111,10 +112,7 @@ struct Assessment {
 };
 
 /// A voltage between two nodes; an empty `minus` (or the ground node) is ground.
-struct NodePair {
-  std::string plus;
-  std::string minus;
-};
+using NodePair = netlist::NodePair;
 
 /// Where pack and link voltage are read for the plots, and why those nodes.
 struct SensedVoltages {
@@ -139,9 +137,7 @@ struct SequenceHints {
 };
 
 /// Pack and link voltage for the plots: the hints' pairs first; else, with a `sequence:` block, its sensed
-/// node pairs (an entry up to two levels deep whose key contains "pack" or "link" and whose value lists two
-/// node names of the circuit); else the first source part (cell_string, dc_source) gives the pack and the
-/// first capacitor the link.
+/// node pairs; else the first part of role source gives the pack and the first of role storage the link.
 SensedVoltages sensed_voltages(const solver::Circuit& circuit, const SequenceHints& hints = {});
 
 /// The contactors that matter for the current plots and the instant of main closure.

@@ -9,98 +9,10 @@
 #include "analysis/metrics.h"
 #include "app/output/json_fields.h"
 #include "app/studies/study_parameters.h"
-#include "netlist/case.h"
-#include "netlist/parameter_reader.h"
+#include "netlist/case_document.h"
 
 namespace linkrise::app {
 using netlist::InputError;
-using netlist::Tree;
-
-namespace {
-bool valid_name(const std::string& name) {
-  return !name.empty() && std::all_of(name.begin(), name.end(), [](char c) {
-    return std::isalnum(static_cast<unsigned char>(c)) || c == '_';
-  });
-}
-}  // namespace
-
-std::vector<Variant> read_variants(const Tree& root) {
-  std::vector<Variant> variants;
-  const Tree* block = root.find("variants");
-  if (block == nullptr || block->kind == Tree::Kind::Null) return variants;
-  if (!block->is_list()) {
-    throw InputError(block->mark, "'variants' must be a list, each entry starting with '- name:'",
-                     "write e.g. '- {name: r_56, set: {r_pre.resistance: 56 Ohm}}'");
-  }
-  for (const Tree& item : block->items) {
-    if (!item.is_map()) throw InputError(item.mark, "a variant must be a block with 'name' and 'set' or 'replace'");
-    netlist::ParameterReader reader(item, "variant");
-    Variant variant;
-    variant.mark = item.mark;
-    auto name = reader.text("name");
-    if (!name || !valid_name(*name) || *name == "nominal") {
-      throw InputError(name ? reader.mark("name") : item.mark,
-                       name ? fmt::format("variant name '{}' must be letters, digits and '_' (and not 'nominal')", *name)
-                            : "a variant needs a 'name'",
-                       "write e.g. 'name: ptc_thermistor'");
-    }
-    variant.name = *name;
-    for (const auto& other : variants) {
-      if (other.name == variant.name) {
-        throw InputError(reader.mark("name"), fmt::format("variant '{}' is defined twice", variant.name));
-      }
-    }
-    variant.note = reader.text("note").value_or("");
-    if (const Tree* replace = reader.child("replace")) {
-      if (!replace->is_map()) {
-        throw InputError(replace->mark, "'replace' must be a block of '<part>: {kind: ..., <parameters>}' entries");
-      }
-      for (std::size_t i = 0; i < replace->entries.size(); ++i) {
-        const auto& [part, replacement] = replace->entries[i];
-        if (!replacement.is_map() || replacement.find("kind") == nullptr) {
-          throw InputError(replacement.mark, fmt::format("the replacement of '{}' must be a block with 'kind'", part),
-                           "write e.g. 'r_pre: {kind: ntc_thermistor, resistance_at_25degC: 60 Ohm, b_value: 2800 K}'");
-        }
-        if (replacement.find("name") != nullptr || replacement.find("nodes") != nullptr) {
-          throw InputError(replacement.mark, fmt::format("the replacement of '{}' keeps its name and nodes", part),
-                           "remove 'name' and 'nodes' from the replacement");
-        }
-        variant.replacements.emplace_back(part, replacement);
-      }
-    }
-    if (const Tree* set = reader.child("set")) {
-      variant.overrides = netlist::read_set_block(*set, "a variant's", "write e.g. 'set: {r_pre.resistance: 56 Ohm}'");
-    }
-    reader.finish();
-    if (variant.replacements.empty() && variant.overrides.empty()) {
-      throw InputError(item.mark, fmt::format("variant '{}' changes nothing", variant.name),
-                       "add 'set:' overrides or a 'replace:' block");
-    }
-    variants.push_back(std::move(variant));
-  }
-  return variants;
-}
-
-Tree apply_variant(const Tree& root, const Variant& variant) {
-  Tree tree = root;
-  // A swap of technology changes the part's kind and its whole parameter set, which a path override cannot
-  // express (the old kind's parameters would remain); only name and nodes carry over.
-  for (const auto& [part, replacement] : variant.replacements) {
-    Tree& block = netlist::part_block(tree, part, variant.mark);
-    Tree fresh = replacement;
-    Tree name = *block.find("name");
-    const Tree* nodes = block.find("nodes");
-    fresh.entries.insert(fresh.entries.begin(), {"name", name});
-    fresh.key_marks.insert(fresh.key_marks.begin(), name.mark);
-    if (nodes != nullptr) {
-      fresh.entries.insert(fresh.entries.begin() + 1, {"nodes", *nodes});
-      fresh.key_marks.insert(fresh.key_marks.begin() + 1, nodes->mark);
-    }
-    block = std::move(fresh);
-  }
-  netlist::apply_overrides(tree, variant.overrides);
-  return tree;
-}
 
 std::vector<std::size_t> VariantComparison::best(std::size_t column) const {
   const std::string& name = results.columns.at(column).name;
@@ -127,24 +39,25 @@ std::vector<std::size_t> VariantComparison::best(std::size_t column) const {
 }
 
 VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs) {
-  Tree root = with_overrides(netlist::load_yaml_file(case_file), settings);
-  std::vector<Variant> variants = read_variants(root);
+  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
+  const netlist::Case nominal = base.validate();
+  const std::vector<netlist::VariantSpec>& variants = nominal.variants;
   if (variants.empty()) {
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "the case has no 'variants:' to compare",
                      "add e.g. 'variants: [{name: r_56, set: {r_pre.resistance: 56 Ohm}}]'");
   }
-  std::vector<Tree> trees{root};
-  for (const auto& variant : variants) trees.push_back(apply_variant(root, variant));
+  std::vector<netlist::CaseDocument> documents{base};
+  for (const auto& variant : variants) documents.push_back(base.with_variant(variant));
   VariantComparison comparison;
   comparison.case_file = case_file;
-  comparison.title = netlist::read_case(root, case_file).title;
+  comparison.title = nominal.title;
   comparison.names.push_back("nominal");
   comparison.notes.push_back("the case as written");
   for (const auto& variant : variants) {
     comparison.names.push_back(variant.name);
     comparison.notes.push_back(variant.note);
   }
-  comparison.results = run_study(case_file, trees.size(), [&](std::size_t i) { return trees[i]; }, jobs);
+  comparison.results = run_study(documents.size(), [&](std::size_t i) { return documents[i]; }, jobs);
   reject_input_errors(comparison.results, case_file,
                       [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
   return comparison;

@@ -17,22 +17,8 @@
 
 #include "app/studies/study_run.h"
 #include "netlist/overrides.h"
-#include "netlist/tree.h"
 
 namespace linkrise::app {
-
-struct Variant {
-  std::string name;
-  std::string note;
-  std::vector<std::pair<std::string, netlist::Tree>> replacements;  // part name -> new block (kind, parameters)
-  std::vector<netlist::Override> overrides;
-  netlist::SourceMark mark;
-};
-
-/// Reads the `variants:` block (empty when absent). Throws InputError for a malformed entry.
-std::vector<Variant> read_variants(const netlist::Tree& root);
-/// The case with a variant applied: replacements first, then overrides.
-netlist::Tree apply_variant(const netlist::Tree& root, const Variant& variant);
 
 struct VariantComparison {
   std::string case_file;

@@ -86,9 +86,9 @@ FaultWindow fault_window(const std::string& case_file, const std::vector<netlist
     throw InputError(option_mark("--margin", 1), fmt::format("a margin of {} is outside 0 … 100 %", margin),
                      "write e.g. '--margin 20%'");
   }
-  netlist::Tree base = with_overrides(netlist::load_yaml_file(case_file), settings);
-  netlist::Case nominal = netlist::read_case(base, case_file);
-  auto sequence = netlist::read_sequence(nominal);
+  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
+  const netlist::Case nominal = base.validate();
+  const auto& sequence = nominal.sequence;
   if (!sequence) {
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "a fault window needs the case's 'sequence:' block",
                      "add a sequence block (see docs/sequence-and-limits.md)");
@@ -104,19 +104,17 @@ FaultWindow fault_window(const std::string& case_file, const std::vector<netlist
   window.case_timeout = sequence->timeout;
   if (window.problems.empty()) {
     std::vector<netlist::Override> installed = window_overrides(window.minimum_time, window.timeout);
-    netlist::Tree windowed = with_overrides(base, installed);
+    const netlist::CaseDocument windowed = base.with(installed);
     std::vector<std::size_t> extremes{static_cast<std::size_t>(window.fastest_point),
                                       static_cast<std::size_t>(window.slowest_point)};
     StudyResults rerun = run_study(
-        case_file, extremes.size(),
-        [&](std::size_t i) {
-          return with_overrides(windowed, spread_overrides(spread.tolerances, plan, spread.index(extremes[i])));
-        },
+        extremes.size(),
+        [&](std::size_t i) { return windowed.with(spread_overrides(spread.tolerances, plan, spread.index(extremes[i]))); },
         jobs);
     for (const auto& point : rerun.points) {
       window.extreme_outcomes.push_back(point.evaluated() ? point.outcome : status_word(point.status));
     }
-    window.matrix = detection_matrix(windowed, case_file, jobs);
+    window.matrix = detection_matrix(windowed, jobs);
   }
   if (spread_out) *spread_out = std::move(spread);
   return window;

@@ -17,9 +17,8 @@
 #include "app/studies/faults_json.h"
 #include "app/studies/study_pool.h"
 #include "app/studies/study_run.h"
-#include "netlist/case.h"
-#include "netlist/overrides.h"
-#include "netlist/scenario_spec.h"
+#include "models/registry.h"
+#include "netlist/case_document.h"
 #include "netlist/sequence_spec.h"
 #include "netlist/units.h"
 
@@ -39,136 +38,163 @@ const DetectionRow* DetectionMatrix::find(const std::string& scenario) const {
 }
 
 namespace {
-using netlist::Tree;
-
-const std::vector<std::string>& built_in_names() {
-  static const std::vector<std::string> names = {"nominal",
-                                                 "shorted_link",
-                                                 "open_precharge_resistor",
-                                                 "missing_capacitance",
-                                                 "oversize_capacitance",
-                                                 "constant_power_from_start",
-                                                 "reversed_connection"};
-  return names;
-}
 
 struct Planned {
   DetectionRow row;
-  Tree tree;
+  netlist::CaseDocument document;
   bool expect_from_stall = false;  // the expectation follows from the run's own stall diagnostic
   std::optional<netlist::Case> spec;
 };
 
-bool across_link(const netlist::PartSpec& part, const netlist::NodePair& link) {
-  return (part.nodes[0] == link.plus && part.nodes[1] == link.minus) ||
-         (part.nodes[0] == link.minus && part.nodes[1] == link.plus);
+bool across_link(const models::Part& part, const netlist::NodePair& link) {
+  return (part.nodes()[0] == link.plus && part.nodes()[1] == link.minus) ||
+         (part.nodes()[0] == link.minus && part.nodes()[1] == link.plus);
 }
 
-std::vector<std::string> names_where(const netlist::Case& spec, const netlist::SequenceSpec& sequence,
-                                     const std::string& kind, bool only_across_link) {
-  std::vector<std::string> names;
-  for (const auto& part : spec.parts) {
-    if (part.kind == kind && (!only_across_link || across_link(part, sequence.link))) names.push_back(part.name);
+// Parts of a role, optionally only those connected across the sensed link nodes.
+std::vector<const models::Part*> parts_where(const solver::Circuit& circuit, const netlist::SequenceSpec& sequence,
+                                             models::Role role, bool only_across_link) {
+  std::vector<const models::Part*> found;
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    const models::Part& part = circuit.part(p);
+    if (part.role() == role && (!only_across_link || across_link(part, sequence.link))) found.push_back(&part);
   }
-  return names;
+  return found;
 }
 
-std::vector<Planned> plan(const Tree& root, const netlist::Case& nominal, const netlist::SequenceSpec& sequence) {
-  const netlist::SourceMark at = sequence.mark;  // built-in edits point at the sequence block
-  const std::string caught = sequence.rise_fraction ? "no_rise" : "timeout";
-  std::vector<Planned> planned;
-  auto add = [&](const std::string& name, const std::string& description, const std::string& expected) -> Planned& {
+// The plan under construction: the rows in order, each with its own copy of the case document.
+class Plan {
+ public:
+  Plan(const netlist::CaseDocument& document, const netlist::Case& nominal, const solver::Circuit& circuit)
+      : document_(document), nominal_(nominal), circuit_(circuit), sequence_(*nominal.sequence),
+        at_(sequence_.mark), caught_(sequence_.rise_fraction ? "no_rise" : "timeout") {}
+
+  std::vector<Planned> built_in_and_case_scenarios() {
+    add("nominal", "the case as written", sequence_.expected_outcome);
+    shorted_link();
+    open_resistor();
+    scaled_capacitance();
+    constant_power_from_start();
+    reversed_connection();
+    case_scenarios();
+    return std::move(planned_);
+  }
+
+ private:
+  Planned& add(const std::string& name, const std::string& description, const std::string& expected) {
     Planned p;
     p.row.scenario = name;
     p.row.description = description;
     p.row.expected = expected;
-    p.tree = root;
-    planned.push_back(std::move(p));
-    return planned.back();
-  };
-  auto not_applicable = [](Planned& p, const std::string& reason) {
+    p.document = document_;
+    planned_.push_back(std::move(p));
+    return planned_.back();
+  }
+  static void not_applicable(Planned& p, const std::string& reason) {
     p.row.applicable = false;
     p.row.actual = "not_applicable";
     p.row.note = reason;
-  };
-
-  add("nominal", "the case as written", sequence.expected_outcome);
-
-  {
-    Planned& p = add("shorted_link", "1 mOhm short across the sensed link nodes", caught);
-    netlist::add_part(p.tree, netlist::unused_part_name(p.tree, "scenario_short"), "resistor", sequence.link.plus,
-                      sequence.link.minus, {{"resistance", "1 mOhm"}}, at);
   }
-  {
-    Planned& p = add("open_precharge_resistor", fmt::format("{} open (1 GOhm)", sequence.resistor), caught);
-    const netlist::PartSpec* resistor = nominal.find_part(sequence.resistor);
-    if (resistor->kind == "resistor") {
-      netlist::apply_override(p.tree, {sequence.resistor + ".resistance", "1 GOhm", at});
-    } else {
-      netlist::replace_part(p.tree, sequence.resistor, "resistor", {{"resistance", "1 GOhm"}}, at);
-      p.row.note = fmt::format("the {} part is replaced by a plain 1 GOhm resistor", resistor->kind);
+
+  void shorted_link() {
+    Planned& p = add("shorted_link", "1 mOhm short across the sensed link nodes", caught_);
+    const models::PartRecipe short_circuit = models::plain_resistance("1 mOhm");
+    p.document.add_part(p.document.unused_part_name("scenario_short"), short_circuit.kind, sequence_.link.plus,
+                        sequence_.link.minus, short_circuit.parameters, at_);
+  }
+
+  void open_resistor() {
+    Planned& p = add("open_precharge_resistor", fmt::format("{} open (1 GOhm)", sequence_.resistor), caught_);
+    const models::Part& resistor = circuit_.part(circuit_.find_part(sequence_.resistor));
+    const auto value = resistor.defining_value();
+    if (resistor.role() == models::Role::Resistive && value && value->alone) {
+      p.document.apply({sequence_.resistor + "." + value->parameter, "1 GOhm", at_});
+      return;
+    }
+    const models::PartRecipe open = models::plain_resistance("1 GOhm");
+    p.document.replace_part(sequence_.resistor, open.kind, open.parameters, at_);
+    p.row.note = fmt::format("the {} part is replaced by a plain 1 GOhm resistor", resistor.kind());
+  }
+
+  void scaled_capacitance() {
+    std::vector<std::string> paths;
+    for (const models::Part* part : parts_where(circuit_, sequence_, models::Role::Storage, true)) {
+      if (auto value = part->defining_value()) paths.push_back(part->name() + "." + value->parameter);
+    }
+    for (auto [name, factor, expected, description] :
+         {std::tuple{"missing_capacitance", 1e-3, std::string("too_fast"), "link capacitance at 0.1 % (stray only)"},
+          std::tuple{"oversize_capacitance", 2.0, std::string("closed"), "link capacitance doubled"}}) {
+      Planned& p = add(name, description, expected);
+      if (paths.empty()) {
+        not_applicable(p, "no capacitor is connected across the sensed link nodes");
+        continue;
+      }
+      for (const auto& path : paths) p.document.scale(path, factor, at_);
     }
   }
-  auto capacitors = names_where(nominal, sequence, "capacitor", true);
-  for (auto [name, factor, expected, description] :
-       {std::tuple{"missing_capacitance", 1e-3, std::string("too_fast"), "link capacitance at 0.1 % (stray only)"},
-        std::tuple{"oversize_capacitance", 2.0, std::string("closed"), "link capacitance doubled"}}) {
-    Planned& p = add(name, description, expected);
-    if (capacitors.empty()) {
-      not_applicable(p, "no capacitor is connected across the sensed link nodes");
-      continue;
-    }
-    for (const auto& capacitor : capacitors) netlist::scale_value(p.tree, capacitor + ".capacitance", factor, at);
-  }
-  {
-    auto loads = names_where(nominal, sequence, "constant_power_load", false);
+
+  void constant_power_from_start() {
     Planned& p = add("constant_power_from_start", "constant-power loads draw from 0 V on", "closed");
     p.expect_from_stall = true;
-    if (loads.empty()) not_applicable(p, "the case has no constant_power_load");
-    for (const auto& load : loads) {
-      netlist::apply_override(p.tree, {load + ".enable_voltage", "0 V", at});
-      netlist::apply_override(p.tree, {load + ".disable_voltage", "0 V", at});
-      netlist::apply_override(p.tree, {load + ".initial", "enabled", at});
+    bool any = false;
+    for (const models::Part* load : parts_where(circuit_, sequence_, models::Role::Load, false)) {
+      if (!load->load_demand()->constant_power) continue;
+      any = true;
+      p.document.apply({load->name() + ".enable_voltage", "0 V", at_});
+      p.document.apply({load->name() + ".disable_voltage", "0 V", at_});
+      p.document.apply({load->name() + ".initial", "enabled", at_});
     }
+    if (!any) not_applicable(p, "the case has no constant-power load");
   }
-  {
-    Planned& p = add("reversed_connection", "load side connected the other way round", caught);
-    if (names_where(nominal, sequence, "diode", true).empty()) {
+
+  void reversed_connection() {
+    Planned& p = add("reversed_connection", "load side connected the other way round", caught_);
+    if (parts_where(circuit_, sequence_, models::Role::Rectifier, true).empty()) {
       not_applicable(p,
                      "no diode across the sensed link nodes to clamp a reversed link (add the inverter's body "
                      "diodes as a diode part)");
-    } else {
-      for (const auto& part : nominal.parts) {
-        if (across_link(part, sequence.link)) netlist::reverse_part(p.tree, part.name, at);
+      return;
+    }
+    for (int i = 0; i < circuit_.part_count(); ++i) {
+      if (across_link(circuit_.part(i), sequence_.link)) p.document.reverse_part(circuit_.part(i).name(), at_);
+    }
+  }
+
+  void case_scenarios() {
+    for (const auto& scenario : nominal_.scenarios) {
+      auto existing = std::find_if(planned_.begin(), planned_.end(),
+                                   [&](const Planned& p) { return p.row.scenario == scenario.name; });
+      const bool is_new = existing == planned_.end();
+      if (is_new && !scenario.expected) {
+        throw netlist::InputError(scenario.mark,
+                                  fmt::format("scenario '{}' needs 'expect', the outcome the BMS should reach",
+                                              scenario.name),
+                                  "add e.g. 'expect: no_rise' (closed, timeout, no_rise, too_fast)");
+      }
+      Planned& p = is_new ? add(scenario.name, "defined by the case", *scenario.expected) : *existing;
+      if (scenario.expected) {
+        p.row.expected = *scenario.expected;
+        p.expect_from_stall = false;
+      }
+      if (!scenario.note.empty()) p.row.note = scenario.note;
+      if (scenario.overrides.empty()) continue;
+      p.document.apply(scenario.overrides);
+      if (is_new || p.row.description == "defined by the case") {
+        std::string list;
+        for (const auto& change : scenario.overrides) list += (list.empty() ? "" : ", ") + change.path + " = " + change.value;
+        p.row.description = list;
       }
     }
   }
 
-  for (const auto& scenario : netlist::read_scenarios(root, built_in_names())) {
-    auto existing = std::find_if(planned.begin(), planned.end(),
-                                 [&](const Planned& p) { return p.row.scenario == scenario.name; });
-    Planned* p = nullptr;
-    if (existing != planned.end()) {
-      p = &*existing;
-    } else {
-      p = &add(scenario.name, "defined by the case", *scenario.expected);
-    }
-    if (scenario.expected) {
-      p->row.expected = *scenario.expected;
-      p->expect_from_stall = false;
-    }
-    if (!scenario.note.empty()) p->row.note = scenario.note;
-    if (!scenario.overrides.empty()) {
-      netlist::apply_overrides(p->tree, scenario.overrides);
-      if (existing == planned.end() || p->row.description == "defined by the case") {
-        std::string list;
-        for (const auto& change : scenario.overrides) list += (list.empty() ? "" : ", ") + change.path + " = " + change.value;
-        p->row.description = list;
-      }
-    }
-  }
-  return planned;
-}
+  const netlist::CaseDocument& document_;
+  const netlist::Case& nominal_;
+  const solver::Circuit& circuit_;
+  const netlist::SequenceSpec& sequence_;
+  const netlist::SourceMark at_;  // built-in edits point at the sequence block
+  const std::string caught_;      // the outcome a fault that stops the rise ends in
+  std::vector<Planned> planned_;
+};
 
 // The outcome the quadratic predicts for constant-power loads that draw from 0 V on (analysis/stall.h). The link
 // must first climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2: where the loads are still constant-power
@@ -254,14 +280,15 @@ void keep_link_trace(DetectionRow& row, const solver::Result& result, const netl
 }
 
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs) {
-  return detection_matrix(netlist::load_yaml_file(case_file), case_file, jobs);
+  return detection_matrix(netlist::CaseDocument::load(case_file), jobs);
 }
 
-// Extracted for `linkrise window` (app/studies/fault_window.cc), which re-runs the scenarios on a case tree that
-// carries the recommended minimum time and timeout as overrides.
-DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jobs) {
-  netlist::Case nominal = netlist::read_case(root, case_file);
-  auto sequence = netlist::read_sequence(nominal);
+// Also used by `linkrise window` (app/studies/fault_window.cc), which re-runs the scenarios on a case document
+// that carries the recommended minimum time and timeout as overrides.
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs) {
+  const std::string case_file = document.file();
+  netlist::Case nominal = document.validate();
+  const auto& sequence = nominal.sequence;
   if (!sequence) {
     throw netlist::InputError(netlist::SourceMark{case_file, 1, 1},
                               "`linkrise faults` needs a 'sequence:' block: the matrix judges the BMS checks",
@@ -273,15 +300,17 @@ DetectionMatrix detection_matrix(Tree root, const std::string& case_file, int jo
   const double needed = sequence->start + sequence->attempts * (sequence->timeout + 4.0 * sequence->sample_period) +
                         (sequence->attempts - 1) * sequence->cool_down + 0.2;
   if (needed > nominal.run.duration) {
-    netlist::apply_override(root, {"run.duration", fmt::format("{:.9g} s", needed), sequence->mark});
+    document.apply({"run.duration", fmt::format("{:.9g} s", needed), sequence->mark});
+    nominal = document.validate();
   }
-  std::vector<Planned> planned = plan(root, nominal, *sequence);
+  const solver::Circuit circuit(nominal);
+  std::vector<Planned> planned = Plan(document, nominal, circuit).built_in_and_case_scenarios();
   // Every scenario is validated before any is simulated, so bad input costs no run and writes nothing.
   for (auto& p : planned) {
     if (!p.row.applicable) continue;
-    p.spec = netlist::read_case(p.tree, case_file);
+    p.spec = p.document.validate();
     solver::Circuit check(*p.spec);
-    if (!netlist::read_sequence(*p.spec)) throw std::logic_error("scenario lost its sequence block");
+    if (!p.spec->sequence) throw std::logic_error("scenario lost its sequence block");
   }
   // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread count.
   for_each_index(planned.size(), jobs, [&](std::size_t i) {

@@ -25,7 +25,7 @@
 #include <vector>
 
 #include "netlist/sequence_spec.h"
-#include "netlist/tree.h"
+#include "netlist/case_document.h"
 #include "solver/transient.h"
 
 namespace linkrise::app {
@@ -75,8 +75,8 @@ void keep_link_trace(DetectionRow& row, const solver::Result& result, const netl
 /// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
 /// netlist::InputError for a bad case or scenario.
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
-/// The same on a case already held as a tree (e.g. with overrides applied); `case_file` names it in messages.
-DetectionMatrix detection_matrix(netlist::Tree root, const std::string& case_file, int jobs = 1);
+/// The same on a case document (e.g. with overrides applied).
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs = 1);
 
 /// Why an applicable row failed, one phrase per reason (empty for a passing row).
 std::vector<std::string> failure_reasons(const DetectionRow& row);

@@ -56,7 +56,7 @@ double spread_value(const std::vector<Tolerance>& tolerances, const SpreadPlan& 
                     std::size_t slot) {
   const Tolerance& t = tolerances.at(slot);
   if (plan.corners) return (index >> slot) & 1U ? t.upper : t.lower;
-  return t.draw(uniform_draw(plan.seed, index, slot));
+  return draw(t, uniform_draw(plan.seed, index, slot));
 }
 
 std::vector<netlist::Override> spread_overrides(const std::vector<Tolerance>& tolerances, const SpreadPlan& plan,
@@ -88,9 +88,10 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
   Spread spread;
   spread.case_file = case_file;
   spread.plan = plan;
-  netlist::Tree base = with_overrides(netlist::load_yaml_file(case_file), settings);
-  spread.title = netlist::read_case(base, case_file).title;
-  spread.tolerances = read_tolerances(base);
+  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
+  const netlist::Case nominal = base.validate();
+  spread.title = nominal.title;
+  spread.tolerances = nominal.tolerances;
   if (spread.tolerances.empty()) {
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "the case has no 'tolerances:' block to spread",
                      "add e.g. 'tolerances: {r_pre.resistance: {plus_minus: 5 %}}'");
@@ -115,12 +116,12 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
 
   // The nominal run fixes the metric columns: every sample has the nominal's structure, so one number per
   // column is all a sample keeps.
-  spread.nominal = run_study(case_file, 1, [&](std::size_t) { return base; }, 1);
+  spread.nominal = run_study(1, [&](std::size_t) { return base; }, 1);
   reject_input_errors(spread.nominal, case_file, [](std::size_t) { return std::string("the nominal case"); });
-  with_overrides(base, spread_overrides(spread.tolerances, plan, spread.range.begin));  // paths checked up front
+  (void)base.with(spread_overrides(spread.tolerances, plan, spread.range.begin));  // paths checked up front
   spread.results = run_study(
-      case_file, spread.range.size(),
-      [&](std::size_t p) { return with_overrides(base, spread_overrides(spread.tolerances, plan, spread.index(p))); },
+      spread.range.size(),
+      [&](std::size_t p) { return base.with(spread_overrides(spread.tolerances, plan, spread.index(p))); },
       jobs, progress_label, &spread.nominal.columns);
   reject_input_errors(spread.results, case_file, [&](std::size_t p) {
     std::string label = fmt::format("{} {}", plan.corners ? "corner" : "sample", spread.index(p));
@@ -157,7 +158,7 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
     }
     spread.statistics.push_back(s);
   }
-  spread.headline = headline_metrics(base, results.columns);
+  spread.headline = headline_metrics(nominal, results.columns);
   return spread;
 }
 

@@ -56,12 +56,6 @@ std::vector<netlist::Override> parse_settings(const std::vector<std::string>& se
   return overrides;
 }
 
-std::string quantity_text(double value, const netlist::Dimension& dimension, bool absolute_temperature) {
-  if (absolute_temperature) return fmt::format("{:.17g} degC", value - 273.15);
-  std::string unit = dimension.symbol();
-  if (dimension == netlist::Dimension::none() || unit.empty() || unit == "1") return fmt::format("{:.17g}", value);
-  return fmt::format("{:.17g} {}", value, unit);
-}
 
 VariedParameter parse_variation(const std::string& text, const SourceMark& mark) {
   netlist::Override assignment = parse_assignment(text, mark);
@@ -128,31 +122,15 @@ VariedParameter parse_variation(const std::string& text, const SourceMark& mark)
     double value = logarithmic ? low.value * std::pow(high.value / low.value, fraction)
                                : low.value + (high.value - low.value) * fraction;
     if (i == count - 1) value = high.value;  // the end exactly as written
-    varied.values.push_back(quantity_text(value, dimension, low.absolute_temperature));
+    varied.values.push_back(netlist::quantity_text(value, dimension, low.absolute_temperature));
   }
   return varied;
-}
-
-netlist::Quantity value_at(const netlist::Tree& root, const std::string& path, const SourceMark& mark) {
-  const netlist::Tree* node = netlist::find_value(root, path, mark);
-  if (node == nullptr || !node->is_scalar()) {
-    throw InputError(mark, fmt::format("'{}' has no single value in the case", path),
-                     "give it a value in the case file (a default cannot carry a tolerance), or use 'range:'");
-  }
-  return parse_or_throw(node->text, node->mark, fmt::format("the value of '{}'", path));
-}
-
-std::string display_quantity(const netlist::Quantity& quantity) {
-  if (quantity.absolute_temperature) return fmt::format("{:.4g} degC", quantity.value - 273.15);
-  std::string unit = quantity.dimension.symbol();
-  if (quantity.dimension == netlist::Dimension::none()) return fmt::format("{:.4g}", quantity.value);
-  return netlist::format_si(quantity.value, unit);
 }
 
 std::string display_text(const std::string& text) {
   std::string problem;
   auto quantity = netlist::parse_quantity(text, problem);
-  return quantity ? display_quantity(*quantity) : text;
+  return quantity ? netlist::display_quantity(*quantity) : text;
 }
 
 }  // namespace linkrise::app

@@ -12,7 +12,6 @@
 #include <vector>
 
 #include "netlist/overrides.h"
-#include "netlist/tree.h"
 #include "netlist/units.h"
 
 namespace linkrise::app {
@@ -36,17 +35,7 @@ struct VariedParameter {
 /// Parses a --vary argument (list or range, see above). Throws InputError for a bad range.
 VariedParameter parse_variation(const std::string& text, const netlist::SourceMark& mark);
 
-/// Case-file text for a value in SI units of `dimension`: "<number> <symbol>", or degC for an absolute
-/// temperature, a bare number for a dimensionless value. 17 significant digits, so the text round-trips.
-std::string quantity_text(double value, const netlist::Dimension& dimension, bool absolute_temperature);
-
-/// The quantity a path holds in the case tree. Throws InputError (at `mark`) when the path is unset or not a
-/// single quantity ("give it a value in the case").
-netlist::Quantity value_at(const netlist::Tree& root, const std::string& path, const netlist::SourceMark& mark);
-
-/// A value for people: SI prefix and unit; degC for absolute temperatures; a plain number when dimensionless.
-std::string display_quantity(const netlist::Quantity& quantity);
-/// A case-file value text for people: display_quantity when it is a quantity, else the text itself.
+/// A case-file value text for people: netlist::display_quantity when it is a quantity, else the text itself.
 std::string display_text(const std::string& text);
 
 }  // namespace linkrise::app

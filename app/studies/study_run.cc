@@ -48,12 +48,6 @@ void reject_input_errors(const StudyResults& results, const std::string& file,
                             "change the value the study gives it");
 }
 
-netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes) {
-  netlist::Tree tree = base;
-  netlist::apply_overrides(tree, changes);
-  return tree;
-}
-
 namespace {
 std::vector<double> aligned(const std::vector<MetricValue>& metrics, const std::vector<MetricColumn>& columns) {
   std::vector<double> values(columns.size(), std::numeric_limits<double>::quiet_NaN());
@@ -74,7 +68,7 @@ std::vector<double> aligned(const std::vector<MetricValue>& metrics, const std::
 }
 }  // namespace
 
-StudyResults run_study(const std::string& file, std::size_t count, const TreeOf& tree_of, int jobs,
+StudyResults run_study(std::size_t count, const DocumentOf& document_of, int jobs,
                        const std::string& progress_label, const std::vector<MetricColumn>* fixed_columns) {
   StudyResults results;
   results.points.resize(count);
@@ -84,7 +78,7 @@ StudyResults run_study(const std::string& file, std::size_t count, const TreeOf&
       [&](std::size_t i) {
         // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
         thread_local solver::Waveform row_store;
-        CaseEvaluation evaluation = evaluate_case_tree(tree_of(i), file, &row_store);
+        CaseEvaluation evaluation = evaluate_case_document(document_of(i), &row_store);
         PointResult& point = results.points[i];
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);
@@ -116,22 +110,18 @@ bool larger_is_better(const std::string& metric) {
   return last.rfind("minimum_", 0) == 0 || last == "stall_equilibrium";
 }
 
-std::vector<std::string> headline_metrics(const netlist::Tree& root, const std::vector<MetricColumn>& columns,
+std::vector<std::string> headline_metrics(const netlist::Case& spec, const std::vector<MetricColumn>& columns,
                                           std::size_t at_least) {
   std::vector<std::string> names;
   auto add = [&](const std::string& name) {
     bool known = std::any_of(columns.begin(), columns.end(), [&](const MetricColumn& c) { return c.name == name; });
     if (known && std::find(names.begin(), names.end(), name) == names.end()) names.push_back(name);
   };
-  if (const netlist::Tree* limits = root.find("limits"); limits != nullptr && limits->is_map()) {
-    for (const auto& [name, limit] : limits->entries) add(name);
-  }
-  if (const netlist::Tree* sequence = root.find("sequence"); sequence != nullptr && sequence->is_map()) {
+  for (const auto& limit : spec.limits) add(limit.metric);
+  if (spec.sequence) {
     add("sequence.precharge_time");
-    if (const netlist::Tree* resistor = sequence->find("resistor"); resistor != nullptr && resistor->is_scalar()) {
-      add(resistor->text + ".peak_temperature");
-      add(resistor->text + ".energy");
-    }
+    add(spec.sequence->resistor + ".peak_temperature");
+    add(spec.sequence->resistor + ".energy");
   }
   for (const auto& column : columns) {
     if (names.size() >= at_least) break;

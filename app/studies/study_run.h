@@ -1,7 +1,7 @@
 #pragma once
 // Runs the points of a study — variants, sweep points, corners, Monte Carlo samples — on the worker pool.
-// Each point is the base case tree with its overrides applied (netlist/overrides.h), evaluated end to end by
-// evaluate_case_tree (app/evaluation/case_evaluation.h). Only the outcome, the verdict and one number per metric are
+// Each point is the base case document with its overrides applied (netlist/case_document.h), evaluated end to
+// end by evaluate_case_document (app/evaluation/case_evaluation.h). Only the outcome, the verdict and one number per metric are
 // kept per point: no waveform outlives its evaluation.
 #include <cstddef>
 #include <functional>
@@ -10,7 +10,8 @@
 
 #include "app/evaluation/case_evaluation.h"
 #include "netlist/overrides.h"
-#include "netlist/tree.h"
+#include "netlist/case.h"
+#include "netlist/case_document.h"
 
 namespace linkrise::app {
 
@@ -40,14 +41,14 @@ struct StudyResults {
   bool any_solver_failure() const;
 };
 
-/// The case tree of point i (the base case with the point's overrides or replacements).
-using TreeOf = std::function<netlist::Tree(std::size_t)>;
+/// The case document of point i (the base case with the point's overrides or replacements).
+using DocumentOf = std::function<netlist::CaseDocument(std::size_t)>;
 
 /// Evaluates `count` points on `jobs` threads (0: one per core); results are in index order and independent of
 /// the thread count. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
 /// keeps the memory per sample to one number per column); otherwise they are the union over the points in
-/// point order. tree_of may throw InputError (an override naming an unknown path); it is rethrown.
-StudyResults run_study(const std::string& file, std::size_t count, const TreeOf& tree_of, int jobs,
+/// point order. document_of may throw InputError (an override naming an unknown path); it is rethrown.
+StudyResults run_study(std::size_t count, const DocumentOf& document_of, int jobs,
                        const std::string& progress_label = "",
                        const std::vector<MetricColumn>* fixed_columns = nullptr);
 
@@ -56,16 +57,13 @@ StudyResults run_study(const std::string& file, std::size_t count, const TreeOf&
 void reject_input_errors(const StudyResults& results, const std::string& file,
                          const std::function<std::string(std::size_t)>& label_of);
 
-/// The base tree with overrides applied.
-netlist::Tree with_overrides(const netlist::Tree& base, const std::vector<netlist::Override>& changes);
-
 /// Which way a metric improves: larger for minimum_* values and the stall equilibrium; smaller for everything
 /// else (times, peaks, energies, temperatures, i²t, steps, overshoot, attempts).
 bool larger_is_better(const std::string& metric);
 
 /// Metrics a terminal table shows by default: those the case judges in `limits:`, then the sequence
 /// resistor's temperature and energy, then the first metrics up to `at_least`.
-std::vector<std::string> headline_metrics(const netlist::Tree& root, const std::vector<MetricColumn>& columns,
+std::vector<std::string> headline_metrics(const netlist::Case& spec, const std::vector<MetricColumn>& columns,
                                           std::size_t at_least = 6);
 
 /// Splits "a,b,c" (a --metrics option) and checks every name against the columns (InputError with a

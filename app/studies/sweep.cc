@@ -28,8 +28,9 @@ Sweep run_sweep(const std::string& case_file, const std::vector<netlist::Overrid
   Sweep sweep;
   sweep.case_file = case_file;
   sweep.parameters = parameters;
-  netlist::Tree base = with_overrides(netlist::load_yaml_file(case_file), settings);
-  sweep.title = netlist::read_case(base, case_file).title;
+  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
+  const netlist::Case nominal = base.validate();
+  sweep.title = nominal.title;
   for (std::size_t a = 0; a < parameters[0].values.size(); ++a) {
     if (parameters.size() == 1) {
       sweep.points.push_back({a});
@@ -38,16 +39,15 @@ Sweep run_sweep(const std::string& case_file, const std::vector<netlist::Overrid
     for (std::size_t b = 0; b < parameters[1].values.size(); ++b) sweep.points.push_back({a, b});
   }
   // Paths are checked once up front, so a misspelt one fails before any simulation.
-  with_overrides(base, sweep.overrides(0));
+  (void)base.with(sweep.overrides(0));
   sweep.results = run_study(
-      case_file, sweep.points.size(), [&](std::size_t i) { return with_overrides(base, sweep.overrides(i)); }, jobs,
-      progress_label);
+      sweep.points.size(), [&](std::size_t i) { return base.with(sweep.overrides(i)); }, jobs, progress_label);
   reject_input_errors(sweep.results, case_file, [&](std::size_t i) {
     std::string label = fmt::format("sweep point {}", i + 1);
     for (const auto& change : sweep.overrides(i)) label += fmt::format(" ({} = {})", change.path, change.value);
     return label;
   });
-  sweep.headline = headline_metrics(base, sweep.results.columns);
+  sweep.headline = headline_metrics(nominal, sweep.results.columns);
   return sweep;
 }
 
