@@ -19,9 +19,11 @@ EnergyAudit audit_energy(const solver::Circuit& circuit, const solver::Result& r
   for (std::size_t a = 0; a < accounts.size(); ++a) {
     double energy = result.final_states[offset + a] - result.initial_states[offset + a];
     PartEnergy& part = audit.parts[accounts[a].part];
-    if (accounts[a].channel == 0) part.delivered += energy;
-    if (accounts[a].channel == 1) part.dissipated += energy;
-    if (accounts[a].channel == 2) part.to_load += energy;
+    switch (accounts[a].channel) {
+      case models::EnergyChannel::Source: part.delivered += energy; break;
+      case models::EnergyChannel::Heat: part.dissipated += energy; break;
+      case models::EnergyChannel::Load: part.to_load += energy; break;
+    }
   }
   for (const auto& part : audit.parts) {
     audit.delivered += part.delivered;

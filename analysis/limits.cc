@@ -15,6 +15,8 @@ double in_metric_unit(const netlist::Quantity& bound, const std::string& unit) {
 }
 }  // namespace
 
+const char* bound_word(BoundSide side) { return side == BoundSide::Minimum ? "min" : "max"; }
+
 std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit) {
   std::vector<netlist::LimitSpec> limits;
   for (int p = 0; p < circuit.part_count(); ++p) {
@@ -52,7 +54,7 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
                                 suggestion.empty() ? "see docs/sequence-and-limits.md for the metric names"
                                                    : fmt::format("did you mean '{}'?", suggestion));
     }
-    auto judge_one = [&](const netlist::Quantity& bound, const std::string& side, const netlist::SourceMark& mark) {
+    auto judge_one = [&](const netlist::Quantity& bound, BoundSide side, const netlist::SourceMark& mark) {
       netlist::Dimension wanted = metric_dimension(metric->unit);
       if (!bound.bare && !(bound.dimension == wanted)) {
         throw netlist::InputError(mark,
@@ -73,14 +75,14 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
         j.judged = false;
         j.margin = j.relative_margin = std::nan("");
       } else {
-        j.margin = side == "max" ? j.limit - j.value : j.value - j.limit;
+        j.margin = side == BoundSide::Maximum ? j.limit - j.value : j.value - j.limit;
         j.relative_margin = j.limit != 0.0 ? j.margin / std::fabs(j.limit) : std::nan("");
         j.pass = j.margin >= limit.margin * std::fabs(j.limit);
       }
       judged.push_back(j);
     };
-    if (limit.minimum) judge_one(*limit.minimum, "min", limit.minimum_mark);
-    if (limit.maximum) judge_one(*limit.maximum, "max", limit.maximum_mark);
+    if (limit.minimum) judge_one(*limit.minimum, BoundSide::Minimum, limit.minimum_mark);
+    if (limit.maximum) judge_one(*limit.maximum, BoundSide::Maximum, limit.maximum_mark);
   }
   return judged;
 }

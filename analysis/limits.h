@@ -15,9 +15,14 @@
 
 namespace linkrise::analysis {
 
+/// Which side of a metric a limit bounds.
+enum class BoundSide { Minimum, Maximum };
+/// "min" or "max", as the limits block writes it.
+const char* bound_word(BoundSide side);
+
 struct JudgedLimit {
   std::string metric;
-  std::string bound;  // "max" or "min"
+  BoundSide bound = BoundSide::Maximum;
   std::string unit;
   std::string source;  // "limits block" or "rating of <part>"
   std::string rated_part;  // the part whose rating this is; empty for the limits block

@@ -20,11 +20,11 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
 
   for (const auto& limit : evaluation.limits) {
     if (limit.pass) continue;
-    std::string where = limit.margin < 0.0 ? (limit.bound == "max" ? "above" : "below")
+    std::string where = limit.margin < 0.0 ? (limit.bound == BoundSide::Maximum ? "above" : "below")
                                            : fmt::format("within, but short of the {:g} % margin to,",
                                                          100.0 * limit.required_margin);
     evaluation.failures.push_back(fmt::format("{} = {} is {} its {} {} ({})", limit.metric,
-                                              format_metric(limit.value, limit.unit), where, limit.bound,
+                                              format_metric(limit.value, limit.unit), where, bound_word(limit.bound),
                                               format_metric(limit.limit, limit.unit), limit.source));
   }
   if (report != nullptr && report->outcome != report->spec.expected_outcome) {

@@ -88,13 +88,14 @@ class Contactor final : public Part {
     modes[layout.mode] = kOpen;  // parting complete: the gap now holds off the full open resistance
     return {true, ""};
   }
-  ModeChange do_command(const std::string& action, const Layout& layout, int* modes, double* states) const override {
-    if (action != "close" && action != "open") {
-      return ModeChange{false, fmt::format("contactor '{}' can only 'close' or 'open', not '{}'", name(), action)};
+  ModeChange do_command(netlist::Action action, const Layout& layout, int* modes, double* states) const override {
+    if (action != netlist::Action::Close && action != netlist::Action::Open) {
+      return ModeChange{false, fmt::format("contactor '{}' can only 'close' or 'open', not '{}'", name(),
+                                           netlist::action_word(action))};
     }
     int& mode = modes[layout.mode];
     int before = mode;
-    if (action == "close") {
+    if (action == netlist::Action::Close) {
       mode = kClosed;
     } else if (mode == kClosed && parts_gradually()) {
       mode = kParting;

@@ -60,12 +60,12 @@ const char* role_word(Role role) {
   return "unknown";
 }
 
-ModeChange Part::command(const std::string& action, const Layout& layout, int* modes, double* states) const {
+ModeChange Part::command(netlist::Action action, const Layout& layout, int* modes, double* states) const {
   return do_command(action, layout, modes, states);
 }
 
-ModeChange Part::do_command(const std::string& action, const Layout&, int*, double*) const {
-  return ModeChange{false, fmt::format("part '{}' of kind {} cannot '{}'", name_, kind_, action)};
+ModeChange Part::do_command(netlist::Action action, const Layout&, int*, double*) const {
+  return ModeChange{false, fmt::format("part '{}' of kind {} cannot '{}'", name_, kind_, netlist::action_word(action))};
 }
 
 }  // namespace linkrise::models

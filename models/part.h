@@ -192,11 +192,18 @@ struct SignalInfo {
   std::string unit;
 };
 
+/// The three ways energy enters or leaves the circuit through a part.
+enum class EnergyChannel { Source, Heat, Load };
+
 /// Power flows of a part at one instant, in W, for the energy audit.
 struct Powers {
   double source = 0.0;  // converted into electrical energy (an ideal source, a cell's OCV)
   double heat = 0.0;    // dissipated in resistances
   double load = 0.0;    // taken out of the circuit as useful work (constant power/current loads)
+
+  double of(EnergyChannel channel) const {
+    return channel == EnergyChannel::Source ? source : channel == EnergyChannel::Heat ? heat : load;
+  }
 };
 
 /// Which power flows a part can have; the solver integrates only these.
@@ -276,10 +283,10 @@ class Part {
   }
   /// The crossing direction root `index` reacts to: +1 rising, -1 falling, 0 both.
   int root_direction(int index) const { return do_root_direction(index); }
-  /// A scheduled or controller action such as "close" or "enable".
+  /// A scheduled or controller action (close, open for switches; enable, disable for loads).
   /// `states` is the solver's state vector (may be null when only checking that the action applies): a
   /// command may re-initialise the part's own states, e.g. restart a contact's parting progress.
-  ModeChange command(const std::string& action, const Layout& layout, int* modes, double* states = nullptr) const;
+  ModeChange command(netlist::Action action, const Layout& layout, int* modes, double* states = nullptr) const;
 
  protected:
   /// Current entering the positive node (passive convention).
@@ -307,7 +314,7 @@ class Part {
   virtual ModeChange do_on_root(int, int, const Layout&, int*) const { return {}; }
   virtual ModeChange do_settle(const Point&, const Layout&, int*) const { return {}; }
   virtual int do_root_direction(int) const { return 0; }
-  virtual ModeChange do_command(const std::string& action, const Layout&, int*, double* states) const;
+  virtual ModeChange do_command(netlist::Action action, const Layout&, int*, double* states) const;
   /// Sign applied to current and power in the output: +1 passive, -1 for sources (delivering is positive).
   virtual double do_output_sign() const { return 1.0; }
 

@@ -95,11 +95,12 @@ class SwitchedLoad final : public Part {
     modes[layout.mode] = wanted;
     return {changed, ""};
   }
-  ModeChange do_command(const std::string& action, const Layout& layout, int* modes, double*) const override {
-    if (action != "enable" && action != "disable") {
-      return {false, fmt::format("load '{}' can only 'enable' or 'disable', not '{}'", name(), action)};
+  ModeChange do_command(netlist::Action action, const Layout& layout, int* modes, double*) const override {
+    if (action != netlist::Action::Enable && action != netlist::Action::Disable) {
+      return {false, fmt::format("load '{}' can only 'enable' or 'disable', not '{}'", name(),
+                                 netlist::action_word(action))};
     }
-    int wanted = action == "enable" ? 1 : 0;
+    int wanted = action == netlist::Action::Enable ? 1 : 0;
     bool changed = modes[layout.mode + 1] != wanted;
     modes[layout.mode + 1] = wanted;
     return {changed, ""};

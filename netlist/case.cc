@@ -45,6 +45,21 @@ const std::vector<std::string>& case_sections() {
   return sections;
 }
 
+const char* action_word(Action action) {
+  switch (action) {
+    case Action::Close: return "close";
+    case Action::Open: return "open";
+    case Action::Enable: return "enable";
+    case Action::Disable: return "disable";
+  }
+  return "unknown";
+}
+
+const std::vector<Action>& all_actions() {
+  static const std::vector<Action> actions = {Action::Close, Action::Open, Action::Enable, Action::Disable};
+  return actions;
+}
+
 bool valid_part_name(const std::string& name) {
   if (name.empty() || name.size() > 64 || std::isdigit(static_cast<unsigned char>(name[0]))) return false;
   return std::all_of(name.begin(), name.end(),
@@ -150,15 +165,14 @@ std::vector<EventSpec> read_events(const Tree& root, const Case& spec) {
     if (!block->is_list()) {
       throw InputError(block->mark, "'events' must be a list such as '- {at: 10 ms, close: k_main}'");
     }
-    static const std::vector<std::string> actions = {"close", "open", "enable", "disable"};
     for (const Tree& item : block->items) {
       ParameterReader reader(item, "an event");
       EventSpec event;
       event.mark = item.mark;
       event.at = reader.required("at", Dimension::time(), Bound::NonNegative);
       int found = 0;
-      for (const auto& action : actions) {
-        if (auto target = reader.text(action)) {
+      for (Action action : all_actions()) {
+        if (auto target = reader.text(action_word(action))) {
           event.action = action;
           event.target = *target;
           ++found;
@@ -170,7 +184,7 @@ std::vector<EventSpec> read_events(const Tree& root, const Case& spec) {
                          "write e.g. '- {at: 250 ms, close: k_main}'");
       }
       if (spec.find_part(event.target) == nullptr) {
-        throw InputError(reader.mark(event.action),
+        throw InputError(reader.mark(action_word(event.action)),
                          fmt::format("event at {} s names part '{}', which is not in the parts list", event.at,
                                      event.target),
                          did_you_mean(event.target, spec.part_names(), "name one of the parts"));

@@ -35,10 +35,17 @@ struct PartSpec {
   Tree block_;  // the part's block as written, read only through parameters()
 };
 
-/// Scheduled switching: at a known time a part receives an action ("close", "open", "enable", "disable").
+/// What a switching command asks of a part: contactors close and open, loads are enabled and disabled.
+enum class Action { Close, Open, Enable, Disable };
+/// The action as written in a case file and in the timeline ("close", "open", "enable", "disable").
+const char* action_word(Action action);
+/// Every action, in the order above.
+const std::vector<Action>& all_actions();
+
+/// Scheduled switching: at a known time a part receives an action.
 struct EventSpec {
   double at = 0.0;  // s
-  std::string action;
+  Action action = Action::Close;
   std::string target;
   SourceMark mark;
 };

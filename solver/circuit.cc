@@ -69,9 +69,10 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
   unknown_count_ = unknown;
   for (std::size_t p = 0; p < parts_.size(); ++p) {
     auto channels = parts_[p]->power_channels();
-    if (channels.source) accounts_.push_back({static_cast<int>(p), 0});
-    if (channels.heat) accounts_.push_back({static_cast<int>(p), 1});
-    if (channels.load) accounts_.push_back({static_cast<int>(p), 2});
+    const int part = static_cast<int>(p);
+    if (channels.source) accounts_.push_back({part, models::EnergyChannel::Source});
+    if (channels.heat) accounts_.push_back({part, models::EnergyChannel::Heat});
+    if (channels.load) accounts_.push_back({part, models::EnergyChannel::Load});
     signal_first_.push_back(static_cast<int>(signal_columns_.size()));
     for (const auto& signal : parts_[p]->signals()) {
       signal_columns_.push_back(

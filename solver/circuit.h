@@ -11,10 +11,10 @@
 
 namespace linkrise::solver {
 
-/// One integrated energy account: part `part`, channel 0 source, 1 heat, 2 load.
+/// One integrated energy account: the energy of one part through one channel.
 struct EnergyAccount {
   int part = 0;
-  int channel = 0;
+  models::EnergyChannel channel = models::EnergyChannel::Source;
 };
 
 struct SignalColumn {

@@ -205,7 +205,7 @@ void Equations::account_rates(double time, const double* states, const int* mode
       last_part = accounts[a].part;
       powers = circuit_.part(last_part).powers(p, circuit_.layout(last_part));
     }
-    rates[a] = accounts[a].channel == 0 ? powers.source : accounts[a].channel == 1 ? powers.heat : powers.load;
+    rates[a] = powers.of(accounts[a].channel);
   }
 }
 

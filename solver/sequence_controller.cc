@@ -70,11 +70,11 @@ void SequenceController::schedule_close(int part, double coil_time, const std::s
   std::string delay = timing.closing_delay > 0.0
                           ? fmt::format("{} after the coil was energised", format_si(timing.closing_delay, "s"))
                           : "coil energised";
-  commands.push_back(Command{touch, part, "close", fmt::format("{} ({})", why, delay)});
+  commands.push_back(Command{touch, part, netlist::Action::Close, fmt::format("{} ({})", why, delay)});
   for (int bounce = 1; bounce <= timing.bounce_count; ++bounce) {
     double gap = touch + (2.0 * bounce - 1.0) * timing.bounce_interval;
-    commands.push_back(Command{gap, part, "open", fmt::format("contact bounce {} of {}", bounce, timing.bounce_count)});
-    commands.push_back(Command{gap + timing.bounce_interval, part, "close",
+    commands.push_back(Command{gap, part, netlist::Action::Open, fmt::format("contact bounce {} of {}", bounce, timing.bounce_count)});
+    commands.push_back(Command{gap + timing.bounce_interval, part, netlist::Action::Close,
                                fmt::format("contact bounce {} of {} ends", bounce, timing.bounce_count)});
   }
 }
@@ -111,7 +111,7 @@ void SequenceController::raise_fault(double time, const std::string& fault, cons
   double latest = time;
   for (int part : start_closed_) {
     double parted = time + timing_of(circuit_, part).opening_delay;
-    commands.push_back(Command{parted, part, "open", fmt::format("fault {}: pre-charge path opened", fault)});
+    commands.push_back(Command{parted, part, netlist::Action::Open, fmt::format("fault {}: pre-charge path opened", fault)});
     latest = std::max(latest, parted);
   }
   if (static_cast<int>(history_.size()) < spec_.attempts) {
@@ -174,7 +174,7 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
     auto pre = timing_of(circuit_, precharge_);
     double coil_off = touch + spec_.overlap;
     record.released = coil_off + pre.opening_delay;
-    commands.push_back(Command{record.released, precharge_, "open",
+    commands.push_back(Command{record.released, precharge_, netlist::Action::Open,
                                fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
                                            pre.opening_delay > 0.0
                                                ? fmt::format(", then opening delay {}", format_si(pre.opening_delay, "s"))

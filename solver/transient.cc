@@ -406,7 +406,7 @@ bool Driver::apply_commands(double t) {
     auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x());
     if (!change.problem.empty()) throw SolverError(change.problem, t);
     ++result_.statistics.events;
-    result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", command.action, part.name()), command.reason});
+    result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", netlist::action_word(command.action), part.name()), command.reason});
     any = any || change.changed;
   }
   if (!first) record_step_row(t, x());  // the row after

@@ -16,11 +16,11 @@
 
 namespace linkrise::solver {
 
-/// An action for one part at a time: "close"/"open" (contactors), "enable"/"disable" (loads).
+/// An action for one part at a time: close/open (contactors), enable/disable (loads).
 struct Command {
   double time = 0.0;
   int part = -1;
-  std::string action;
+  netlist::Action action = netlist::Action::Close;
   std::string reason;
 };
 

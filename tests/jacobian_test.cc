@@ -49,11 +49,11 @@ std::vector<ModeSet> mode_sets(const Circuit& circuit) {
   for (int p = 0; p < circuit.part_count(); ++p) {
     const auto& part = circuit.part(p);
     const auto& layout = circuit.layout(p);
-    part.command("close", layout, on.modes.data());
-    part.command("enable", layout, on.modes.data());
+    part.command(linkrise::netlist::Action::Close, layout, on.modes.data());
+    part.command(linkrise::netlist::Action::Enable, layout, on.modes.data());
     for (int r = 0; r < part.root_count(); ++r) part.on_root(r, +1, layout, on.modes.data());
-    part.command("open", layout, off.modes.data());
-    part.command("disable", layout, off.modes.data());
+    part.command(linkrise::netlist::Action::Open, layout, off.modes.data());
+    part.command(linkrise::netlist::Action::Disable, layout, off.modes.data());
   }
   sets.push_back(on);
   sets.push_back(off);

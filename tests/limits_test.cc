@@ -46,7 +46,7 @@ TEST(Limits, MaximumAndMinimumWithMargins) {
       "  r1.energy: {min: 10 J, max: 100 J, margin: 10 %}\n");
   ASSERT_EQ(result.size(), 4u);
   // max 200 ms, value 180 ms: margin 20 ms = 10 % of the bound, more than the required 5 %.
-  EXPECT_EQ(result[0].bound, "max");
+  EXPECT_EQ(result[0].bound, linkrise::analysis::BoundSide::Maximum);
   EXPECT_NEAR(result[0].margin, 0.020, 1e-15);
   EXPECT_NEAR(result[0].relative_margin, 0.10, 1e-12);
   EXPECT_TRUE(result[0].pass);
@@ -54,7 +54,7 @@ TEST(Limits, MaximumAndMinimumWithMargins) {
   EXPECT_NEAR(result[1].margin, -5.0, 1e-12);
   EXPECT_FALSE(result[1].pass);
   // min 10 J passes; max 100 J leaves 5 J = 5 %, short of the required 10 %.
-  EXPECT_EQ(result[2].bound, "min");
+  EXPECT_EQ(result[2].bound, linkrise::analysis::BoundSide::Minimum);
   EXPECT_TRUE(result[2].pass);
   EXPECT_NEAR(result[3].margin, 5.0, 1e-12);
   EXPECT_FALSE(result[3].pass);
@@ -108,7 +108,7 @@ TEST(Limits, PartRatingsBecomeLimits) {
   auto result = linkrise::analysis::judge_limits(limits, metrics());
   ASSERT_EQ(result.size(), 2u);
   for (const auto& limit : result) {
-    EXPECT_EQ(limit.bound, "max");
+    EXPECT_EQ(limit.bound, linkrise::analysis::BoundSide::Maximum);
     EXPECT_TRUE(contains(limit.source, "rating of r1")) << limit.source;
     if (limit.metric == "r1.peak_temperature") {
       EXPECT_NEAR(limit.limit, 155.0, 1e-9);

@@ -21,7 +21,7 @@ void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation
   nlohmann::json limits = nlohmann::json::array();
   for (const auto& limit : evaluation.limits) {
     limits.push_back({{"metric", limit.metric},
-                      {"bound", limit.bound},
+                      {"bound", analysis::bound_word(limit.bound)},
                       {"limit", quantity(limit.limit, limit.unit)},
                       {"value", quantity(limit.value, limit.unit)},
                       {"margin", quantity(limit.margin, limit.unit)},
@@ -113,7 +113,7 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
     for (const auto& limit : evaluation.limits) {
       if (limit.metric != metric.name) continue;
       if (!limit_text.empty()) limit_text += ", ";
-      limit_text += fmt::format("{} {}", limit.bound, analysis::format_metric(limit.limit, limit.unit));
+      limit_text += fmt::format("{} {}", analysis::bound_word(limit.bound), analysis::format_metric(limit.limit, limit.unit));
       // The tightest limit's margin, relative to its bound.
       if (limit.judged && !(limit.relative_margin >= smallest)) {
         smallest = limit.relative_margin;

@@ -721,7 +721,7 @@ void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluatio
     row.metric = limit.metric;
     row.value = limit.value;
     row.unit = limit.unit;
-    row.bound = (limit.bound == "min" ? "\u2265 " : "\u2264 ") + metric_text(limit.limit, limit.unit);
+    row.bound = (limit.bound == analysis::BoundSide::Minimum ? "\u2265 " : "\u2264 ") + metric_text(limit.limit, limit.unit);
     if (limit.required_margin > 0.0) row.bound += fmt::format(" with {:g} % margin", 100.0 * limit.required_margin);
     row.margin = limit.margin;
     row.pass = limit.pass;
