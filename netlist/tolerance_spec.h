@@ -17,6 +17,7 @@
 //   [low, high]. The bounds are also the corners of the corner study.
 // - Each entry's position in the block is its "slot" in the random stream (the studies' random stream): adding an
 //   entry at the end leaves the draws of the earlier ones unchanged.
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -37,6 +38,9 @@ struct ToleranceSpec {
   bool absolute_temperature = false;
   std::string description;  // for reports, e.g. "33 Ohm (31.35 Ohm … 34.65 Ohm), uniform"
   SourceMark mark;
+  /// Set when the tolerance is relative to a nominal value the case does not write (a variant may have replaced
+  /// the part that carried it): the error a study that draws this tolerance reports. The bounds are then unset.
+  std::optional<InputError> unresolved;
 
   /// Case-file text of a value of this parameter.
   std::string text(double value) const { return quantity_text(value, dimension, absolute_temperature); }

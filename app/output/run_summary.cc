@@ -36,6 +36,11 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
     const auto& part = circuit.part(p);
     nlohmann::json entry;
     entry["kind"] = part.kind();
+    entry["role"] = models::role_word(part.role());
+    for (const auto& value : part.derived_values()) {
+      entry["derived"][value.name] = quantity(value.value, value.unit);
+      entry["derived"][value.name]["origin"] = value.origin;
+    }
     int first = circuit.signal_first(p);
     if (result.steps.row_count() > 0) {
       entry["peak_current"] = quantity(analysis::peak_absolute(result.steps, static_cast<int>(circuit.node_names().size()) + first), "A");

@@ -707,6 +707,18 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
     });
   }
   report.table(parts);
+
+  ReportTable derived;
+  derived.id = "derived";
+  derived.caption = "Values the parts derived from their inputs";
+  derived.columns = {"part", "value", "", "how"};
+  derived.numeric_columns = {2};
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    for (const auto& value : circuit.part(p).derived_values()) {
+      derived.rows.push_back({circuit.part(p).name(), value.name, quantity_text(value.value, value.unit), value.origin});
+    }
+  }
+  if (!derived.rows.empty()) report.table(derived);
 }
 
 }  // namespace

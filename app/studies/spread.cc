@@ -92,6 +92,9 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
   const netlist::Case nominal = base.validate();
   spread.title = nominal.title;
   spread.tolerances = nominal.tolerances;
+  for (const auto& tolerance : spread.tolerances) {
+    if (tolerance.unresolved) throw *tolerance.unresolved;
+  }
   if (spread.tolerances.empty()) {
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "the case has no 'tolerances:' block to spread",
                      "add e.g. 'tolerances: {r_pre.resistance: {plus_minus: 5 %}}'");
