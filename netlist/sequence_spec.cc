@@ -68,18 +68,11 @@ NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string&
   return NodePair{node->items[0].text, node->items[1].text};
 }
 
-}  // namespace
-
-std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
-  const Tree* block = root.find("sequence");
-  if (block == nullptr || block->kind == Tree::Kind::Null) return std::nullopt;
-  ParameterReader reader(*block, "the sequence block");
-  SequenceSpec sequence;
-  sequence.mark = block->mark;
-
+// The contactors closed when an attempt starts, each named once.
+void read_start_closed(const Case& spec, ParameterReader& reader, const Tree& block, SequenceSpec& sequence) {
   const Tree* start_closed = reader.child("start_closed");
   if (start_closed == nullptr || !start_closed->is_list() || start_closed->items.empty()) {
-    throw InputError(start_closed ? start_closed->mark : block->mark,
+    throw InputError(start_closed ? start_closed->mark : block.mark,
                      "the sequence needs 'start_closed', the contactors closed when an attempt starts",
                      "add e.g. 'start_closed: [k_neg, k_pre]'");
   }
@@ -92,17 +85,24 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
     sequence.start_closed.push_back(name);
     sequence.start_closed_marks.push_back(item.mark);
   }
-  auto required_contactor = [&](const std::string& key, const std::string& what, const std::string& example) {
-    const Tree* node = reader.child(key);
-    if (node == nullptr) {
-      throw InputError(block->mark, fmt::format("the sequence needs '{}' ({})", key, what),
-                       fmt::format("add '{}: {}'", key, example));
-    }
-    return contactor_name(spec, *node, fmt::format("'{}' contactor", key));
-  };
-  sequence.main = required_contactor("main", "the main contactor", "k_main");
+}
+
+std::string required_contactor(const Case& spec, ParameterReader& reader, const Tree& block, const std::string& key,
+                               const std::string& what, const std::string& example) {
+  const Tree* node = reader.child(key);
+  if (node == nullptr) {
+    throw InputError(block.mark, fmt::format("the sequence needs '{}' ({})", key, what),
+                     fmt::format("add '{}: {}'", key, example));
+  }
+  return contactor_name(spec, *node, fmt::format("'{}' contactor", key));
+}
+
+// The main and pre-charge contactors: the main one closes only on the decision, the pre-charge one at the start.
+void read_switched_contactors(const Case& spec, ParameterReader& reader, const Tree& block,
+                              SequenceSpec& sequence) {
+  sequence.main = required_contactor(spec, reader, block, "main", "the main contactor", "k_main");
   sequence.main_mark = reader.mark("main");
-  sequence.precharge = required_contactor("precharge", "the pre-charge contactor", "k_pre");
+  sequence.precharge = required_contactor(spec, reader, block, "precharge", "the pre-charge contactor", "k_pre");
   sequence.precharge_mark = reader.mark("precharge");
   if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.main) !=
       sequence.start_closed.end()) {
@@ -116,47 +116,50 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
                                          sequence.precharge),
                 fmt::format("add '{}' to start_closed", sequence.precharge));
   }
-  {
-    const Tree* node = reader.child("resistor");
-    if (node == nullptr) {
-      throw InputError(block->mark, "the sequence needs 'resistor', the pre-charge resistor it judges",
-                       "add e.g. 'resistor: r_pre'");
-    }
-    if (!node->is_scalar() || spec.find_part(node->text) == nullptr) {
-      throw InputError(node->mark, fmt::format("the sequence's resistor '{}' is not in the parts list", node->text),
-                       did_you_mean(node->text, spec.part_names(), "name the pre-charge resistor part"));
-    }
-    sequence.resistor = node->text;
-    sequence.resistor_mark = node->mark;
-  }
-  sequence.overlap = reader.quantity("overlap", Dimension::time(), Bound::NonNegative, 0.0);
-  sequence.pack = node_pair(spec, reader, "pack");
-  sequence.link = node_pair(spec, reader, "link");
+}
 
+void read_resistor(const Case& spec, ParameterReader& reader, const Tree& block, SequenceSpec& sequence) {
+  const Tree* node = reader.child("resistor");
+  if (node == nullptr) {
+    throw InputError(block.mark, "the sequence needs 'resistor', the pre-charge resistor it judges",
+                     "add e.g. 'resistor: r_pre'");
+  }
+  if (!node->is_scalar() || spec.find_part(node->text) == nullptr) {
+    throw InputError(node->mark, fmt::format("the sequence's resistor '{}' is not in the parts list", node->text),
+                     did_you_mean(node->text, spec.part_names(), "name the pre-charge resistor part"));
+  }
+  sequence.resistor = node->text;
+  sequence.resistor_mark = node->mark;
+}
+
+// close_when: exactly one of ratio or difference, and optionally a rate limit.
+void read_closing_rule(ParameterReader& reader, const Tree& block, SequenceSpec& sequence) {
   const Tree* rule = reader.child("close_when");
   if (rule == nullptr) {
-    throw InputError(block->mark, "the sequence needs 'close_when', the rule for closing the main contactor",
+    throw InputError(block.mark, "the sequence needs 'close_when', the rule for closing the main contactor",
                      "add 'close_when: {ratio: 95 %}' or 'close_when: {difference: 20 V}'");
   }
-  {
-    ParameterReader rule_reader(*rule, "the sequence's close_when");
-    auto ratio = rule_reader.optional("ratio", Dimension::none(), Bound::Fraction);
-    auto difference = rule_reader.optional("difference", Dimension::voltage(), Bound::Positive);
-    sequence.max_rate = rule_reader.optional("max_rate", Dimension::voltage() / Dimension::time(), Bound::Positive);
-    rule_reader.finish();
-    if (ratio.has_value() == difference.has_value()) {
-      throw InputError(rule->mark, "close_when needs exactly one of 'ratio' (link/pack) or 'difference' (pack - link)",
-                       "write 'close_when: {ratio: 95 %}' or 'close_when: {difference: 20 V}'");
-    }
-    if (ratio) {
-      if (!(*ratio > 0.0)) rule_reader.fail("ratio", "must be above 0 %", "write e.g. '95 %'");
-      sequence.rule = ClosingRule::Ratio;
-      sequence.rule_value = *ratio;
-    } else {
-      sequence.rule = ClosingRule::Difference;
-      sequence.rule_value = *difference;
-    }
+  ParameterReader rule_reader(*rule, "the sequence's close_when");
+  auto ratio = rule_reader.optional("ratio", Dimension::none(), Bound::Fraction);
+  auto difference = rule_reader.optional("difference", Dimension::voltage(), Bound::Positive);
+  sequence.max_rate = rule_reader.optional("max_rate", Dimension::voltage() / Dimension::time(), Bound::Positive);
+  rule_reader.finish();
+  if (ratio.has_value() == difference.has_value()) {
+    throw InputError(rule->mark, "close_when needs exactly one of 'ratio' (link/pack) or 'difference' (pack - link)",
+                     "write 'close_when: {ratio: 95 %}' or 'close_when: {difference: 20 V}'");
   }
+  if (ratio) {
+    if (!(*ratio > 0.0)) rule_reader.fail("ratio", "must be above 0 %", "write e.g. '95 %'");
+    sequence.rule = ClosingRule::Ratio;
+    sequence.rule_value = *ratio;
+  } else {
+    sequence.rule = ClosingRule::Difference;
+    sequence.rule_value = *difference;
+  }
+}
+
+// The decision period, the attempt's start, and the fault checks' times.
+void read_timing(ParameterReader& reader, SequenceSpec& sequence) {
   sequence.sample_period = reader.required("sample_period", Dimension::time(), Bound::Positive);
   sequence.start = reader.quantity("start", Dimension::time(), Bound::NonNegative, 0.0);
   sequence.minimum_time = reader.quantity("minimum_time", Dimension::time(), Bound::NonNegative, 0.0);
@@ -171,6 +174,10 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
                        "shorten 'by' or lengthen 'timeout'");
     }
   }
+}
+
+// The attempts, the cool-down between them, and the outcome that counts as a pass.
+void read_retries(ParameterReader& reader, SequenceSpec& sequence) {
   sequence.attempts = reader.count("attempts", 1, 1);
   auto cool_down = reader.optional("cool_down", Dimension::time(), Bound::NonNegative);
   if (sequence.attempts > 1 && !cool_down) {
@@ -179,8 +186,10 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   }
   sequence.cool_down = cool_down.value_or(0.0);
   sequence.expected_outcome = reader.word("expected_outcome", sequence_outcomes(), "closed");
-  reader.finish();
+}
 
+// The times against each other and against the run's duration.
+void check_timing(const Case& spec, const ParameterReader& reader, const SequenceSpec& sequence) {
   if (!(sequence.sample_period < sequence.timeout)) {
     reader.fail("sample_period", "must be shorter than the timeout", "use a period of a few milliseconds");
   }
@@ -191,7 +200,10 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   if (sequence.start > spec.run.duration) {
     reader.fail("start", "lies after the end of the run", "start earlier or lengthen 'run: duration'");
   }
-  // A contactor moved by both the controller and a scheduled event has no defined state.
+}
+
+// A contactor moved by both the controller and a scheduled event has no defined state.
+void check_events(const Case& spec, const SequenceSpec& sequence) {
   std::vector<std::string> moved = sequence.start_closed;
   moved.push_back(sequence.main);
   for (const auto& event : spec.events) {
@@ -201,6 +213,30 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
                        "remove the event; the sequence controller decides when it moves");
     }
   }
+}
+
+}  // namespace
+
+std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
+  const Tree* block = root.find("sequence");
+  if (block == nullptr || block->kind == Tree::Kind::Null) return std::nullopt;
+  ParameterReader reader(*block, "the sequence block");
+  SequenceSpec sequence;
+  sequence.mark = block->mark;
+
+  read_start_closed(spec, reader, *block, sequence);
+  read_switched_contactors(spec, reader, *block, sequence);
+  read_resistor(spec, reader, *block, sequence);
+  sequence.overlap = reader.quantity("overlap", Dimension::time(), Bound::NonNegative, 0.0);
+  sequence.pack = node_pair(spec, reader, "pack");
+  sequence.link = node_pair(spec, reader, "link");
+  read_closing_rule(reader, *block, sequence);
+  read_timing(reader, sequence);
+  read_retries(reader, sequence);
+  reader.finish();
+
+  check_timing(spec, reader, sequence);
+  check_events(spec, sequence);
   return sequence;
 }
 

@@ -75,6 +75,134 @@ double offset(const Tree& node, const std::string& what, const std::optional<Qua
   return amount.value;
 }
 
+// The keys of one tolerance entry; which form it takes is checked once all are read.
+struct ToleranceKeys {
+  const Tree* plus_minus = nullptr;
+  const Tree* minus = nullptr;
+  const Tree* plus = nullptr;
+  const Tree* range = nullptr;
+  const Tree* sigma = nullptr;
+  std::string distribution;
+};
+
+// The range form: two ends in one unit, low before high; the centre is their middle.
+void read_range(const Tree& range, const std::string& path, const std::optional<Quantity>& nominal,
+                ToleranceSpec& t) {
+  if (!range.is_list() || range.items.size() != 2) {
+    throw InputError(range.mark, fmt::format("tolerance '{}': range must be a list [low, high]", path),
+                     "write e.g. 'range: [20 %, 90 %]'");
+  }
+  Quantity low = quantity_of(range.items[0], "range start");
+  Quantity high = quantity_of(range.items[1], "range end");
+  if (!(low.dimension == high.dimension) || low.absolute_temperature != high.absolute_temperature) {
+    throw InputError(range.mark, fmt::format("tolerance '{}': the range ends have different units", path),
+                     "give both ends in one unit");
+  }
+  if (nominal && !nominal->bare && !(nominal->dimension == low.dimension)) {
+    throw InputError(range.mark,
+                     fmt::format("tolerance '{}': the range is {}, but the parameter is {}", path,
+                                 low.dimension.describe(), nominal->dimension.describe()));
+  }
+  if (!(low.value < high.value)) {
+    throw InputError(range.mark, fmt::format("tolerance '{}': the range must run from low to high", path));
+  }
+  t.lower = low.value;
+  t.upper = high.value;
+  t.centre = 0.5 * (low.value + high.value);
+  t.dimension = low.dimension;
+  t.absolute_temperature = low.absolute_temperature;
+  t.description = fmt::format("{} … {}", t.display(t.lower), t.display(t.upper));
+}
+
+// The offset form: plus_minus, or minus and/or plus, around the nominal value the case gives.
+void read_offsets(const ToleranceKeys& keys, const std::string& path, const SourceMark& mark,
+                  const std::optional<Quantity>& nominal, ToleranceSpec& t) {
+  if (!nominal) {
+    throw InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
+                     "give the parameter a value in the case, or write 'range: [low, high]'");
+  }
+  double below = 0.0, above = 0.0;
+  if (keys.plus_minus != nullptr) {
+    below = above = offset(*keys.plus_minus, "plus_minus", nominal, path);
+  } else {
+    if (keys.minus != nullptr) below = offset(*keys.minus, "minus", nominal, path);
+    if (keys.plus != nullptr) above = offset(*keys.plus, "plus", nominal, path);
+  }
+  t.lower = nominal->value - below;
+  t.upper = nominal->value + above;
+  t.centre = nominal->value;
+  t.dimension = nominal->dimension;
+  t.absolute_temperature = nominal->absolute_temperature;
+  if (!(t.lower < t.upper)) {
+    throw InputError(mark, fmt::format("tolerance '{}' spans no range", path), "give a non-zero tolerance");
+  }
+  t.description = fmt::format("{} ({} … {})", t.display(t.centre), t.display(t.lower), t.display(t.upper));
+}
+
+// The distribution: uniform, or normal with a sigma taken like an offset (from the centre for a range).
+void read_distribution(const ToleranceKeys& keys, const Tree& entry, const std::string& path,
+                       const std::optional<Quantity>& nominal, ToleranceSpec& t) {
+  if (keys.distribution == "normal") {
+    t.shape = ToleranceSpec::Shape::Normal;
+    if (keys.sigma == nullptr) {
+      throw InputError(entry.mark, fmt::format("tolerance '{}': a normal distribution needs 'sigma'", path),
+                       "add e.g. 'sigma: 2 %' (of the nominal value) or a quantity such as 'sigma: 1 Ohm'");
+    }
+    std::optional<Quantity> scale = nominal;
+    if (!scale) {
+      Quantity middle;
+      middle.value = t.centre;
+      middle.dimension = t.dimension;
+      middle.absolute_temperature = t.absolute_temperature;
+      scale = middle;
+    }
+    t.sigma = offset(*keys.sigma, "sigma", scale, path);
+    if (!(t.sigma > 0.0)) {
+      throw InputError(keys.sigma->mark, fmt::format("tolerance '{}': sigma must be positive", path));
+    }
+    t.description += fmt::format(", normal σ = {} truncated", format_si(t.sigma, t.dimension.symbol()));
+  } else if (keys.sigma != nullptr) {
+    throw InputError(keys.sigma->mark, fmt::format("tolerance '{}': sigma belongs to a normal distribution", path),
+                     "add 'distribution: normal' or remove sigma");
+  } else {
+    t.description += ", uniform";
+  }
+}
+
+// One entry of the block, `path: {...}`, written at `mark`.
+ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tree& entry, const SourceMark& mark) {
+  ParameterReader reader(entry, fmt::format("tolerance '{}'", path));
+  ToleranceSpec t;
+  t.path = path;
+  t.mark = mark;
+  ToleranceKeys keys;
+  keys.plus_minus = reader.child("plus_minus");
+  keys.minus = reader.child("minus");
+  keys.plus = reader.child("plus");
+  keys.range = reader.child("range");
+  keys.sigma = reader.child("sigma");
+  keys.distribution = reader.word("distribution", {"uniform", "normal"}, "uniform");
+  reader.finish();
+  int forms =
+      (keys.plus_minus != nullptr) + (keys.minus != nullptr || keys.plus != nullptr) + (keys.range != nullptr);
+  if (forms != 1) {
+    throw InputError(entry.mark, fmt::format("tolerance '{}' needs exactly one of plus_minus, minus/plus or range", path),
+                     "write e.g. '{plus_minus: 5 %}'");
+  }
+
+  // The nominal value, when the case gives one (a range does not need it).
+  std::optional<Quantity> nominal;
+  if (const Tree* nominal_node = find_value(root, path, mark)) nominal = nominal_value(*nominal_node, path, mark);
+
+  if (keys.range != nullptr) {
+    read_range(*keys.range, path, nominal, t);
+  } else {
+    read_offsets(keys, path, mark, nominal, t);
+  }
+  read_distribution(keys, entry, path, nominal, t);
+  return t;
+}
+
 }  // namespace
 
 std::vector<ToleranceSpec> read_tolerances(const Tree& root) {
@@ -95,98 +223,7 @@ std::vector<ToleranceSpec> read_tolerances(const Tree& root) {
     for (const auto& other : tolerances) {
       if (other.path == path) throw InputError(mark, fmt::format("tolerance '{}' is given twice", path));
     }
-    ParameterReader reader(entry, fmt::format("tolerance '{}'", path));
-    ToleranceSpec t;
-    t.path = path;
-    t.mark = mark;
-    const Tree* plus_minus = reader.child("plus_minus");
-    const Tree* minus = reader.child("minus");
-    const Tree* plus = reader.child("plus");
-    const Tree* range = reader.child("range");
-    const Tree* sigma = reader.child("sigma");
-    std::string distribution = reader.word("distribution", {"uniform", "normal"}, "uniform");
-    reader.finish();
-    int forms = (plus_minus != nullptr) + (minus != nullptr || plus != nullptr) + (range != nullptr);
-    if (forms != 1) {
-      throw InputError(entry.mark, fmt::format("tolerance '{}' needs exactly one of plus_minus, minus/plus or range", path),
-                       "write e.g. '{plus_minus: 5 %}'");
-    }
-
-    // The nominal value, when the case gives one (a range does not need it).
-    std::optional<Quantity> nominal;
-    if (const Tree* nominal_node = find_value(root, path, mark)) nominal = nominal_value(*nominal_node, path, mark);
-
-    if (range != nullptr) {
-      if (!range->is_list() || range->items.size() != 2) {
-        throw InputError(range->mark, fmt::format("tolerance '{}': range must be a list [low, high]", path),
-                         "write e.g. 'range: [20 %, 90 %]'");
-      }
-      Quantity low = quantity_of(range->items[0], "range start");
-      Quantity high = quantity_of(range->items[1], "range end");
-      if (!(low.dimension == high.dimension) || low.absolute_temperature != high.absolute_temperature) {
-        throw InputError(range->mark, fmt::format("tolerance '{}': the range ends have different units", path),
-                         "give both ends in one unit");
-      }
-      if (nominal && !nominal->bare && !(nominal->dimension == low.dimension)) {
-        throw InputError(range->mark,
-                         fmt::format("tolerance '{}': the range is {}, but the parameter is {}", path,
-                                     low.dimension.describe(), nominal->dimension.describe()));
-      }
-      if (!(low.value < high.value)) {
-        throw InputError(range->mark, fmt::format("tolerance '{}': the range must run from low to high", path));
-      }
-      t.lower = low.value;
-      t.upper = high.value;
-      t.centre = 0.5 * (low.value + high.value);
-      t.dimension = low.dimension;
-      t.absolute_temperature = low.absolute_temperature;
-      t.description = fmt::format("{} … {}", t.display(t.lower), t.display(t.upper));
-    } else {
-      if (!nominal) {
-        throw InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
-                         "give the parameter a value in the case, or write 'range: [low, high]'");
-      }
-      double below = 0.0, above = 0.0;
-      if (plus_minus != nullptr) {
-        below = above = offset(*plus_minus, "plus_minus", nominal, path);
-      } else {
-        if (minus != nullptr) below = offset(*minus, "minus", nominal, path);
-        if (plus != nullptr) above = offset(*plus, "plus", nominal, path);
-      }
-      t.lower = nominal->value - below;
-      t.upper = nominal->value + above;
-      t.centre = nominal->value;
-      t.dimension = nominal->dimension;
-      t.absolute_temperature = nominal->absolute_temperature;
-      if (!(t.lower < t.upper)) {
-        throw InputError(mark, fmt::format("tolerance '{}' spans no range", path), "give a non-zero tolerance");
-      }
-      t.description = fmt::format("{} ({} … {})", t.display(t.centre), t.display(t.lower), t.display(t.upper));
-    }
-    if (distribution == "normal") {
-      t.shape = ToleranceSpec::Shape::Normal;
-      if (sigma == nullptr) {
-        throw InputError(entry.mark, fmt::format("tolerance '{}': a normal distribution needs 'sigma'", path),
-                         "add e.g. 'sigma: 2 %' (of the nominal value) or a quantity such as 'sigma: 1 Ohm'");
-      }
-      std::optional<Quantity> scale = nominal;
-      if (!scale) {
-        Quantity middle;
-        middle.value = t.centre;
-        middle.dimension = t.dimension;
-        middle.absolute_temperature = t.absolute_temperature;
-        scale = middle;
-      }
-      t.sigma = offset(*sigma, "sigma", scale, path);
-      if (!(t.sigma > 0.0)) throw InputError(sigma->mark, fmt::format("tolerance '{}': sigma must be positive", path));
-      t.description += fmt::format(", normal σ = {} truncated", format_si(t.sigma, t.dimension.symbol()));
-    } else if (sigma != nullptr) {
-      throw InputError(sigma->mark, fmt::format("tolerance '{}': sigma belongs to a normal distribution", path),
-                       "add 'distribution: normal' or remove sigma");
-    } else {
-      t.description += ", uniform";
-    }
-    tolerances.push_back(std::move(t));
+    tolerances.push_back(read_tolerance(root, path, entry, mark));
   }
   return tolerances;
 }

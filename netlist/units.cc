@@ -206,12 +206,10 @@ std::string Dimension::symbol() const {
   return describe();
 }
 
-std::optional<Quantity> parse_quantity(std::string_view raw, std::string& problem) {
-  std::string_view text = trim(raw);
-  if (text.empty()) {
-    problem = "empty value";
-    return std::nullopt;
-  }
+namespace {
+
+// The number a value starts with; `unit` gets the rest of the text, trimmed.
+std::optional<double> leading_number(std::string_view text, std::string_view& unit, std::string& problem) {
   const char* begin = text.data();
   const char* end = text.data() + text.size();
   if (*begin == '+') ++begin;  // from_chars does not accept a leading '+'
@@ -229,30 +227,14 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
     problem = fmt::format("'{}' is not a finite number", text);
     return std::nullopt;
   }
-  std::string_view unit = trim(std::string_view(result.ptr, static_cast<std::size_t>(end - result.ptr)));
-  Quantity quantity;
-  if (unit.empty()) {
-    quantity.value = number;
-    quantity.bare = true;
-    return quantity;
-  }
-  if (unit == "degC" || unit == "°C") {
-    quantity.value = number + kelvin_offset;
-    quantity.dimension = Dimension::temperature();
-    quantity.absolute_temperature = true;
-    return quantity;
-  }
-  if (unit.find("degC") != std::string_view::npos || unit.find("°C") != std::string_view::npos) {
-    problem = fmt::format("'{}' mixes degC into a compound unit; write temperature differences in K (e.g. K/W)", unit);
-    return std::nullopt;
-  }
-  if (unit.find(' ') != std::string_view::npos) {
-    problem = fmt::format("unit '{}' contains a space; write compound units like 'J/K' or 'A*s'", unit);
-    return std::nullopt;
-  }
-  // numerator / denominator, each a product of factors joined by '*' or '·'
-  double scale = 1.0;
-  Dimension dimension = Dimension::none();
+  unit = trim(std::string_view(result.ptr, static_cast<std::size_t>(end - result.ptr)));
+  return number;
+}
+
+// A compound unit: numerator / denominator, each a product of factors joined by '*' or '·'.
+bool parse_compound_unit(std::string_view unit, double& scale, Dimension& dimension, std::string& problem) {
+  scale = 1.0;
+  dimension = Dimension::none();
   bool denominator = false;
   std::size_t position = 0;
   std::string unit_text(unit);
@@ -265,11 +247,11 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
     std::string_view factor_text(unit_text.data() + position, i - position);
     if (factor_text.empty()) {
       problem = fmt::format("malformed unit '{}'", unit);
-      return std::nullopt;
+      return false;
     }
     double factor_scale = 1.0;
     Dimension factor_dimension;
-    if (!parse_factor(factor_text, factor_scale, factor_dimension, problem)) return std::nullopt;
+    if (!parse_factor(factor_text, factor_scale, factor_dimension, problem)) return false;
     if (denominator) {
       scale /= factor_scale;
       dimension = dimension / factor_dimension;
@@ -280,14 +262,51 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
     if (is_divide) {
       if (denominator) {
         problem = fmt::format("unit '{}' has more than one '/'", unit);
-        return std::nullopt;
+        return false;
       }
       denominator = true;
     }
     position = i + (is_dot ? std::string_view("·").size() : 1);
     if (is_dot) i += std::string_view("·").size() - 1;
   }
-  quantity.value = number * scale;
+  return true;
+}
+
+}  // namespace
+
+std::optional<Quantity> parse_quantity(std::string_view raw, std::string& problem) {
+  std::string_view text = trim(raw);
+  if (text.empty()) {
+    problem = "empty value";
+    return std::nullopt;
+  }
+  std::string_view unit;
+  std::optional<double> number = leading_number(text, unit, problem);
+  if (!number) return std::nullopt;
+  Quantity quantity;
+  if (unit.empty()) {
+    quantity.value = *number;
+    quantity.bare = true;
+    return quantity;
+  }
+  if (unit == "degC" || unit == "°C") {
+    quantity.value = *number + kelvin_offset;
+    quantity.dimension = Dimension::temperature();
+    quantity.absolute_temperature = true;
+    return quantity;
+  }
+  if (unit.find("degC") != std::string_view::npos || unit.find("°C") != std::string_view::npos) {
+    problem = fmt::format("'{}' mixes degC into a compound unit; write temperature differences in K (e.g. K/W)", unit);
+    return std::nullopt;
+  }
+  if (unit.find(' ') != std::string_view::npos) {
+    problem = fmt::format("unit '{}' contains a space; write compound units like 'J/K' or 'A*s'", unit);
+    return std::nullopt;
+  }
+  double scale = 1.0;
+  Dimension dimension = Dimension::none();
+  if (!parse_compound_unit(unit, scale, dimension, problem)) return std::nullopt;
+  quantity.value = *number * scale;
   quantity.dimension = dimension;
   return quantity;
 }

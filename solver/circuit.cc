@@ -132,82 +132,117 @@ std::vector<double> Circuit::initial_states() const {
   return x;
 }
 
-void Circuit::check_topology() const {
-  const int count = static_cast<int>(node_names_.size());
-  const int ground = count;
-  auto index = [&](int node) { return node < 0 ? ground : node; };
-  auto node_label = [&](int node) { return node < 0 ? spec_.ground : node_names_[node]; };
+namespace {
 
-  for (std::size_t p = 0; p < parts_.size(); ++p) {
-    if (layouts_[p].node[0] == layouts_[p].node[1]) {
-      throw netlist::InputError(parts_[p]->mark(),
-                                fmt::format("part '{}' is connected to itself: both nodes are '{}'", parts_[p]->name(),
-                                            parts_[p]->nodes()[0]),
+// A layout's node as a union-find index: ground (-1 in the layouts) is the index after the last node.
+int group_index(const Circuit& circuit, int node) {
+  return node < 0 ? static_cast<int>(circuit.node_names().size()) : node;
+}
+
+void check_no_self_connection(const Circuit& circuit) {
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    const models::Part& part = circuit.part(p);
+    if (circuit.layout(p).node[0] == circuit.layout(p).node[1]) {
+      throw netlist::InputError(part.mark(),
+                                fmt::format("part '{}' is connected to itself: both nodes are '{}'", part.name(),
+                                            part.nodes()[0]),
                                 "connect its two terminals to different nodes");
     }
   }
-  // 1. Every node must reach ground through some chain of parts.
+}
+
+// 1. Every node must reach ground through some chain of parts.
+void check_ground_paths(const Circuit& circuit) {
+  const int count = static_cast<int>(circuit.node_names().size());
+  const int ground = count;
   Groups any(count + 1);
-  for (std::size_t p = 0; p < parts_.size(); ++p) any.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]));
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    any.join(group_index(circuit, circuit.layout(p).node[0]), group_index(circuit, circuit.layout(p).node[1]));
+  }
   for (int n = 0; n < count; ++n) {
     if (any.find(n) != any.find(ground)) {
       std::string part_name;
-      for (std::size_t p = 0; p < parts_.size(); ++p) {
-        if (layouts_[p].node[0] == n || layouts_[p].node[1] == n) part_name = parts_[p]->name();
+      for (int p = 0; p < circuit.part_count(); ++p) {
+        if (circuit.layout(p).node[0] == n || circuit.layout(p).node[1] == n) part_name = circuit.part(p).name();
       }
-      throw netlist::InputError(parts_[find_part(part_name)]->mark(),
+      throw netlist::InputError(circuit.part(circuit.find_part(part_name)).mark(),
                                 fmt::format("node '{}' has no path to ground '{}': it belongs to a separate "
                                             "circuit with no connection to the rest",
-                                            node_names_[n], spec_.ground),
+                                            circuit.node_names()[n], circuit.spec().ground),
                                 "connect that sub-circuit to the rest, or to ground through a resistance");
     }
   }
-  // 2. Parts that fix a voltage must not form a loop (the loop's voltages could not all hold).
-  Groups voltage(count + 1);
-  for (std::size_t p = 0; p < parts_.size(); ++p) {
-    if (parts_[p]->link() != models::Link::VoltageDefined) continue;
-    if (!voltage.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]))) {
+}
+
+// 2. Parts that fix a voltage must not form a loop (the loop's voltages could not all hold).
+void check_voltage_loops(const Circuit& circuit) {
+  Groups voltage(static_cast<int>(circuit.node_names().size()) + 1);
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    const models::Part& part = circuit.part(p);
+    if (part.link() != models::Link::VoltageDefined) continue;
+    if (!voltage.join(group_index(circuit, circuit.layout(p).node[0]),
+                      group_index(circuit, circuit.layout(p).node[1]))) {
       throw netlist::InputError(
-          parts_[p]->mark(),
+          part.mark(),
           fmt::format("part '{}' closes a loop of voltage-defining parts (ideal sources, capacitors without ESR, "
                       "cell strings without resistance) between '{}' and '{}'",
-                      parts_[p]->name(), parts_[p]->nodes()[0], parts_[p]->nodes()[1]),
+                      part.name(), part.nodes()[0], part.nodes()[1]),
           "give one part in the loop a series resistance or an ESR above zero");
     }
   }
-  // 3. A node group reached only through inductors or current-drawing loads is a cut-set: the currents
-  //    into it would be fixed independently and could not balance.
+}
+
+// The error for node n's group, which `conductive` does not join to ground: its nodes and boundary parts.
+netlist::InputError cut_set_error(const Circuit& circuit, Groups& conductive, int n) {
+  const int count = static_cast<int>(circuit.node_names().size());
+  std::vector<std::string> members;
+  for (int m = 0; m < count; ++m) {
+    if (conductive.find(m) == conductive.find(n)) members.push_back(circuit.node_names()[m]);
+  }
+  std::string boundary;
+  const models::Part* first = nullptr;
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    bool a = conductive.find(group_index(circuit, circuit.layout(p).node[0])) == conductive.find(n);
+    bool b = conductive.find(group_index(circuit, circuit.layout(p).node[1])) == conductive.find(n);
+    if (a != b) {
+      boundary += (boundary.empty() ? "" : ", ") + circuit.part(p).name();
+      if (!first) first = &circuit.part(p);
+    }
+  }
+  std::string list;
+  for (const auto& member : members) list += (list.empty() ? "" : ", ") + member;
+  return netlist::InputError(first ? first->mark() : circuit.part(0).mark(),
+                             fmt::format("node(s) {} connect to the rest of the circuit only through inductors or "
+                                         "current-drawing loads ({}): their currents cannot balance",
+                                         list, boundary),
+                             fmt::format("add a resistance, capacitor or other voltage path from '{}' to the rest "
+                                         "(e.g. a bleed resistor or the load's capacitor)",
+                                         circuit.node_names()[n]));
+}
+
+// 3. A node group reached only through inductors or current-drawing loads is a cut-set: the currents
+//    into it would be fixed independently and could not balance.
+void check_current_cut_sets(const Circuit& circuit) {
+  const int count = static_cast<int>(circuit.node_names().size());
+  const int ground = count;
   Groups conductive(count + 1);
-  for (std::size_t p = 0; p < parts_.size(); ++p) {
-    if (parts_[p]->link() == models::Link::CurrentDefined) continue;
-    conductive.join(index(layouts_[p].node[0]), index(layouts_[p].node[1]));
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    if (circuit.part(p).link() == models::Link::CurrentDefined) continue;
+    conductive.join(group_index(circuit, circuit.layout(p).node[0]), group_index(circuit, circuit.layout(p).node[1]));
   }
   for (int n = 0; n < count; ++n) {
     if (conductive.find(n) == conductive.find(ground)) continue;
-    std::vector<std::string> members;
-    for (int m = 0; m < count; ++m) {
-      if (conductive.find(m) == conductive.find(n)) members.push_back(node_names_[m]);
-    }
-    std::string boundary;
-    const models::Part* first = nullptr;
-    for (std::size_t p = 0; p < parts_.size(); ++p) {
-      bool a = conductive.find(index(layouts_[p].node[0])) == conductive.find(n);
-      bool b = conductive.find(index(layouts_[p].node[1])) == conductive.find(n);
-      if (a != b) {
-        boundary += (boundary.empty() ? "" : ", ") + parts_[p]->name();
-        if (!first) first = parts_[p].get();
-      }
-    }
-    std::string list;
-    for (const auto& member : members) list += (list.empty() ? "" : ", ") + member;
-    throw netlist::InputError(first ? first->mark() : parts_.front()->mark(),
-                              fmt::format("node(s) {} connect to the rest of the circuit only through inductors or "
-                                          "current-drawing loads ({}): their currents cannot balance",
-                                          list, boundary),
-                              fmt::format("add a resistance, capacitor or other voltage path from '{}' to the rest "
-                                          "(e.g. a bleed resistor or the load's capacitor)",
-                                          node_label(n)));
+    throw cut_set_error(circuit, conductive, n);
   }
+}
+
+}  // namespace
+
+void Circuit::check_topology() const {
+  check_no_self_connection(*this);
+  check_ground_paths(*this);
+  check_voltage_loops(*this);
+  check_current_cut_sets(*this);
 }
 
 }  // namespace linkrise::solver
