@@ -117,10 +117,6 @@ void read_range(const Tree& range, const std::string& path, const std::optional<
 // The offset form: plus_minus, or minus and/or plus, around the nominal value the case gives.
 void read_offsets(const ToleranceKeys& keys, const std::string& path, const SourceMark& mark,
                   const std::optional<Quantity>& nominal, ToleranceSpec& t) {
-  if (!nominal) {
-    throw InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
-                     "give the parameter a value in the case, or write 'range: [low, high]'");
-  }
   double below = 0.0, above = 0.0;
   if (keys.plus_minus != nullptr) {
     below = above = offset(*keys.plus_minus, "plus_minus", nominal, path);
@@ -196,6 +192,11 @@ ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tr
 
   if (keys.range != nullptr) {
     read_range(*keys.range, path, nominal, t);
+  } else if (!nominal) {
+    // Reported when a study draws it: a variant may have replaced the part that carried the value.
+    t.unresolved = InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
+                              "give the parameter a value in the case, or write 'range: [low, high]'");
+    return t;
   } else {
     read_offsets(keys, path, mark, nominal, t);
   }
