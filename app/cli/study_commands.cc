@@ -1,19 +1,27 @@
 #include "app/cli/study_commands.h"
 
 namespace linkrise::app {
+namespace {
+
+constexpr const char* set_help = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
+
+// The options every study ends with, in the order its help lists them.
+template <class Arguments>
+void add_output_options(CLI::App* command, Arguments& arguments) {
+  command->add_option("-o,--output", arguments.output_directory, "output directory")->capture_default_str();
+  command->add_option("-j,--jobs", arguments.jobs,
+                      "parallel evaluations (default: one per core; results do not depend on it)");
+  command->add_flag("-q,--quiet", arguments.quiet, "print nothing on success");
+  command->add_option("--report", arguments.report, "also write a self-contained HTML report to this file");
+}
+
+}  // namespace
 
 StudyCommands::StudyCommands(CLI::App& cli) {
-  const char* set_help = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
-  const char* report_help = "also write a self-contained HTML report to this file";
-  const char* jobs_help = "parallel evaluations (default: one per core; results do not depend on it)";
-
   compare_cli_ = cli.add_subcommand("compare", "run the case's variants side by side with the nominal case");
   compare_cli_->add_option("case", compare_.case_file, "case file (YAML) with a variants block")->required();
   compare_cli_->add_option("--set", compare_.settings, set_help);
-  compare_cli_->add_option("-o,--output", compare_.output_directory, "output directory")->capture_default_str();
-  compare_cli_->add_option("-j,--jobs", compare_.jobs, jobs_help);
-  compare_cli_->add_flag("-q,--quiet", compare_.quiet, "print nothing on success");
-  compare_cli_->add_option("--report", compare_.report, report_help);
+  add_output_options(compare_cli_, compare_);
 
   sweep_cli_ = cli.add_subcommand("sweep", "vary one or two parameters over lists or ranges");
   sweep_cli_->add_option("case", sweep_.case_file, "case file (YAML)")->required();
@@ -22,22 +30,16 @@ StudyCommands::StudyCommands(CLI::App& cli) {
       ->required();
   sweep_cli_->add_option("--set", sweep_.settings, set_help);
   sweep_cli_->add_option("--metrics", sweep_.metrics, "metrics for the terminal table, comma-separated");
-  sweep_cli_->add_option("-o,--output", sweep_.output_directory, "output directory")->capture_default_str();
-  sweep_cli_->add_option("-j,--jobs", sweep_.jobs, jobs_help);
-  sweep_cli_->add_flag("-q,--quiet", sweep_.quiet, "print nothing on success");
-  sweep_cli_->add_option("--report", sweep_.report, report_help);
+  add_output_options(sweep_cli_, sweep_);
 
-  auto add_population = [&](CLI::App* command, SpreadArguments& arguments) {
+  auto add_population = [](CLI::App* command, SpreadArguments& arguments) {
     command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
     command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples");
     command->add_option("--seed", arguments.seed, "Monte Carlo seed")->capture_default_str();
     command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4");
     command->add_option("--set", arguments.settings, set_help);
     command->add_option("--metrics", arguments.metrics, "metrics for the terminal tables, comma-separated");
-    command->add_option("-o,--output", arguments.output_directory, "output directory")->capture_default_str();
-    command->add_option("-j,--jobs", arguments.jobs, jobs_help);
-    command->add_flag("-q,--quiet", arguments.quiet, "print nothing on success");
-    command->add_option("--report", arguments.report, report_help);
+    add_output_options(command, arguments);
   };
   spread_cli_ = cli.add_subcommand("spread", "tolerance spread: corners or Monte Carlo over the tolerances block");
   spread_cli_->add_option("case", spread_.case_file, "case file (YAML) with a tolerances block")->required();
@@ -50,7 +52,6 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   add_population(window_cli_, window_.spread);
   window_cli_->add_option("--margin", window_.margin, "margin below the fastest and above the slowest charge, e.g. 20%")
       ->capture_default_str();
-
 }
 
 std::optional<int> StudyCommands::dispatch() const {

@@ -1,26 +1,19 @@
 #include "app/commands/run_command.h"
 
-#include <cstdio>
-#include <iostream>
-
 #include <fmt/format.h>
 
-#include "analysis/energy_audit.h"
+#include "app/commands/command_steps.h"
 #include "app/evaluation/case_run.h"
-#include "app/commands/exit_codes.h"
-#include "app/output/output_files.h"
-#include "app/report/report_html.h"
 #include "app/output/run_summary.h"
 #include "app/output/verdict_summary.h"
 #include "app/output/waveform_csv.h"
+#include "app/report/report_html.h"
 #include "netlist/parameter_reader.h"
 #include "netlist/run_spec.h"
-#include "solver/circuit.h"
-#include "solver/transient.h"
 
 namespace linkrise::app {
-
 namespace {
+
 // The command line's run options replace the case's and pass the same check, marked with the option's name.
 void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   if (arguments.sample) {
@@ -39,47 +32,40 @@ void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   }
   netlist::require_valid_run(run);
 }
+
+CommandOutput run_output(const RunArguments& arguments) {
+  netlist::Case spec = netlist::load_case(arguments.case_file);
+  apply_run_options(arguments, spec.run);
+  CaseRun run(spec);
+  const solver::Circuit& circuit = run.circuit();
+  const solver::Result& result = run.result();
+  const analysis::EnergyAudit& audit = run.audit();
+  if (run.solver_failed()) {
+    throw CommandFailure(kExitSolverFailure,
+                         fmt::format("linkrise: solver failure in '{}': {}", arguments.case_file, result.message));
+  }
+  const solver::SequenceReport* sequence = run.report();
+  const analysis::Evaluation& evaluation = run.evaluation();
+  CommandOutput output;
+  output.directory = arguments.output_directory;
+  output.files = {{"waveforms.csv", waveform_csv(run.options().sample ? result.samples : result.steps)},
+                  {"summary.json", summary_json(circuit, result, audit, evaluation, sequence)}};
+  if (arguments.report) {
+    RunReportInput report_input(circuit, result, audit);
+    add_evaluation(report_input, evaluation, sequence);
+    output.report_file = *arguments.report;
+    output.report = run_report_html(report_input);
+  }
+  output.text = terminal_summary(circuit, result, audit) + verdict_terminal(evaluation, sequence);
+  output.layout = ListingLayout::Columns;
+  output.exit_code = evaluation.pass ? kExitOk : kExitLimitFailed;
+  return output;
+}
+
 }  // namespace
 
 int run_command(const RunArguments& arguments) {
-  try {
-    netlist::Case spec = netlist::load_case(arguments.case_file);
-    apply_run_options(arguments, spec.run);
-    CaseRun run(spec);
-    const solver::Circuit& circuit = run.circuit();
-    const solver::Options& options = run.options();
-    const solver::Result& result = run.result();
-    const analysis::EnergyAudit& audit = run.audit();
-    if (run.solver_failed()) {
-      std::cerr << fmt::format("linkrise: solver failure in '{}': {}\n", arguments.case_file, result.message);
-      return kExitSolverFailure;
-    }
-    const solver::SequenceReport* sequence_data = run.report();
-    const analysis::Evaluation& evaluation = run.evaluation();
-    OutputSet outputs(arguments.output_directory);
-    outputs.add("waveforms.csv", waveform_csv(options.sample ? result.samples : result.steps));
-    outputs.add("summary.json", summary_json(circuit, result, audit, evaluation, sequence_data));
-    // Built before anything is committed, so a failure leaves no half-written set.
-    std::string report;
-    if (arguments.report) {
-      RunReportInput report_input(circuit, result, audit);
-      add_evaluation(report_input, evaluation, sequence_data);
-      report = run_report_html(report_input);
-    }
-    outputs.commit();
-    if (arguments.report) write_file_atomically(*arguments.report, report);
-    if (!arguments.quiet) {
-      std::cout << terminal_summary(circuit, result, audit);
-      std::cout << verdict_terminal(evaluation, sequence_data);
-      std::cout << fmt::format("  wrote     {} and {}\n", outputs.path("waveforms.csv").string(),
-                               outputs.path("summary.json").string());
-      if (arguments.report) std::cout << fmt::format("  report    {}\n", *arguments.report);
-    }
-    return evaluation.pass ? kExitOk : kExitLimitFailed;
-  } catch (const netlist::InputError& error) {
-    std::cerr << error.what() << "\n";
-    return kExitInputError;
-  }
+  return carry_out(arguments.quiet, [&] { return run_output(arguments); });
 }
 
 }  // namespace linkrise::app

@@ -7,6 +7,33 @@
 #include <utility>
 
 namespace linkrise::app {
+namespace {
+
+// The finite samples of [x_low, x_high] and their neighbours just outside.
+struct Window {
+  std::size_t inside = 0;
+  std::size_t before;  // last finite sample left of the range (n: none)
+  std::size_t after;   // first finite sample right of the range (n: none)
+};
+
+// One pass finds the neighbours just outside the range and the count inside.
+Window scan_window(const std::vector<double>& x, const std::vector<double>& y,
+                   std::size_t n, double x_low, double x_high) {
+  Window window{0, n, n};
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(x[i]) || !std::isfinite(y[i])) continue;
+    if (x[i] < x_low) {
+      window.before = i;
+    } else if (x[i] > x_high) {
+      if (window.after == n) window.after = i;
+    } else {
+      ++window.inside;
+    }
+  }
+  return window;
+}
+
+}  // namespace
 
 std::vector<Point> decimate_min_max(const std::vector<double>& x,
                                     const std::vector<double>& y, double x_low,
@@ -17,26 +44,13 @@ std::vector<Point> decimate_min_max(const std::vector<double>& x,
   const auto finite = [&](std::size_t i) {
     return std::isfinite(x[i]) && std::isfinite(y[i]);
   };
-  // One pass finds the neighbours just outside the range and the count inside.
-  std::size_t inside = 0;
-  std::size_t before = n;  // last finite sample left of the range
-  std::size_t after = n;   // first finite sample right of the range
-  for (std::size_t i = 0; i < n; ++i) {
-    if (!finite(i)) continue;
-    if (x[i] < x_low) {
-      before = i;
-    } else if (x[i] > x_high) {
-      if (after == n) after = i;
-    } else {
-      ++inside;
-    }
-  }
+  const Window window = scan_window(x, y, n, x_low, x_high);
   const auto kept = [&](std::size_t i) {
-    return finite(i) &&
-           ((x[i] >= x_low && x[i] <= x_high) || i == before || i == after);
+    return finite(i) && ((x[i] >= x_low && x[i] <= x_high) ||
+                         i == window.before || i == window.after);
   };
   std::vector<Point> points;
-  if (inside < 2 * static_cast<std::size_t>(columns)) {
+  if (window.inside < 2 * static_cast<std::size_t>(columns)) {
     for (std::size_t i = 0; i < n; ++i) {
       if (kept(i)) points.push_back({x[i], y[i]});
     }

@@ -11,6 +11,12 @@ nlohmann::json quantity(double value, const std::string& unit) {
   return q;
 }
 
+nlohmann::json with_file_head(nlohmann::json fields, const std::string& case_title, const std::string& case_file) {
+  fields["tool"] = {{"name", "linkrise"}, {"version", LINKRISE_VERSION}};
+  fields["case"] = {{"title", case_title}, {"file", case_file}};
+  return fields;
+}
+
 std::string json_text(const nlohmann::json& value) { return value.dump(2) + "\n"; }
 
 }  // namespace linkrise::app

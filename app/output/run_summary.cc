@@ -21,66 +21,50 @@ std::string outcome_word(solver::Outcome outcome) {
   }
   return "unknown";
 }
-}  // namespace
 
-nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result& result,
-                           const analysis::EnergyAudit& audit) {
-  nlohmann::json summary;
-  summary["tool"] = {{"name", "linkrise"}, {"version", LINKRISE_VERSION}};
-  summary["case"] = {{"title", circuit.spec().title}, {"file", circuit.spec().file}};
-  summary["outcome"] = outcome_word(result.outcome);
-  if (!result.message.empty()) summary["message"] = result.message;
-  summary["end_time"] = quantity(result.end_time, "s");
-  nlohmann::json parts = nlohmann::json::object();
-  for (int p = 0; p < circuit.part_count(); ++p) {
-    const auto& part = circuit.part(p);
-    nlohmann::json entry;
-    entry["kind"] = part.kind();
-    entry["role"] = models::role_word(part.role());
-    for (const auto& value : part.derived_values()) {
-      entry["derived"][value.name] = quantity(value.value, value.unit);
-      entry["derived"][value.name]["origin"] = value.origin;
-    }
-    int first = circuit.signal_first(p);
-    if (result.steps.row_count() > 0) {
-      entry["peak_current"] = quantity(analysis::peak_absolute(result.steps, static_cast<int>(circuit.node_names().size()) + first), "A");
-      entry["peak_power"] = quantity(analysis::peak_absolute(result.steps, static_cast<int>(circuit.node_names().size()) + first + 2), "W");
-    }
-    const auto& energy = audit.parts[p];
-    auto channels = part.power_channels();
-    if (channels.source) entry["energy_delivered"] = quantity(energy.delivered, "J");
-    if (channels.heat) entry["energy_dissipated"] = quantity(energy.dissipated, "J");
-    if (channels.load) entry["energy_to_load"] = quantity(energy.to_load, "J");
-    if (energy.stored_start != 0.0 || energy.stored_end != 0.0) {
-      entry["stored_energy_start"] = quantity(energy.stored_start, "J");
-      entry["stored_energy_end"] = quantity(energy.stored_end, "J");
-    }
-    if (analysis::is_resistive(circuit, p)) {
-      for (const auto& metric : analysis::resistive_metrics(circuit, result, audit, p).named()) {
-        entry[metric.name] = quantity(metric.value, metric.unit);
-      }
-    }
-    if (auto ratings = part.ratings(); !ratings.empty()) {
-      nlohmann::json list = nlohmann::json::object();
-      for (const auto& rating : ratings) {
-        list[rating.metric] = quantity(rating.value, rating.unit);
-        if (!rating.note.empty()) list[rating.metric]["note"] = rating.note;
-      }
-      entry["ratings"] = list;
-    }
-    parts[part.name()] = entry;
+// One part's entry: kind, peaks, energy accounts, resistive metrics and ratings.
+nlohmann::json part_summary(const solver::Circuit& circuit, const solver::Result& result,
+                            const analysis::EnergyAudit& audit, int p) {
+  const auto& part = circuit.part(p);
+  nlohmann::json entry;
+  entry["kind"] = part.kind();
+  entry["role"] = models::role_word(part.role());
+  for (const auto& value : part.derived_values()) {
+    entry["derived"][value.name] = quantity(value.value, value.unit);
+    entry["derived"][value.name]["origin"] = value.origin;
   }
-  summary["parts"] = parts;
-  summary["energy_audit"] = {
-      {"delivered_by_sources", quantity(audit.delivered, "J")},
-      {"dissipated", quantity(audit.dissipated, "J")},
-      {"taken_by_loads", quantity(audit.to_loads, "J")},
-      {"stored_change", quantity(audit.stored_change, "J")},
-      {"residual", quantity(audit.residual, "J")},
-      {"relative_residual", quantity(audit.relative_residual, "1")},
-  };
-  const auto& s = result.statistics;
-  summary["solver"] = {
+  const int first = static_cast<int>(circuit.node_names().size()) + circuit.signal_first(p);
+  if (result.steps.row_count() > 0) {
+    entry["peak_current"] = quantity(analysis::peak_absolute(result.steps, first), "A");
+    entry["peak_power"] = quantity(analysis::peak_absolute(result.steps, first + 2), "W");
+  }
+  const auto& energy = audit.parts[p];
+  auto channels = part.power_channels();
+  if (channels.source) entry["energy_delivered"] = quantity(energy.delivered, "J");
+  if (channels.heat) entry["energy_dissipated"] = quantity(energy.dissipated, "J");
+  if (channels.load) entry["energy_to_load"] = quantity(energy.to_load, "J");
+  if (energy.stored_start != 0.0 || energy.stored_end != 0.0) {
+    entry["stored_energy_start"] = quantity(energy.stored_start, "J");
+    entry["stored_energy_end"] = quantity(energy.stored_end, "J");
+  }
+  if (analysis::is_resistive(circuit, p)) {
+    for (const auto& metric : analysis::resistive_metrics(circuit, result, audit, p).named()) {
+      entry[metric.name] = quantity(metric.value, metric.unit);
+    }
+  }
+  if (auto ratings = part.ratings(); !ratings.empty()) {
+    nlohmann::json list = nlohmann::json::object();
+    for (const auto& rating : ratings) {
+      list[rating.metric] = quantity(rating.value, rating.unit);
+      if (!rating.note.empty()) list[rating.metric]["note"] = rating.note;
+    }
+    entry["ratings"] = list;
+  }
+  return entry;
+}
+
+nlohmann::json solver_summary(const solver::Statistics& s) {
+  return {
       {"method", "CVODE BDF, dense direct linear solver, analytic Jacobian"},
       {"steps", quantity(static_cast<double>(s.steps), "1")},
       {"rhs_evaluations", quantity(static_cast<double>(s.rhs_evaluations), "1")},
@@ -93,6 +77,29 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
       {"step_backs", quantity(static_cast<double>(s.step_backs), "1")},
       {"wall_time", quantity(s.wall_seconds, "s")},
   };
+}
+}  // namespace
+
+nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result& result,
+                           const analysis::EnergyAudit& audit) {
+  nlohmann::json summary = with_file_head(nlohmann::json::object(), circuit.spec().title, circuit.spec().file);
+  summary["outcome"] = outcome_word(result.outcome);
+  if (!result.message.empty()) summary["message"] = result.message;
+  summary["end_time"] = quantity(result.end_time, "s");
+  nlohmann::json parts = nlohmann::json::object();
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    parts[circuit.part(p).name()] = part_summary(circuit, result, audit, p);
+  }
+  summary["parts"] = parts;
+  summary["energy_audit"] = {
+      {"delivered_by_sources", quantity(audit.delivered, "J")},
+      {"dissipated", quantity(audit.dissipated, "J")},
+      {"taken_by_loads", quantity(audit.to_loads, "J")},
+      {"stored_change", quantity(audit.stored_change, "J")},
+      {"residual", quantity(audit.residual, "J")},
+      {"relative_residual", quantity(audit.relative_residual, "1")},
+  };
+  summary["solver"] = solver_summary(result.statistics);
   nlohmann::json timeline = nlohmann::json::array();
   for (const auto& entry : result.timeline) {
     timeline.push_back({{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}});

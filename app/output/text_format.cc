@@ -4,6 +4,9 @@
 
 #include <fmt/format.h>
 
+#include "analysis/metrics.h"
+#include "netlist/units.h"
+
 namespace linkrise::app {
 
 std::string escape_xml(std::string_view text) {
@@ -53,12 +56,15 @@ std::string escape_xml(std::string_view text) {
   return out;
 }
 
-std::string csv_text(const std::string& text) {
-  bool plain = text.find_first_of(",\"\n") == std::string::npos;
-  if (plain) return text;
+std::string csv_quoted(const std::string& text) {
   std::string out = "\"";
   for (char c : text) out += c == '"' ? std::string("\"\"") : std::string(1, c);
   return out + "\"";
+}
+
+std::string csv_text(const std::string& text) {
+  bool plain = text.find_first_of(",\"\n") == std::string::npos;
+  return plain ? text : csv_quoted(text);
 }
 
 std::string csv_number(double value) { return std::isnan(value) ? std::string() : fmt::format("{:.9g}", value); }
@@ -67,5 +73,24 @@ std::string display_unit(const std::string& unit) {
   if (unit == "degC") return "\u00B0C";
   return unit;
 }
+
+std::string display_si(double value, const std::string& unit) {
+  if (!std::isfinite(value)) return "-";
+  std::string text = netlist::format_si(value, unit);
+  if (unit == "degC") text = text.substr(0, text.size() - unit.size()) + display_unit(unit);
+  if (unit.empty() && !text.empty() && text.back() == ' ') text.pop_back();
+  return text;
+}
+
+std::string display_metric(double value, const std::string& unit) {
+  std::string text = analysis::format_metric(value, unit);
+  const std::string suffix = " degC";
+  if (text.size() > suffix.size() && text.compare(text.size() - suffix.size(), suffix.size(), suffix) == 0) {
+    text.replace(text.size() - 4, 4, display_unit("degC"));
+  }
+  return text;
+}
+
+std::string display_seconds(double value) { return display_metric(value, "s"); }
 
 }  // namespace linkrise::app

@@ -16,16 +16,10 @@ namespace linkrise::app {
 
 namespace {
 
-// A value as the analyser prints it, with "°C" for degC.
-std::string value_text(double value, const std::string& unit) {
-  if (unit == "degC" && std::isfinite(value)) return fmt::format("{:.4g} {}", value, display_unit(unit));
-  return analysis::format_metric(value, unit);
-}
-
 std::string against(double value, double rating, const std::string& unit) {
   if (std::isnan(value)) return "-";
-  if (std::isnan(rating)) return value_text(value, unit) + " (no rating)";
-  return fmt::format("{} / {}", value_text(value, unit), value_text(rating, unit));
+  if (std::isnan(rating)) return display_metric(value, unit) + " (no rating)";
+  return fmt::format("{} / {}", display_metric(value, unit), display_metric(rating, unit));
 }
 
 std::string result_word(const DetectionRow& row) {
@@ -73,7 +67,7 @@ std::string temperature_margin(const DetectionRow& row) {
 void add_overview(HtmlReport& report, const DetectionMatrix& matrix) {
   const auto& rows = matrix.rows;
   const auto applicable = std::count_if(rows.begin(), rows.end(), [](const DetectionRow& r) { return r.applicable; });
-  const auto failed = std::count_if(rows.begin(), rows.end(), [](const DetectionRow& r) { return !r.pass; });
+  const std::size_t failed = matrix.failed();
   report.section("Overview", "overview");
   if (matrix.pass()) {
     report.verdict(Tone::Pass, fmt::format("every applicable scenario ({} of {}) ended as expected with the "
@@ -111,7 +105,7 @@ void add_matrix_table(HtmlReport& report, const DetectionMatrix& matrix) {
   for (const auto& row : matrix.rows) {
     table.rows.push_back({row.scenario, row.expected, row.applicable ? row.actual : "-",
                           row.applicable ? fmt::format("{}", row.attempts) : "-",
-                          value_text(row.detection_time, "s"),
+                          display_metric(row.detection_time, "s"),
                           against(row.peak_temperature, row.temperature_rating, "degC"),
                           against(row.energy, row.energy_rating, "J"), result_word(row)});
     table.row_tones.push_back(row_tone(row));
@@ -143,8 +137,8 @@ void add_resistor_table(HtmlReport& report, const DetectionMatrix& matrix) {
   table.numeric_columns = {1, 2, 3};
   for (const auto& row : matrix.rows) {
     if (!row.applicable) continue;
-    table.rows.push_back({row.scenario, value_text(row.peak_temperature, "degC"), temperature_margin(row),
-                          value_text(row.energy, "J"), share_bar(row.energy, row.energy_rating),
+    table.rows.push_back({row.scenario, display_metric(row.peak_temperature, "degC"), temperature_margin(row),
+                          display_metric(row.energy, "J"), share_bar(row.energy, row.energy_rating),
                           row.resistor_survived ? "yes" : "NO"});
     table.row_tones.push_back(row.resistor_survived ? Tone::Plain : Tone::Fail);
   }

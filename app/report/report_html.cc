@@ -55,27 +55,6 @@ footer { margin-top: 30px; padding-top: 8px; border-top: 1px solid #d9d4c7; font
 }
 )css";
 
-std::string escape(const std::string& text) { return escape_xml(text); }
-
-// format_si with the unit shown as a person reads it ("°C" for degC).
-std::string quantity_text(double value, const std::string& unit) {
-  if (!std::isfinite(value)) return "-";
-  std::string text = netlist::format_si(value, unit);
-  if (unit == "degC") text = text.substr(0, text.size() - unit.size()) + display_unit(unit);
-  if (unit.empty() && !text.empty() && text.back() == ' ') text.pop_back();
-  return text;
-}
-
-// A metric value as the analyser formats it for people, with "°C" for degC.
-std::string metric_text(double value, const std::string& unit) {
-  std::string text = analysis::format_metric(value, unit);
-  const std::string suffix = " degC";
-  if (text.size() > suffix.size() && text.compare(text.size() - suffix.size(), suffix.size(), suffix) == 0) {
-    text.replace(text.size() - 4, 4, display_unit("degC"));
-  }
-  return text;
-}
-
 bool contains(const std::vector<int>& list, int value) {
   return std::find(list.begin(), list.end(), value) != list.end();
 }
@@ -96,19 +75,19 @@ void HtmlReport::close_section() {
 void HtmlReport::section(const std::string& heading, const std::string& id) {
   close_section();
   std::string wanted = id.empty() ? fmt::format("section-{}", contents_.size() + 1) : id;
-  body_ += fmt::format("<section id=\"{}\">\n<h2>{}</h2>\n", escape(wanted), escape(heading));
+  body_ += fmt::format("<section id=\"{}\">\n<h2>{}</h2>\n", escape_xml(wanted), escape_xml(heading));
   contents_.emplace_back(wanted, heading);
   in_section_ = true;
 }
 
-void HtmlReport::paragraph(const std::string& text) { body_ += fmt::format("<p>{}</p>\n", escape(text)); }
+void HtmlReport::paragraph(const std::string& text) { body_ += fmt::format("<p>{}</p>\n", escape_xml(text)); }
 
-void HtmlReport::note(const std::string& text) { body_ += fmt::format("<p class=\"note\">{}</p>\n", escape(text)); }
+void HtmlReport::note(const std::string& text) { body_ += fmt::format("<p class=\"note\">{}</p>\n", escape_xml(text)); }
 
 void HtmlReport::list(const std::vector<std::string>& items) {
   if (items.empty()) return;
   body_ += "<ul>\n";
-  for (const auto& item : items) body_ += fmt::format("<li>{}</li>\n", escape(item));
+  for (const auto& item : items) body_ += fmt::format("<li>{}</li>\n", escape_xml(item));
   body_ += "</ul>\n";
 }
 
@@ -116,27 +95,27 @@ void HtmlReport::facts(const std::vector<std::pair<std::string, std::string>>& i
   if (items.empty()) return;
   body_ += "<dl class=\"facts\">\n";
   for (const auto& [label, value] : items) {
-    body_ += fmt::format("<dt>{}</dt><dd>{}</dd>\n", escape(label), escape(value));
+    body_ += fmt::format("<dt>{}</dt><dd>{}</dd>\n", escape_xml(label), escape_xml(value));
   }
   body_ += "</dl>\n";
 }
 
 void HtmlReport::table(const ReportTable& table) {
-  body_ += table.id.empty() ? std::string("<table>\n") : fmt::format("<table id=\"{}\">\n", escape(table.id));
-  if (!table.caption.empty()) body_ += fmt::format("<caption>{}</caption>\n", escape(table.caption));
+  body_ += table.id.empty() ? std::string("<table>\n") : fmt::format("<table id=\"{}\">\n", escape_xml(table.id));
+  if (!table.caption.empty()) body_ += fmt::format("<caption>{}</caption>\n", escape_xml(table.caption));
   const auto cell_class = [&](int column) {
     return contains(table.numeric_columns, column) ? std::string(" class=\"number\"") : std::string();
   };
   body_ += "<thead><tr>";
   for (std::size_t c = 0; c < table.columns.size(); ++c) {
-    body_ += fmt::format("<th{}>{}</th>", cell_class(static_cast<int>(c)), escape(table.columns[c]));
+    body_ += fmt::format("<th{}>{}</th>", cell_class(static_cast<int>(c)), escape_xml(table.columns[c]));
   }
   body_ += "</tr></thead>\n<tbody>\n";
   for (std::size_t r = 0; r < table.rows.size(); ++r) {
     const Tone tone = r < table.row_tones.size() ? table.row_tones[r] : Tone::Plain;
     body_ += tone == Tone::Pass ? "<tr class=\"pass\">" : tone == Tone::Fail ? "<tr class=\"fail\">" : "<tr>";
     for (std::size_t c = 0; c < table.rows[r].size(); ++c) {
-      body_ += fmt::format("<td{}>{}</td>", cell_class(static_cast<int>(c)), escape(table.rows[r][c]));
+      body_ += fmt::format("<td{}>{}</td>", cell_class(static_cast<int>(c)), escape_xml(table.rows[r][c]));
     }
     body_ += "</tr>\n";
   }
@@ -148,25 +127,25 @@ std::string HtmlReport::next_figure_id() { return fmt::format("figure-{}", ++fig
 void HtmlReport::line_plot(PlotSpec spec, const std::string& caption) {
   if (spec.id.empty()) spec.id = next_figure_id();
   body_ += "<figure class=\"plot\">\n" + render_line_plot(spec);
-  if (!caption.empty()) body_ += fmt::format("<figcaption>{}</figcaption>\n", escape(caption));
+  if (!caption.empty()) body_ += fmt::format("<figcaption>{}</figcaption>\n", escape_xml(caption));
   body_ += "</figure>\n";
 }
 
 void HtmlReport::histogram(HistogramSpec spec, const std::string& caption) {
   if (spec.id.empty()) spec.id = next_figure_id();
   body_ += "<figure class=\"plot\">\n" + render_histogram(spec);
-  if (!caption.empty()) body_ += fmt::format("<figcaption>{}</figcaption>\n", escape(caption));
+  if (!caption.empty()) body_ += fmt::format("<figcaption>{}</figcaption>\n", escape_xml(caption));
   body_ += "</figure>\n";
 }
 
 void HtmlReport::verdict(Tone tone, const std::string& text) {
   const char* word = tone == Tone::Pass ? "PASS" : tone == Tone::Fail ? "FAIL" : "NOTE";
   const char* kind = tone == Tone::Pass ? "pass" : tone == Tone::Fail ? "fail" : "plain";
-  body_ += fmt::format("<p class=\"verdict {}\">{} \u2014 {}</p>\n", kind, word, escape(text));
+  body_ += fmt::format("<p class=\"verdict {}\">{} \u2014 {}</p>\n", kind, word, escape_xml(text));
 }
 
 void HtmlReport::caution(const std::string& text) {
-  body_ += fmt::format("<p class=\"caution\">{}</p>\n", escape(text));
+  body_ += fmt::format("<p class=\"caution\">{}</p>\n", escape_xml(text));
 }
 
 std::string HtmlReport::html() const {
@@ -177,14 +156,14 @@ std::string HtmlReport::html() const {
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
   out += fmt::format("<meta name=\"generator\" content=\"linkrise {}\"/>\n", LINKRISE_VERSION);
   out += fmt::format("<title>{}</title>\n<style>{}</style>\n</head>\n<body>\n<div class=\"page\">\n",
-                     escape(title_), style_sheet);
-  out += fmt::format("<header class=\"top\">\n<h1>{}</h1>\n", escape(title_));
-  if (!subtitle_.empty()) out += fmt::format("<p class=\"subtitle\">{}</p>\n", escape(subtitle_));
+                     escape_xml(title_), style_sheet);
+  out += fmt::format("<header class=\"top\">\n<h1>{}</h1>\n", escape_xml(title_));
+  if (!subtitle_.empty()) out += fmt::format("<p class=\"subtitle\">{}</p>\n", escape_xml(subtitle_));
   out += "</header>\n";
   if (contents_.size() > 1) {
     out += "<nav class=\"contents\">\n<span class=\"contents-title\">Contents</span>\n<ol>\n";
     for (const auto& [id, heading] : contents_) {
-      out += fmt::format("<li><a href=\"#{}\">{}</a></li>\n", escape(id), escape(heading));
+      out += fmt::format("<li><a href=\"#{}\">{}</a></li>\n", escape_xml(id), escape_xml(heading));
     }
     out += "</ol>\n</nav>\n";
   }
@@ -271,6 +250,100 @@ std::optional<double> first_closing(const solver::Waveform& waveform, const std:
   }
   return std::nullopt;
 }
+
+struct Contactor {
+  int part;
+  int current;
+  int closed;
+};
+
+// Contactors with both a current and a "closed" column in the waveform.
+std::vector<Contactor> contactor_columns(const solver::Circuit& circuit, const solver::Waveform& waveform) {
+  std::vector<Contactor> contactors;
+  for (int p = 0; p < circuit.part_count(); ++p) {
+    if (circuit.part(p).role() != models::Role::Switch) continue;
+    const std::string& name = circuit.part(p).name();
+    const int current = waveform.column(name + ".current");
+    const int closed = waveform.column(name + ".closed");
+    if (current >= 0 && closed >= 0) contactors.push_back({p, current, closed});
+  }
+  return contactors;
+}
+
+struct Closing {
+  std::size_t row;
+  const Contactor* contactor;
+};
+
+// Every closing (open -> closed between consecutive rows), in time order; `largest` gets the largest contactor
+// current of the run.
+std::vector<Closing> closings_in_order(const solver::Waveform& waveform, const std::vector<Contactor>& contactors,
+                                       double& largest) {
+  std::vector<Closing> closings;
+  largest = 0.0;
+  for (const auto& c : contactors) {
+    for (std::size_t r = 1; r < waveform.row_count(); ++r) {
+      largest = std::max(largest, std::fabs(waveform.value(r, c.current)));
+      if (waveform.value(r - 1, c.closed) < 0.5 && waveform.value(r, c.closed) >= 0.5) closings.push_back({r, &c});
+    }
+  }
+  std::stable_sort(closings.begin(), closings.end(),
+                   [](const Closing& a, const Closing& b) { return a.row < b.row; });
+  return closings;
+}
+
+// The contactor a closing bypasses: another closed contactor that conducted before the closing and carries on
+// average less than half of that current afterwards (over 1 % of the run); null when there is none. Open-contact
+// leakage (below 1e-6 of the largest contactor current) does not count as conducting.
+const Contactor* bypassed_by(const solver::Waveform& waveform, const std::vector<Contactor>& contactors,
+                             const Closing& closing, double largest) {
+  const std::size_t rows = waveform.row_count();
+  const double run_span = waveform.time(rows - 1) - waveform.time(0);
+  const double window_end = waveform.time(closing.row) + 0.01 * run_span;
+  const Contactor* bypassed = nullptr;
+  double smallest_ratio = 0.5;
+  for (const auto& c : contactors) {
+    if (&c == closing.contactor || waveform.value(closing.row - 1, c.closed) < 0.5) continue;
+    const double before = std::fabs(waveform.value(closing.row - 1, c.current));
+    if (!(before > 1e-6 * largest)) continue;
+    // Time-weighted mean, so the short pulse while the link voltage settles does not hide the bypass.
+    double area = 0.0;
+    double span = 0.0;
+    for (std::size_t r = closing.row + 1; r < rows && waveform.time(r) <= window_end; ++r) {
+      const double dt = waveform.time(r) - waveform.time(r - 1);
+      area += 0.5 * dt * (std::fabs(waveform.value(r - 1, c.current)) + std::fabs(waveform.value(r, c.current)));
+      span += dt;
+    }
+    if (!(span > 0.0)) continue;
+    const double after = area / span;
+    if (after / before < smallest_ratio) {
+      smallest_ratio = after / before;
+      bypassed = &c;
+    }
+  }
+  return bypassed;
+}
+
+// Without a main closure, the pre-charge contactor is the one whose closing made current flow: the last closing
+// before the largest contactor current.
+int precharge_without_main(const solver::Waveform& waveform, const std::vector<Contactor>& contactors,
+                           const std::vector<Closing>& closings) {
+  std::size_t peak_row = 0;
+  double peak = -1.0;
+  for (const auto& c : contactors) {
+    for (std::size_t r = 0; r < waveform.row_count(); ++r) {
+      if (std::fabs(waveform.value(r, c.current)) > peak) {
+        peak = std::fabs(waveform.value(r, c.current));
+        peak_row = r;
+      }
+    }
+  }
+  int precharge = -1;
+  for (const Closing& closing : closings) {
+    if (closing.row <= peak_row) precharge = closing.contactor->part;
+  }
+  return precharge;
+}
 }  // namespace
 
 ContactorRoles contactor_roles(const solver::Circuit& circuit, const solver::Waveform& waveform,
@@ -282,89 +355,22 @@ ContactorRoles contactor_roles(const solver::Circuit& circuit, const solver::Wav
     if (roles.main >= 0) roles.main_closed = first_closing(waveform, hints.main_contactor);
     return roles;
   }
-  struct Contactor {
-    int part;
-    int current;
-    int closed;
-  };
-  std::vector<Contactor> contactors;
-  for (int p = 0; p < circuit.part_count(); ++p) {
-    if (circuit.part(p).role() != models::Role::Switch) continue;
-    const std::string& name = circuit.part(p).name();
-    const int current = waveform.column(name + ".current");
-    const int closed = waveform.column(name + ".closed");
-    if (current >= 0 && closed >= 0) contactors.push_back({p, current, closed});
-  }
-  const std::size_t rows = waveform.row_count();
-  if (contactors.empty() || rows < 2) return roles;
-
-  // Every closing (open -> closed between consecutive rows), in time order.
-  struct Closing {
-    std::size_t row;
-    const Contactor* contactor;
-  };
-  std::vector<Closing> closings;
+  const std::vector<Contactor> contactors = contactor_columns(circuit, waveform);
+  if (contactors.empty() || waveform.row_count() < 2) return roles;
   double largest = 0.0;
-  for (const auto& c : contactors) {
-    for (std::size_t r = 1; r < rows; ++r) {
-      largest = std::max(largest, std::fabs(waveform.value(r, c.current)));
-      if (waveform.value(r - 1, c.closed) < 0.5 && waveform.value(r, c.closed) >= 0.5) closings.push_back({r, &c});
-    }
-  }
-  std::stable_sort(closings.begin(), closings.end(),
-                   [](const Closing& a, const Closing& b) { return a.row < b.row; });
+  const std::vector<Closing> closings = closings_in_order(waveform, contactors, largest);
   if (closings.empty()) return roles;
-
-  // The main contactor bypasses the pre-charge path: another closed contactor that conducted before the
-  // closing carries on average less than half of that current afterwards (over 1 % of the run). Open-contact leakage
-  // (below 1e-6 of the largest contactor current) does not count as conducting.
-  const double run_span = waveform.time(rows - 1) - waveform.time(0);
+  // The main contactor is the first whose closing bypasses another one: the pre-charge path.
   for (const Closing& closing : closings) {
-    const double window_end = waveform.time(closing.row) + 0.01 * run_span;
-    const Contactor* bypassed = nullptr;
-    double smallest_ratio = 0.5;
-    for (const auto& c : contactors) {
-      if (&c == closing.contactor || waveform.value(closing.row - 1, c.closed) < 0.5) continue;
-      const double before = std::fabs(waveform.value(closing.row - 1, c.current));
-      if (!(before > 1e-6 * largest)) continue;
-      // Time-weighted mean, so the short pulse while the link voltage settles does not hide the bypass.
-      double area = 0.0;
-      double span = 0.0;
-      for (std::size_t r = closing.row + 1; r < rows && waveform.time(r) <= window_end; ++r) {
-        const double dt = waveform.time(r) - waveform.time(r - 1);
-        area += 0.5 * dt * (std::fabs(waveform.value(r - 1, c.current)) + std::fabs(waveform.value(r, c.current)));
-        span += dt;
-      }
-      if (!(span > 0.0)) continue;
-      const double after = area / span;
-      if (after / before < smallest_ratio) {
-        smallest_ratio = after / before;
-        bypassed = &c;
-      }
-    }
-    if (bypassed != nullptr) {
+    if (const Contactor* bypassed = bypassed_by(waveform, contactors, closing, largest)) {
       roles.main = closing.contactor->part;
       roles.precharge = bypassed->part;
       roles.main_closed = waveform.time(closing.row);
       return roles;
     }
   }
-
-  // No closing bypassed anything (the run ends before main closure): the pre-charge contactor is the one whose
-  // closing made current flow: the last closing before the largest contactor current.
-  std::size_t peak_row = 0;
-  double peak = -1.0;
-  for (const auto& c : contactors) {
-    for (std::size_t r = 0; r < rows; ++r) {
-      if (std::fabs(waveform.value(r, c.current)) > peak) {
-        peak = std::fabs(waveform.value(r, c.current));
-        peak_row = r;
-      }
-    }
-  }
-  for (const Closing& closing : closings) {
-    if (closing.row <= peak_row) roles.precharge = closing.contactor->part;
-  }
+  // No closing bypassed anything (the run ends before main closure).
+  roles.precharge = precharge_without_main(waveform, contactors, closings);
   return roles;
 }
 
@@ -484,7 +490,7 @@ void add_overview(HtmlReport& report, const RunReportInput& input, const SensedV
   }
   std::vector<std::pair<std::string, std::string>> facts = {
       {"case file", input.circuit.spec().file},
-      {"outcome", fmt::format("{} at t = {}", outcome_text(result), quantity_text(result.end_time, "s"))},
+      {"outcome", fmt::format("{} at t = {}", outcome_text(result), display_si(result.end_time, "s"))},
       {"parts", fmt::format("{}", input.circuit.part_count())},
       {"solver", fmt::format("CVODE BDF, {} steps, {} events, rtol {:g}", result.statistics.steps,
                              result.statistics.events, input.circuit.spec().run.relative_tolerance)},
@@ -513,7 +519,7 @@ void add_timeline(HtmlReport& report, const solver::Result& result) {
   table.numeric_columns = {0, 1};
   for (std::size_t i = 0; i < result.timeline.size(); ++i) {
     const auto& entry = result.timeline[i];
-    table.rows.push_back({fmt::format("{}", i + 1), quantity_text(entry.time, "s"), entry.event, entry.reason});
+    table.rows.push_back({fmt::format("{}", i + 1), display_si(entry.time, "s"), entry.event, entry.reason});
   }
   report.table(table);
 }
@@ -536,12 +542,12 @@ void add_voltage_plot(HtmlReport& report, const RunReportInput& input, const Sen
     for (double& v : level) v = hints.closing_ratio ? *hints.closing_ratio * v : v - *hints.closing_difference;
     const std::string name = hints.closing_ratio
                                  ? fmt::format("closing level ({:g} % of pack)", 100.0 * *hints.closing_ratio)
-                                 : "closing level (pack − " + quantity_text(*hints.closing_difference, "V") + ")";
+                                 : "closing level (pack − " + display_si(*hints.closing_difference, "V") + ")";
     plot.series.push_back(make_series(name, waveform.times(), level));
   }
   if (input.closing_threshold) {
     plot.reference_lines.push_back({*input.closing_threshold,
-                                    "closing threshold " + quantity_text(*input.closing_threshold, "V")});
+                                    "closing threshold " + display_si(*input.closing_threshold, "V")});
     caption += " The dash-dot horizontal line is the closing threshold.";
   }
   if (plot.series.empty()) {
@@ -583,8 +589,8 @@ void add_current_plots(HtmlReport& report, const RunReportInput& input, const so
   zoom.x_range = closure_window(waveform, main_column, *roles.main_closed);
   const std::vector<double> main_current = waveform.series(main_column);
   report.line_plot(zoom, fmt::format("Main closure at t = {}; peak main current {}.",
-                                     quantity_text(*roles.main_closed, "s"),
-                                     quantity_text(peak_abs(main_current), "A")));
+                                     display_si(*roles.main_closed, "s"),
+                                     display_si(peak_abs(main_current), "A")));
 }
 
 void add_resistor_plots(HtmlReport& report, const RunReportInput& input, const solver::Waveform& waveform) {
@@ -600,8 +606,8 @@ void add_resistor_plots(HtmlReport& report, const RunReportInput& input, const s
     if (power_column >= 0) {
       power.series.push_back(column_series(waveform, power_column, name));
       notes.push_back(fmt::format("{}: peak {}, heat {}", name,
-                                  quantity_text(peak_abs(power.series.back().y), "W"),
-                                  quantity_text(input.audit.parts[p].dissipated, "J")));
+                                  display_si(peak_abs(power.series.back().y), "W"),
+                                  display_si(input.audit.parts[p].dissipated, "J")));
     }
     const int temperature_column = waveform.column(name + ".temperature");
     if (temperature_column >= 0) {
@@ -618,7 +624,7 @@ void add_resistor_plots(HtmlReport& report, const RunReportInput& input, const s
     for (const auto& s : temperature.series) {
       double hottest = -std::numeric_limits<double>::infinity();
       for (double v : s.y) hottest = std::max(hottest, v);
-      peaks.push_back(fmt::format("{}: peak {}", s.name, quantity_text(hottest, temperature.y_unit)));
+      peaks.push_back(fmt::format("{}: peak {}", s.name, display_si(hottest, temperature.y_unit)));
     }
     report.line_plot(temperature, fmt::format("Temperature of the resistive element ({}).", fmt::join(peaks, "; ")));
   } else {
@@ -642,8 +648,8 @@ void add_limits(HtmlReport& report, const RunReportInput& input) {
     table.numeric_columns = {1, 3};
     for (const auto& row : assessment.rows) {
       const std::string result = !row.judged ? "not judged" : row.pass ? "pass" : "FAIL";
-      table.rows.push_back({row.metric, metric_text(row.value, row.unit), row.bound,
-                            row.judged ? metric_text(row.margin, row.unit) : "-", row.source, result});
+      table.rows.push_back({row.metric, display_metric(row.value, row.unit), row.bound,
+                            row.judged ? display_metric(row.margin, row.unit) : "-", row.source, result});
       table.row_tones.push_back(!row.judged ? Tone::Plain : row.pass ? Tone::Pass : Tone::Fail);
     }
     report.table(table);
@@ -657,7 +663,7 @@ void add_limits(HtmlReport& report, const RunReportInput& input) {
     metrics.columns = {"metric", "value", "definition"};
     metrics.numeric_columns = {1};
     for (const auto& metric : assessment.metrics) {
-      metrics.rows.push_back({metric.name, metric_text(metric.value, metric.unit), metric.definition});
+      metrics.rows.push_back({metric.name, display_metric(metric.value, metric.unit), metric.definition});
     }
     report.table(metrics);
   }
@@ -674,11 +680,11 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
   totals.columns = {"term", "energy"};
   totals.numeric_columns = {1};
   totals.rows = {
-      {"delivered by sources", quantity_text(audit.delivered, "J")},
-      {"dissipated as heat", quantity_text(audit.dissipated, "J")},
-      {"taken by loads", quantity_text(audit.to_loads, "J")},
-      {"change of stored energy", quantity_text(audit.stored_change, "J")},
-      {"residual", quantity_text(audit.residual, "J")},
+      {"delivered by sources", display_si(audit.delivered, "J")},
+      {"dissipated as heat", display_si(audit.dissipated, "J")},
+      {"taken by loads", display_si(audit.to_loads, "J")},
+      {"change of stored energy", display_si(audit.stored_change, "J")},
+      {"residual", display_si(audit.residual, "J")},
       {"residual relative to the largest term", fmt::format("{:.2e}", audit.relative_residual)},
   };
   report.table(totals);
@@ -698,12 +704,12 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
     const int power = waveform.column(part.name() + ".power");
     parts.rows.push_back({
         part.name(), part.kind(),
-        current >= 0 ? quantity_text(peak_abs(waveform.series(current)), "A") : "-",
-        power >= 0 ? quantity_text(peak_abs(waveform.series(power)), "W") : "-",
-        channels.heat ? quantity_text(energy.dissipated, "J") : "-",
-        channels.source ? quantity_text(energy.delivered, "J") : "-",
-        channels.load ? quantity_text(energy.to_load, "J") : "-",
-        energy.stored_start != 0.0 || energy.stored_end != 0.0 ? quantity_text(energy.stored_end, "J") : "-",
+        current >= 0 ? display_si(peak_abs(waveform.series(current)), "A") : "-",
+        power >= 0 ? display_si(peak_abs(waveform.series(power)), "W") : "-",
+        channels.heat ? display_si(energy.dissipated, "J") : "-",
+        channels.source ? display_si(energy.delivered, "J") : "-",
+        channels.load ? display_si(energy.to_load, "J") : "-",
+        energy.stored_start != 0.0 || energy.stored_end != 0.0 ? display_si(energy.stored_end, "J") : "-",
     });
   }
   report.table(parts);
@@ -715,7 +721,7 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
   derived.numeric_columns = {2};
   for (int p = 0; p < circuit.part_count(); ++p) {
     for (const auto& value : circuit.part(p).derived_values()) {
-      derived.rows.push_back({circuit.part(p).name(), value.name, quantity_text(value.value, value.unit), value.origin});
+      derived.rows.push_back({circuit.part(p).name(), value.name, display_si(value.value, value.unit), value.origin});
     }
   }
   if (!derived.rows.empty()) report.table(derived);
@@ -733,7 +739,7 @@ void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluatio
     row.metric = limit.metric;
     row.value = limit.value;
     row.unit = limit.unit;
-    row.bound = (limit.bound == analysis::BoundSide::Minimum ? "\u2265 " : "\u2264 ") + metric_text(limit.limit, limit.unit);
+    row.bound = (limit.bound == analysis::BoundSide::Minimum ? "\u2265 " : "\u2264 ") + display_metric(limit.limit, limit.unit);
     if (limit.required_margin > 0.0) row.bound += fmt::format(" with {:g} % margin", 100.0 * limit.required_margin);
     row.margin = limit.margin;
     row.pass = limit.pass;

@@ -18,35 +18,12 @@ namespace linkrise::app {
 
 namespace {
 
-// A metric value as the terminal tables print it, with "°C" for degC.
-std::string value_text(double value, const std::string& unit) {
-  if (unit == "degC" && std::isfinite(value)) return fmt::format("{:.4g} {}", value, display_unit(unit));
-  return analysis::format_metric(value, unit);
-}
-
-std::string verdict_word(const PointResult& point) {
-  return point.evaluated() ? point.verdict : status_word(point.status);
-}
-
-bool passed(const PointResult& point) { return point.evaluated() && point.verdict == "pass"; }
-
-Tone tone_of(const PointResult& point) { return passed(point) ? Tone::Pass : Tone::Fail; }
+Tone tone_of(const PointResult& point) { return point.passed() ? Tone::Pass : Tone::Fail; }
 
 // "3 closed, 1 timeout" in order of first appearance.
 std::string outcome_counts(const StudyResults& results) {
-  std::vector<std::pair<std::string, std::size_t>> counts;
-  for (const auto& point : results.points) {
-    const std::string word = point.evaluated() ? point.outcome : status_word(point.status);
-    auto it = std::find_if(counts.begin(), counts.end(), [&](const auto& entry) { return entry.first == word; });
-    if (it == counts.end()) {
-      counts.emplace_back(word, 1);
-    } else {
-      ++it->second;
-    }
-  }
-  std::string text;
-  for (const auto& [word, count] : counts) text += fmt::format("{}{} {}", text.empty() ? "" : ", ", count, word);
-  return text.empty() ? "none" : text;
+  const std::string counts = results.outcome_counts();
+  return counts.empty() ? "none" : counts;
 }
 
 void add_safety(HtmlReport& report) {
@@ -70,7 +47,7 @@ void add_compare_overview(HtmlReport& report, const VariantComparison& compariso
   report.section("Overview", "overview");
   std::vector<std::string> failing;
   for (std::size_t i = 0; i < points.size(); ++i) {
-    if (!passed(points[i])) failing.push_back(fmt::format("{} ({})", variant_label(comparison, i), verdict_word(points[i])));
+    if (!points[i].passed()) failing.push_back(fmt::format("{} ({})", variant_label(comparison, i), points[i].verdict_word()));
   }
   if (failing.empty()) {
     report.verdict(Tone::Pass, fmt::format("every variant ({} including the nominal case) passed its limits", points.size()));
@@ -96,7 +73,7 @@ void add_variant_verdicts(HtmlReport& report, const VariantComparison& compariso
   for (std::size_t i = 0; i < points.size(); ++i) {
     const std::string note = i < comparison.notes.size() ? comparison.notes[i] : "";
     table.rows.push_back({variant_label(comparison, i), note, points[i].evaluated() ? points[i].outcome : "-",
-                          passed(points[i]) ? "PASS" : "FAIL: " + verdict_word(points[i])});
+                          points[i].passed() ? "PASS" : "FAIL: " + points[i].verdict_word()});
     table.row_tones.push_back(tone_of(points[i]));
   }
   report.table(table);
@@ -129,7 +106,7 @@ void add_comparison_table(HtmlReport& report, const VariantComparison& compariso
       const double value = c < results.points[i].values.size() ? results.points[i].values[c] : std::nan("");
       const bool marked = std::find(best.begin(), best.end(), i) != best.end();
       // A no-break space keeps the mark beside its value.
-      row.push_back(value_text(value, column.unit) + (marked ? "\u00a0best" : ""));
+      row.push_back(display_metric(value, column.unit) + (marked ? "\u00a0best" : ""));
       if (marked) best_names += (best_names.empty() ? "" : ", ") + variant_label(comparison, i);
     }
     row.push_back(best_names.empty() ? "-" : best_names);
@@ -138,7 +115,7 @@ void add_comparison_table(HtmlReport& report, const VariantComparison& compariso
   std::vector<std::string> outcome{"outcome", ""}, verdict{"verdict", ""};
   for (const auto& point : results.points) {
     outcome.push_back(point.evaluated() ? point.outcome : "-");
-    verdict.push_back(passed(point) ? "PASS" : "FAIL: " + verdict_word(point));
+    verdict.push_back(point.passed() ? "PASS" : "FAIL: " + point.verdict_word());
   }
   outcome.push_back("");
   verdict.push_back("");
@@ -211,7 +188,7 @@ void add_statistics(HtmlReport& report, const Spread& spread, const std::vector<
     if (c < 0) continue;
     const auto column = static_cast<std::size_t>(c);
     const MetricSpread& s = spread.statistics[column];
-    auto f = [&](double v) { return value_text(v, s.unit); };
+    auto f = [&](double v) { return display_metric(v, s.unit); };
     table.rows.push_back({name, f(nominal_value(spread, column)), f(s.minimum), f(s.p0_1), f(s.p1), f(s.p50), f(s.p99),
                           f(s.p99_9), f(s.maximum), fmt::format("{} of {}", s.reached, spread.results.points.size())});
     if (s.worst >= 0) {
@@ -251,8 +228,8 @@ void add_histograms(HtmlReport& report, const Spread& spread, const std::vector<
     if (std::isfinite(nominal)) histogram.markers.push_back({nominal, "nominal"});
     report.histogram(std::move(histogram),
                      fmt::format("{}: {} of {} {}s reached it; nominal {}, p50 {}, max {}", name, s.reached,
-                                 spread.results.points.size(), sample_word(spread), value_text(nominal, s.unit),
-                                 value_text(s.p50, s.unit), value_text(s.maximum, s.unit)));
+                                 spread.results.points.size(), sample_word(spread), display_metric(nominal, s.unit),
+                                 display_metric(s.p50, s.unit), display_metric(s.maximum, s.unit)));
   }
 }
 
@@ -274,12 +251,11 @@ void add_spread_body(HtmlReport& report, const Spread& spread, const std::vector
   add_not_evaluated(report, spread);
 }
 
-std::string seconds(double value) { return analysis::format_metric(value, "s"); }
-
 std::string extreme_text(const Spread& spread, long point, double value) {
   if (point < 0) return "-";
   const auto p = static_cast<std::size_t>(point);
-  return fmt::format("{} ({} {}: {})", seconds(value), sample_word(spread), spread.index(p), sample_parameters(spread, p));
+  return fmt::format("{} ({} {}: {})", display_seconds(value), sample_word(spread), spread.index(p),
+                     sample_parameters(spread, p));
 }
 
 void add_window_overview(HtmlReport& report, const FaultWindow& window, const Spread& spread) {
@@ -287,7 +263,8 @@ void add_window_overview(HtmlReport& report, const FaultWindow& window, const Sp
   if (window.verified()) {
     report.verdict(Tone::Pass, fmt::format("window VERIFIED: minimum time {} and timeout {} close every {} of the "
                                            "spread and catch every fault scenario as expected",
-                                           seconds(window.minimum_time), seconds(window.timeout), sample_word(spread)));
+                                           display_seconds(window.minimum_time), display_seconds(window.timeout),
+                                           sample_word(spread)));
   } else {
     std::vector<std::string> reasons = window.problems;
     for (std::size_t i = 0; i < window.extreme_outcomes.size(); ++i) {
@@ -310,11 +287,13 @@ void add_window_overview(HtmlReport& report, const FaultWindow& window, const Sp
                 {"fastest to the closing level", extreme_text(spread, window.fastest_point, window.fastest)},
                 {"slowest decision to close", extreme_text(spread, window.slowest_point, window.slowest)},
                 {"margin", fmt::format("{:g} %", window.margin * 100.0)},
-                {"BMS sample period", seconds(window.sample_period)},
+                {"BMS sample period", display_seconds(window.sample_period)},
                 {"recommended minimum time",
-                 fmt::format("{} (the case has {})", seconds(window.minimum_time), seconds(window.case_minimum_time))},
+                 fmt::format("{} (the case has {})", display_seconds(window.minimum_time),
+                             display_seconds(window.case_minimum_time))},
                 {"recommended timeout",
-                 fmt::format("{} (the case has {})", seconds(window.timeout), seconds(window.case_timeout))}});
+                 fmt::format("{} (the case has {})", display_seconds(window.timeout),
+                             display_seconds(window.case_timeout))}});
   if (!window.problems.empty()) {
     report.paragraph("Problems:");
     report.list(window.problems);
@@ -359,9 +338,9 @@ void add_window_histograms(HtmlReport& report, const FaultWindow& window, const 
   mark_window(threshold, window);
   mark_window(decision, window);
   report.histogram(std::move(threshold), fmt::format("Time to the closing level of the {} {}s that closed; fastest {}",
-                                                     window.closed, sample_word(spread), seconds(window.fastest)));
+                                                     window.closed, sample_word(spread), display_seconds(window.fastest)));
   report.histogram(std::move(decision), fmt::format("Decision to close of the {} {}s that closed; slowest {}",
-                                                    window.closed, sample_word(spread), seconds(window.slowest)));
+                                                    window.closed, sample_word(spread), display_seconds(window.slowest)));
 }
 
 void add_window_verification(HtmlReport& report, const FaultWindow& window, const Spread& spread) {
@@ -389,7 +368,7 @@ void add_window_verification(HtmlReport& report, const FaultWindow& window, cons
       table.row_tones.push_back(Tone::Plain);
       continue;
     }
-    table.rows.push_back({"scenario " + row.scenario, row.expected, row.actual, seconds(row.detection_time),
+    table.rows.push_back({"scenario " + row.scenario, row.expected, row.actual, display_seconds(row.detection_time),
                           row.pass ? "PASS" : "FAIL"});
     table.row_tones.push_back(row.pass ? Tone::Pass : Tone::Fail);
   }
@@ -425,7 +404,7 @@ void add_sweep_overview(HtmlReport& report, const Sweep& sweep) {
   report.section("Overview", "overview");
   std::vector<std::string> failing;
   for (std::size_t i = 0; i < points.size(); ++i) {
-    if (!passed(points[i])) failing.push_back(fmt::format("{}", i + 1));
+    if (!points[i].passed()) failing.push_back(fmt::format("{}", i + 1));
   }
   if (failing.empty()) {
     report.verdict(Tone::Pass, fmt::format("every point ({}) passed its limits", points.size()));
@@ -519,11 +498,11 @@ void add_sweep_table(HtmlReport& report, const Sweep& sweep, const std::vector<s
       row.push_back(display_text(sweep.parameters[p].values[sweep.points[i][p]]));
     }
     for (int c : shown) {
-      row.push_back(value_text(sweep.results.value(i, sweep.results.columns[static_cast<std::size_t>(c)].name),
+      row.push_back(display_metric(sweep.results.value(i, sweep.results.columns[static_cast<std::size_t>(c)].name),
                                sweep.results.columns[static_cast<std::size_t>(c)].unit));
     }
     row.push_back(point.evaluated() ? point.outcome : "-");
-    row.push_back(passed(point) ? "PASS" : "FAIL: " + verdict_word(point));
+    row.push_back(point.passed() ? "PASS" : "FAIL: " + point.verdict_word());
     table.rows.push_back(std::move(row));
     table.row_tones.push_back(tone_of(point));
   }

@@ -374,30 +374,13 @@ std::string fit_text(const std::string& text, double font_size, double width) {
   return out + "\u2026";
 }
 
-void vertical_markers(std::string& out, const PlotArea& area,
-                      const AxisMap& x_map, const std::vector<Marker>& markers) {
-  const double low = std::min(x_map.data_low, x_map.data_high);
-  const double high = std::max(x_map.data_low, x_map.data_high);
-  struct Placed {
-    double pixel;
-    std::string label;
-  };
-  std::vector<Placed> placed;
-  for (const Marker& marker : markers) {
-    if (!std::isfinite(marker.value) || marker.value < low ||
-        marker.value > high) {
-      continue;
-    }
-    placed.push_back({x_map.to_pixel(marker.value), marker.label});
-  }
-  std::stable_sort(placed.begin(), placed.end(),
-                   [](const Placed& a, const Placed& b) { return a.pixel < b.pixel; });
-  for (const Placed& marker : placed) {
-    out += fmt::format(
-        "<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\" stroke=\"{3}\" "
-        "stroke-width=\"1.2\" stroke-dasharray=\"3 3\"/>\n",
-        coord(marker.pixel), coord(area.top), coord(area.bottom), marker_colour);
-  }
+struct PlacedMarker {
+  double pixel;
+  std::string label;
+};
+
+void grouped_marker_labels(std::string& out, const PlotArea& area,
+                           const std::vector<PlacedMarker>& placed) {
   // Markers closer than a label's height share one label (events 1 ms apart
   // on a 500 ms axis): the first one's text and how many more the group
   // holds, e.g. "close k_pre +2", placed at the group's first line.
@@ -435,6 +418,29 @@ void vertical_markers(std::string& out, const PlotArea& area,
     }
     first = last + 1;
   }
+}
+
+void vertical_markers(std::string& out, const PlotArea& area,
+                      const AxisMap& x_map, const std::vector<Marker>& markers) {
+  const double low = std::min(x_map.data_low, x_map.data_high);
+  const double high = std::max(x_map.data_low, x_map.data_high);
+  std::vector<PlacedMarker> placed;
+  for (const Marker& marker : markers) {
+    if (!std::isfinite(marker.value) || marker.value < low ||
+        marker.value > high) {
+      continue;
+    }
+    placed.push_back({x_map.to_pixel(marker.value), marker.label});
+  }
+  std::stable_sort(placed.begin(), placed.end(),
+                   [](const PlacedMarker& a, const PlacedMarker& b) { return a.pixel < b.pixel; });
+  for (const PlacedMarker& marker : placed) {
+    out += fmt::format(
+        "<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\" stroke=\"{3}\" "
+        "stroke-width=\"1.2\" stroke-dasharray=\"3 3\"/>\n",
+        coord(marker.pixel), coord(area.top), coord(area.bottom), marker_colour);
+  }
+  grouped_marker_labels(out, area, placed);
 }
 
 void shaded_bands(std::string& out, const PlotArea& area, const AxisMap& x_map,
@@ -477,6 +483,238 @@ std::vector<LegendEntry> layout_legend(const std::vector<Series>& series,
     x += entry_width;
   }
   return entries;
+}
+
+// The histogram, piece by piece (render_histogram composes them).
+
+// Markers and bands widen the x extent so a window outside the data shows.
+Range histogram_x_extent(const HistogramSpec& spec,
+                         const std::vector<double>& edges) {
+  double x_low = edges.front();
+  double x_high = edges.back();
+  for (const Marker& marker : spec.markers) {
+    if (!std::isfinite(marker.value)) continue;
+    x_low = std::min(x_low, marker.value);
+    x_high = std::max(x_high, marker.value);
+  }
+  for (const Band& band : spec.bands) {
+    if (!std::isfinite(band.low) || !std::isfinite(band.high)) continue;
+    x_low = std::min({x_low, band.low, band.high});
+    x_high = std::max({x_high, band.low, band.high});
+  }
+  return {x_low, x_high};
+}
+
+// Count axis: whole-number ticks only, up to `high`.
+struct CountAxis {
+  AxisTicks ticks;
+  double high = 1.0;
+};
+
+CountAxis count_axis(int largest, int height) {
+  const double estimated_plot_height = height - 34.0 - 44.0;
+  const int y_target =
+      std::max(3, static_cast<int>(estimated_plot_height / 45.0));
+  std::vector<double> rounded =
+      nice_ticks(0.0, std::max(largest, 1), y_target);
+  if (rounded.size() >= 2 && rounded[1] - rounded[0] < 1.0) {
+    rounded.clear();
+    for (int k = 0; k <= std::max(largest, 1); ++k) rounded.push_back(k);
+  }
+  AxisTicks y_axis = inner_ticks(0.0, rounded.back(), y_target, "");
+  if (y_axis.step < 1.0) {
+    y_axis.values = rounded;
+    y_axis.step = 1.0;
+    y_axis.labels.clear();
+    for (double t : rounded) y_axis.labels.push_back(si_label(t, 1.0, ""));
+  }
+  return {y_axis, rounded.back()};
+}
+
+void histogram_bars(std::string& out, const std::string& id,
+                    const std::vector<int>& counts,
+                    const std::vector<double>& edges, const PlotArea& area,
+                    const AxisMap& x_map, const AxisMap& y_map) {
+  out += fmt::format(
+      "<g clip-path=\"url(#{}-clip)\" fill=\"{}\" stroke=\"{}\" "
+      "stroke-width=\"0.8\">\n",
+      id, bar_fill_colour, bar_stroke_colour);
+  for (std::size_t bin = 0; bin < counts.size(); ++bin) {
+    if (counts[bin] == 0) continue;
+    const double left = x_map.to_pixel(edges[bin]);
+    const double right = x_map.to_pixel(edges[bin + 1]);
+    const double top = y_map.to_pixel(counts[bin]);
+    out += fmt::format(
+        "<rect data-count=\"{}\" x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>\n",
+        counts[bin], coord(left), coord(top), coord(right - left),
+        coord(area.bottom - top));
+  }
+  out += "</g>\n";
+}
+
+// The line plot, piece by piece (render_line_plot composes them).
+
+// An extent to draw: [0, 1] when nothing was found, round ticks around a
+// single value.
+Range non_empty(double low, double high) {
+  if (!(low <= high)) return {0.0, 1.0};
+  if (low == high) {
+    const std::vector<double> widened = nice_ticks(low, high, 3);
+    return {widened.front(), widened.back()};
+  }
+  return {low, high};
+}
+
+// X extent: the zoom range if given, else the finite data extent; never empty.
+Range line_plot_x_extent(const PlotSpec& spec) {
+  double x_low = std::numeric_limits<double>::infinity();
+  double x_high = -std::numeric_limits<double>::infinity();
+  if (spec.x_range && std::isfinite(spec.x_range->low) &&
+      std::isfinite(spec.x_range->high)) {
+    x_low = std::min(spec.x_range->low, spec.x_range->high);
+    x_high = std::max(spec.x_range->low, spec.x_range->high);
+  } else {
+    for (const Series& s : spec.series) {
+      const std::size_t n = std::min(s.x.size(), s.y.size());
+      for (std::size_t i = 0; i < n; ++i) {
+        if (!std::isfinite(s.x[i]) || !std::isfinite(s.y[i])) continue;
+        x_low = std::min(x_low, s.x[i]);
+        x_high = std::max(x_high, s.x[i]);
+      }
+    }
+  }
+  return non_empty(x_low, x_high);
+}
+
+// Y extent: the zoom range if given, else the samples visible in `x` and the
+// reference lines plus a margin.
+Range line_plot_y_extent(const PlotSpec& spec, const Range& x) {
+  if (spec.y_range && std::isfinite(spec.y_range->low) &&
+      std::isfinite(spec.y_range->high) &&
+      spec.y_range->low != spec.y_range->high) {
+    return {std::min(spec.y_range->low, spec.y_range->high),
+            std::max(spec.y_range->low, spec.y_range->high)};
+  }
+  double data_low = std::numeric_limits<double>::infinity();
+  double data_high = -std::numeric_limits<double>::infinity();
+  for (const Series& s : spec.series) {
+    const std::size_t n = std::min(s.x.size(), s.y.size());
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!std::isfinite(s.x[i]) || !std::isfinite(s.y[i])) continue;
+      if (s.x[i] < x.low || s.x[i] > x.high) continue;
+      data_low = std::min(data_low, s.y[i]);
+      data_high = std::max(data_high, s.y[i]);
+    }
+  }
+  for (const ReferenceLine& line : spec.reference_lines) {
+    if (!std::isfinite(line.value)) continue;
+    data_low = std::min(data_low, line.value);
+    data_high = std::max(data_high, line.value);
+  }
+  const Range data = non_empty(data_low, data_high);
+  // A small margin instead of rounding out to whole ticks: data just past
+  // a tick (ringing to 402 V on a 400 V link) must not add a whole step.
+  const double margin = 0.04 * (data.high - data.low);
+  return {data.low - margin, data.high + margin};
+}
+
+// A series' stroke: its own dash and width, else those of its index.
+struct SeriesStyle {
+  const char* colour;
+  std::string dash;
+  double stroke;
+};
+
+SeriesStyle series_style(const Series& s, std::size_t index) {
+  const std::size_t style = index % series_colours.size();
+  return {series_colours[style],
+          s.dash.empty() ? std::string(series_dashes[style]) : s.dash,
+          s.stroke_width > 0.0 ? s.stroke_width : series_widths[style]};
+}
+
+// One series as a polyline (a dot when one point remains), decimated to the
+// plot's pixel columns.
+void series_path(std::string& out, const Series& s, std::size_t index,
+                 const AxisMap& x_map, const AxisMap& y_map, int columns) {
+  const SeriesStyle style = series_style(s, index);
+  const std::vector<Point> points = decimate_min_max(
+      s.x, s.y, x_map.data_low, x_map.data_high, columns);
+  if (points.size() == 1) {
+    out += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"{}\" fill=\"{}\"/>\n",
+                       coord(x_map.to_pixel(points[0].x)),
+                       coord(y_map.to_pixel(points[0].y)),
+                       coord(style.stroke * 1.5), style.colour);
+    return;
+  }
+  if (points.empty()) return;
+  std::string coordinates;
+  coordinates.reserve(points.size() * 16);
+  for (std::size_t i = 0; i < points.size(); ++i) {
+    if (i > 0) coordinates += ' ';
+    coordinates += coord(x_map.to_pixel(points[i].x));
+    coordinates += ',';
+    coordinates += coord(y_map.to_pixel(points[i].y));
+  }
+  out += fmt::format(
+      "<polyline data-series=\"{}\" stroke=\"{}\" stroke-width=\"{}\" "
+      "stroke-dasharray=\"{}\" stroke-linejoin=\"round\" points=\"{}\"/>\n",
+      escape_xml(s.name), style.colour, coord(style.stroke),
+      escape_xml(style.dash), coordinates);
+}
+
+// Reference lines and series, clipped to the plot area.
+void clipped_content(std::string& out, const std::string& id,
+                     const PlotSpec& spec, const PlotArea& area,
+                     const AxisMap& x_map, const AxisMap& y_map) {
+  const int columns = std::max(1, static_cast<int>(std::lround(area.width())));
+  out += fmt::format("<g clip-path=\"url(#{}-clip)\" fill=\"none\">\n", id);
+  for (const ReferenceLine& line : spec.reference_lines) {
+    if (!std::isfinite(line.value)) continue;
+    const std::string py = coord(y_map.to_pixel(line.value));
+    out += fmt::format(
+        "<line x1=\"{1}\" y1=\"{0}\" x2=\"{2}\" y2=\"{0}\" stroke=\"{3}\" "
+        "stroke-width=\"1.2\" stroke-dasharray=\"8 3 1 3\"/>\n",
+        py, coord(area.left), coord(area.right), reference_colour);
+  }
+  for (std::size_t index = 0; index < spec.series.size(); ++index) {
+    series_path(out, spec.series[index], index, x_map, y_map, columns);
+  }
+  out += "</g>\n";
+}
+
+// Reference labels sit above their line at the right end, inside the area.
+void reference_labels(std::string& out, const PlotSpec& spec,
+                      const PlotArea& area, const AxisMap& y_map) {
+  const double low = std::min(y_map.data_low, y_map.data_high);
+  const double high = std::max(y_map.data_low, y_map.data_high);
+  for (const ReferenceLine& line : spec.reference_lines) {
+    if (!std::isfinite(line.value) || line.label.empty()) continue;
+    if (line.value < low || line.value > high) continue;
+    text_element(out, area.right - 4.0, y_map.to_pixel(line.value) - 4.0,
+                 "end", note_font, reference_colour, line.label, halo);
+  }
+}
+
+// Space below the plot area for the x tick labels and the axis title.
+constexpr double below_axis = tick_length + tick_font + 4.0 + label_font + 10.0;
+
+// Legend below the x axis title: a line sample in each series' style.
+void legend(std::string& out, const std::vector<Series>& series,
+            const std::vector<LegendEntry>& entries, const PlotArea& area) {
+  const double legend_top = area.bottom + below_axis;
+  for (std::size_t index = 0; index < entries.size(); ++index) {
+    const Series& s = series[index];
+    const SeriesStyle style = series_style(s, index);
+    const double x = area.left + entries[index].x;
+    const double y = legend_top + entries[index].row * 18.0 + 9.0;
+    out += fmt::format(
+        "<line x1=\"{0}\" y1=\"{2}\" x2=\"{1}\" y2=\"{2}\" stroke=\"{3}\" "
+        "stroke-width=\"{4}\" stroke-dasharray=\"{5}\"/>\n",
+        coord(x), coord(x + 28.0), coord(y), style.colour,
+        coord(style.stroke), escape_xml(style.dash));
+    text_element(out, x + 34.0, y + tick_font * 0.35, "start", tick_font,
+                 text_colour, s.name);
+  }
 }
 
 }  // namespace
@@ -540,180 +778,41 @@ std::string render_line_plot(const PlotSpec& spec) {
   const std::string id = sanitize_id(spec.id, spec.title, "plot-");
   const int width = std::max(spec.width, 160);
   const int height = std::max(spec.height, 120);
-
-  // X extent: the zoom range if given, else the finite data extent.
-  double x_low = std::numeric_limits<double>::infinity();
-  double x_high = -std::numeric_limits<double>::infinity();
-  if (spec.x_range && std::isfinite(spec.x_range->low) &&
-      std::isfinite(spec.x_range->high)) {
-    x_low = std::min(spec.x_range->low, spec.x_range->high);
-    x_high = std::max(spec.x_range->low, spec.x_range->high);
-  } else {
-    for (const Series& s : spec.series) {
-      const std::size_t n = std::min(s.x.size(), s.y.size());
-      for (std::size_t i = 0; i < n; ++i) {
-        if (!std::isfinite(s.x[i]) || !std::isfinite(s.y[i])) continue;
-        x_low = std::min(x_low, s.x[i]);
-        x_high = std::max(x_high, s.x[i]);
-      }
-    }
-  }
-  if (!(x_low <= x_high)) {
-    x_low = 0.0;
-    x_high = 1.0;
-  }
-  if (x_low == x_high) {
-    const std::vector<double> widened = nice_ticks(x_low, x_high, 3);
-    x_low = widened.front();
-    x_high = widened.back();
-  }
-
-  // Y extent: visible samples and reference lines plus a margin.
+  const Range x = line_plot_x_extent(spec);
+  const Range y = line_plot_y_extent(spec, x);
   const double estimated_plot_height = height - 34.0 - 60.0;
   const int y_target =
       std::max(3, static_cast<int>(estimated_plot_height / 45.0));
-  double y_low = 0.0;
-  double y_high = 1.0;
-  AxisTicks y_axis;
-  if (spec.y_range && std::isfinite(spec.y_range->low) &&
-      std::isfinite(spec.y_range->high) &&
-      spec.y_range->low != spec.y_range->high) {
-    y_low = std::min(spec.y_range->low, spec.y_range->high);
-    y_high = std::max(spec.y_range->low, spec.y_range->high);
-    y_axis = inner_ticks(y_low, y_high, y_target, spec.y_unit);
-  } else {
-    double data_low = std::numeric_limits<double>::infinity();
-    double data_high = -std::numeric_limits<double>::infinity();
-    for (const Series& s : spec.series) {
-      const std::size_t n = std::min(s.x.size(), s.y.size());
-      for (std::size_t i = 0; i < n; ++i) {
-        if (!std::isfinite(s.x[i]) || !std::isfinite(s.y[i])) continue;
-        if (s.x[i] < x_low || s.x[i] > x_high) continue;
-        data_low = std::min(data_low, s.y[i]);
-        data_high = std::max(data_high, s.y[i]);
-      }
-    }
-    for (const ReferenceLine& line : spec.reference_lines) {
-      if (!std::isfinite(line.value)) continue;
-      data_low = std::min(data_low, line.value);
-      data_high = std::max(data_high, line.value);
-    }
-    if (!(data_low <= data_high)) {
-      data_low = 0.0;
-      data_high = 1.0;
-    }
-    if (data_low == data_high) {
-      const std::vector<double> widened = nice_ticks(data_low, data_high, 3);
-      data_low = widened.front();
-      data_high = widened.back();
-    }
-    // A small margin instead of rounding out to whole ticks: data just past
-    // a tick (ringing to 402 V on a 400 V link) must not add a whole step.
-    const double margin = 0.04 * (data_high - data_low);
-    y_low = data_low - margin;
-    y_high = data_high + margin;
-    y_axis = inner_ticks(y_low, y_high, y_target, spec.y_unit);
-  }
+  const AxisTicks y_axis = inner_ticks(y.low, y.high, y_target, spec.y_unit);
 
   // Layout: left margin fits the widest y label, bottom the legend rows.
   PlotArea area;
   area.left = 8.0 + label_font + 8.0 + widest_label(y_axis) + 4.0 + tick_length;
   area.right = width - 28.0;
   area.top = 34.0;
-  const std::vector<LegendEntry> legend =
+  const std::vector<LegendEntry> entries =
       layout_legend(spec.series, area.right - area.left);
-  const int legend_rows = legend.empty() ? 0 : legend.back().row + 1;
-  const double legend_height = legend_rows * 18.0;
-  area.bottom = height - (tick_length + tick_font + 4.0 + label_font + 10.0 +
-                          legend_height + 8.0);
+  const int legend_rows = entries.empty() ? 0 : entries.back().row + 1;
+  area.bottom = height - (below_axis + legend_rows * 18.0 + 8.0);
   if (area.bottom < area.top + 20.0) area.bottom = area.top + 20.0;
 
-  const AxisMap x_map{x_low, x_high, area.left, area.right};
-  const AxisMap y_map{y_low, y_high, area.bottom, area.top};
+  const AxisMap x_map{x.low, x.high, area.left, area.right};
+  const AxisMap y_map{y.low, y.high, area.bottom, area.top};
   const int x_target = std::max(3, static_cast<int>(area.width() / 100.0));
-  const AxisTicks x_axis = inner_ticks(x_low, x_high, x_target, spec.x_unit);
+  const AxisTicks x_axis = inner_ticks(x.low, x.high, x_target, spec.x_unit);
 
   std::string out;
   open_svg(out, id, width, height, spec.title);
   clip_definition(out, id, area);
   plot_background(out, area);
   gridlines(out, area, x_axis, x_map, y_axis, y_map, true);
-
-  const int columns = std::max(1, static_cast<int>(std::lround(area.width())));
-  out += fmt::format("<g clip-path=\"url(#{}-clip)\" fill=\"none\">\n", id);
-  for (const ReferenceLine& line : spec.reference_lines) {
-    if (!std::isfinite(line.value)) continue;
-    const std::string py = coord(y_map.to_pixel(line.value));
-    out += fmt::format(
-        "<line x1=\"{1}\" y1=\"{0}\" x2=\"{2}\" y2=\"{0}\" stroke=\"{3}\" "
-        "stroke-width=\"1.2\" stroke-dasharray=\"8 3 1 3\"/>\n",
-        py, coord(area.left), coord(area.right), reference_colour);
-  }
-  for (std::size_t index = 0; index < spec.series.size(); ++index) {
-    const Series& s = spec.series[index];
-    const std::size_t style = index % series_colours.size();
-    const std::string dash =
-        s.dash.empty() ? std::string(series_dashes[style]) : s.dash;
-    const double stroke =
-        s.stroke_width > 0.0 ? s.stroke_width : series_widths[style];
-    const std::vector<Point> points =
-        decimate_min_max(s.x, s.y, x_low, x_high, columns);
-    if (points.size() == 1) {
-      out += fmt::format("<circle cx=\"{}\" cy=\"{}\" r=\"{}\" fill=\"{}\"/>\n",
-                         coord(x_map.to_pixel(points[0].x)),
-                         coord(y_map.to_pixel(points[0].y)), coord(stroke * 1.5),
-                         series_colours[style]);
-      continue;
-    }
-    if (points.empty()) continue;
-    std::string coordinates;
-    coordinates.reserve(points.size() * 16);
-    for (std::size_t i = 0; i < points.size(); ++i) {
-      if (i > 0) coordinates += ' ';
-      coordinates += coord(x_map.to_pixel(points[i].x));
-      coordinates += ',';
-      coordinates += coord(y_map.to_pixel(points[i].y));
-    }
-    out += fmt::format(
-        "<polyline data-series=\"{}\" stroke=\"{}\" stroke-width=\"{}\" "
-        "stroke-dasharray=\"{}\" stroke-linejoin=\"round\" points=\"{}\"/>\n",
-        escape_xml(s.name), series_colours[style], coord(stroke),
-        escape_xml(dash), coordinates);
-  }
-  out += "</g>\n";
-
-  // Reference labels sit above their line at the right end, inside the area.
-  for (const ReferenceLine& line : spec.reference_lines) {
-    if (!std::isfinite(line.value) || line.label.empty()) continue;
-    if (line.value < y_low || line.value > y_high) continue;
-    text_element(out, area.right - 4.0, y_map.to_pixel(line.value) - 4.0, "end",
-                 note_font, reference_colour, line.label, halo);
-  }
+  clipped_content(out, id, spec, area, x_map, y_map);
+  reference_labels(out, spec, area, y_map);
   vertical_markers(out, area, x_map, spec.markers);
   axes(out, area, x_axis, x_map, spec.x_label, y_axis, y_map, spec.y_label);
   text_element(out, area.left, 22.0, "start", title_font, text_colour,
                spec.title, " font-weight=\"600\"");
-
-  // Legend below the x axis title: a line sample in each series' style.
-  const double legend_top =
-      area.bottom + tick_length + tick_font + 4.0 + label_font + 10.0;
-  for (std::size_t index = 0; index < legend.size(); ++index) {
-    const Series& s = spec.series[index];
-    const std::size_t style = index % series_colours.size();
-    const std::string dash =
-        s.dash.empty() ? std::string(series_dashes[style]) : s.dash;
-    const double stroke =
-        s.stroke_width > 0.0 ? s.stroke_width : series_widths[style];
-    const double x = area.left + legend[index].x;
-    const double y = legend_top + legend[index].row * 18.0 + 9.0;
-    out += fmt::format(
-        "<line x1=\"{0}\" y1=\"{2}\" x2=\"{1}\" y2=\"{2}\" stroke=\"{3}\" "
-        "stroke-width=\"{4}\" stroke-dasharray=\"{5}\"/>\n",
-        coord(x), coord(x + 28.0), coord(y), series_colours[style],
-        coord(stroke), escape_xml(dash));
-    text_element(out, x + 34.0, y + tick_font * 0.35, "start", tick_font,
-                 text_colour, s.name);
-  }
+  legend(out, spec.series, entries, area);
   out += "</svg>\n";
   return out;
 }
@@ -780,39 +879,9 @@ std::string render_histogram(const HistogramSpec& spec) {
     total += c;
   }
 
-  // Markers and bands widen the x extent so a window outside the data shows.
-  double x_low = edges.front();
-  double x_high = edges.back();
-  for (const Marker& marker : spec.markers) {
-    if (!std::isfinite(marker.value)) continue;
-    x_low = std::min(x_low, marker.value);
-    x_high = std::max(x_high, marker.value);
-  }
-  for (const Band& band : spec.bands) {
-    if (!std::isfinite(band.low) || !std::isfinite(band.high)) continue;
-    x_low = std::min({x_low, band.low, band.high});
-    x_high = std::max({x_high, band.low, band.high});
-  }
-
-  // Count axis: whole-number ticks only.
-  const double estimated_plot_height = height - 34.0 - 44.0;
-  const int y_target =
-      std::max(3, static_cast<int>(estimated_plot_height / 45.0));
-  std::vector<double> rounded =
-      nice_ticks(0.0, std::max(largest, 1), y_target);
-  if (rounded.size() >= 2 && rounded[1] - rounded[0] < 1.0) {
-    rounded.clear();
-    for (int k = 0; k <= std::max(largest, 1); ++k) rounded.push_back(k);
-  }
-  const double y_low = 0.0;
-  const double y_high = rounded.back();
-  AxisTicks y_axis = inner_ticks(y_low, y_high, y_target, "");
-  if (y_axis.step < 1.0) {
-    y_axis.values = rounded;
-    y_axis.step = 1.0;
-    y_axis.labels.clear();
-    for (double t : rounded) y_axis.labels.push_back(si_label(t, 1.0, ""));
-  }
+  const Range x = histogram_x_extent(spec, edges);
+  const CountAxis count = count_axis(largest, height);
+  const AxisTicks& y_axis = count.ticks;
 
   PlotArea area;
   area.left = 8.0 + label_font + 8.0 + widest_label(y_axis) + 4.0 + tick_length;
@@ -820,10 +889,10 @@ std::string render_histogram(const HistogramSpec& spec) {
   area.top = 34.0;
   area.bottom = height - (tick_length + tick_font + 4.0 + label_font + 14.0);
 
-  const AxisMap x_map{x_low, x_high, area.left, area.right};
-  const AxisMap y_map{y_low, y_high, area.bottom, area.top};
+  const AxisMap x_map{x.low, x.high, area.left, area.right};
+  const AxisMap y_map{0.0, count.high, area.bottom, area.top};
   const int x_target = std::max(3, static_cast<int>(area.width() / 100.0));
-  const AxisTicks x_axis = inner_ticks(x_low, x_high, x_target, spec.x_unit);
+  const AxisTicks x_axis = inner_ticks(x.low, x.high, x_target, spec.x_unit);
 
   std::string out;
   open_svg(out, id, width, height, spec.title);
@@ -831,23 +900,7 @@ std::string render_histogram(const HistogramSpec& spec) {
   plot_background(out, area);
   shaded_bands(out, area, x_map, spec.bands);
   gridlines(out, area, x_axis, x_map, y_axis, y_map, false);
-
-  out += fmt::format(
-      "<g clip-path=\"url(#{}-clip)\" fill=\"{}\" stroke=\"{}\" "
-      "stroke-width=\"0.8\">\n",
-      id, bar_fill_colour, bar_stroke_colour);
-  for (std::size_t bin = 0; bin < counts.size(); ++bin) {
-    if (counts[bin] == 0) continue;
-    const double left = x_map.to_pixel(edges[bin]);
-    const double right = x_map.to_pixel(edges[bin + 1]);
-    const double top = y_map.to_pixel(counts[bin]);
-    out += fmt::format(
-        "<rect data-count=\"{}\" x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>\n",
-        counts[bin], coord(left), coord(top), coord(right - left),
-        coord(area.bottom - top));
-  }
-  out += "</g>\n";
-
+  histogram_bars(out, id, counts, edges, area, x_map, y_map);
   vertical_markers(out, area, x_map, spec.markers);
   axes(out, area, x_axis, x_map, spec.x_label, y_axis, y_map, "count");
   text_element(out, area.left, 22.0, "start", title_font, text_colour,

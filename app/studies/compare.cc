@@ -63,13 +63,6 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
   return comparison;
 }
 
-namespace {
-std::string verdict_cell(const PointResult& point) {
-  if (!point.evaluated()) return status_word(point.status);
-  return point.verdict;
-}
-}  // namespace
-
 std::string comparison_text(const VariantComparison& comparison) {
   std::string out = fmt::format("linkrise compare — {}\n", comparison.title);
   std::vector<std::string> header{"metric"};
@@ -89,7 +82,7 @@ std::string comparison_text(const VariantComparison& comparison) {
   std::vector<std::string> outcome{"outcome"}, verdict{"verdict"};
   for (const auto& point : results.points) {
     outcome.push_back((point.evaluated() ? point.outcome : "-") + "  ");
-    verdict.push_back(verdict_cell(point) + "  ");
+    verdict.push_back(point.verdict_word() + "  ");
   }
   rows.push_back(outcome);
   rows.push_back(verdict);
@@ -121,7 +114,7 @@ std::string comparison_csv(const VariantComparison& comparison) {
   out += "outcome,,";
   for (const auto& point : results.points) out.append(",").append(csv_text(point.evaluated() ? point.outcome : ""));
   out += ",\nverdict,,";
-  for (const auto& point : results.points) out.append(",").append(csv_text(verdict_cell(point)));
+  for (const auto& point : results.points) out.append(",").append(csv_text(point.verdict_word()));
   out += ",\n";
   return out;
 }
@@ -150,10 +143,9 @@ nlohmann::json comparison_json_value(const VariantComparison& comparison) {
     best[results.columns[c].name] = {{"better", larger_is_better(results.columns[c].name) ? "larger" : "smaller"},
                                      {"best", names}};
   }
-  return {{"tool", {{"name", "linkrise"}, {"version", LINKRISE_VERSION}}},
-          {"case", {{"title", comparison.title}, {"file", comparison.case_file}}},
-          {"variants", variants},
-          {"best", best}};
+  return with_file_head({{"variants", variants},
+                         {"best", best}},
+                        comparison.title, comparison.case_file);
 }
 }  // namespace
 

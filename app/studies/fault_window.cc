@@ -6,6 +6,7 @@
 
 #include "analysis/metrics.h"
 #include "app/output/json_fields.h"
+#include "app/output/text_format.h"
 #include "app/studies/faults_json.h"
 #include "app/studies/study_parameters.h"
 #include "netlist/case.h"
@@ -17,8 +18,6 @@ using netlist::InputError;
 namespace {
 // Wide enough that no sample of any run times out; read_sequence only needs it above the other times.
 constexpr const char* kWideTimeout = "1e6 s";
-
-std::string seconds(double value) { return analysis::format_metric(value, "s"); }
 }  // namespace
 
 bool FaultWindow::verified() const {
@@ -74,7 +73,7 @@ FaultWindow recommend_window(const Spread& spread, double margin, double sample_
     window.problems.push_back(fmt::format(
         "the fastest charge ({}) less the margin is under one sample period ({}): the too-fast check cannot be "
         "set; shorten the sample period or reduce the margin",
-        seconds(window.fastest), seconds(sample_period)));
+        display_seconds(window.fastest), display_seconds(sample_period)));
   }
   return window;
 }
@@ -112,7 +111,7 @@ FaultWindow fault_window(const std::string& case_file, const std::vector<netlist
         [&](std::size_t i) { return windowed.with(spread_overrides(spread.tolerances, plan, spread.index(extremes[i]))); },
         jobs);
     for (const auto& point : rerun.points) {
-      window.extreme_outcomes.push_back(point.evaluated() ? point.outcome : status_word(point.status));
+      window.extreme_outcomes.push_back(point.outcome_word());
     }
     window.matrix = detection_matrix(windowed, jobs);
   }
@@ -128,21 +127,21 @@ std::string window_text(const FaultWindow& window, const Spread& spread) {
   if (!spread.plan.corners) out += fmt::format("          seed {}\n", spread.plan.seed);
   for (const auto& t : spread.tolerances) out += fmt::format("    {:<28} {}\n", t.path, t.description);
   if (window.fastest_point >= 0) {
-    out += fmt::format("  fastest to the closing level  {:>10}  ({} {}: {})\n", seconds(window.fastest),
+    out += fmt::format("  fastest to the closing level  {:>10}  ({} {}: {})\n", display_seconds(window.fastest),
                        spread.plan.corners ? "corner" : "sample",
                        spread.index(static_cast<std::size_t>(window.fastest_point)),
                        sample_parameters(spread, static_cast<std::size_t>(window.fastest_point)));
-    out += fmt::format("  slowest decision to close     {:>10}  ({} {}: {})\n", seconds(window.slowest),
+    out += fmt::format("  slowest decision to close     {:>10}  ({} {}: {})\n", display_seconds(window.slowest),
                        spread.plan.corners ? "corner" : "sample",
                        spread.index(static_cast<std::size_t>(window.slowest_point)),
                        sample_parameters(spread, static_cast<std::size_t>(window.slowest_point)));
   }
-  out += fmt::format("  margin {:g} %, BMS sample period {}\n", window.margin * 100.0, seconds(window.sample_period));
+  out += fmt::format("  margin {:g} %, BMS sample period {}\n", window.margin * 100.0, display_seconds(window.sample_period));
   if (!std::isnan(window.minimum_time)) {
     out += fmt::format("  recommended minimum_time {:>10}  = (1 − margin) × fastest, down to a whole period (case: {})\n",
-                       seconds(window.minimum_time), seconds(window.case_minimum_time));
+                       display_seconds(window.minimum_time), display_seconds(window.case_minimum_time));
     out += fmt::format("  recommended timeout      {:>10}  = (1 + margin) × slowest, up to a whole period (case: {})\n",
-                       seconds(window.timeout), seconds(window.case_timeout));
+                       display_seconds(window.timeout), display_seconds(window.case_timeout));
   }
   for (const auto& problem : window.problems) out += fmt::format("  problem: {}\n", problem);
   if (window.extreme_outcomes.size() == 2) {
@@ -168,23 +167,27 @@ nlohmann::json window_json_value(const FaultWindow& window, const Spread& spread
     }
     return {{"index", spread.index(p)}, {"parameters", parameters}};
   };
-  return {{"tool", {{"name", "linkrise"}, {"version", LINKRISE_VERSION}}},
-          {"case", {{"title", spread.title}, {"file", spread.case_file}}},
-          {"spread", {{"mode", spread.plan.corners ? "corners" : "monte_carlo"},
-                      {"seed", spread.plan.seed},
-                      {"samples", spread.results.points.size()},
-                      {"closed", window.closed}}},
-          {"margin", window.margin},
-          {"sample_period", quantity(window.sample_period, "s")},
-          {"fastest", {{"time_to_threshold", quantity(window.fastest, "s")}, {"sample", sample(window.fastest_point)}}},
-          {"slowest", {{"decision_after_start", quantity(window.slowest, "s")}, {"sample", sample(window.slowest_point)}}},
-          {"case_window", {{"minimum_time", quantity(window.case_minimum_time, "s")},
-                           {"timeout", quantity(window.case_timeout, "s")}}},
-          {"recommended", {{"minimum_time", quantity(window.minimum_time, "s")}, {"timeout", quantity(window.timeout, "s")}}},
-          {"problems", window.problems},
-          {"extreme_outcomes", window.extreme_outcomes},
-          {"fault_scenarios", window.matrix.rows.empty() ? nlohmann::json(nullptr) : detection_matrix_json(window.matrix)["rows"]},
-          {"verified", window.verified()}};
+  const nlohmann::json scenarios =
+      window.matrix.rows.empty() ? nlohmann::json(nullptr) : detection_matrix_json(window.matrix)["rows"];
+  return with_file_head(
+      {{"spread", {{"mode", spread.plan.corners ? "corners" : "monte_carlo"},
+                   {"seed", spread.plan.seed},
+                   {"samples", spread.results.points.size()},
+                   {"closed", window.closed}}},
+       {"margin", window.margin},
+       {"sample_period", quantity(window.sample_period, "s")},
+       {"fastest", {{"time_to_threshold", quantity(window.fastest, "s")}, {"sample", sample(window.fastest_point)}}},
+       {"slowest",
+        {{"decision_after_start", quantity(window.slowest, "s")}, {"sample", sample(window.slowest_point)}}},
+       {"case_window", {{"minimum_time", quantity(window.case_minimum_time, "s")},
+                        {"timeout", quantity(window.case_timeout, "s")}}},
+       {"recommended",
+        {{"minimum_time", quantity(window.minimum_time, "s")}, {"timeout", quantity(window.timeout, "s")}}},
+       {"problems", window.problems},
+       {"extreme_outcomes", window.extreme_outcomes},
+       {"fault_scenarios", scenarios},
+       {"verified", window.verified()}},
+      spread.title, spread.case_file);
 }
 }  // namespace
 

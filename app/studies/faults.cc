@@ -32,6 +32,11 @@ bool DetectionMatrix::solver_failure() const {
   return std::any_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.actual == "solver_failure"; });
 }
 
+std::size_t DetectionMatrix::failed() const {
+  return static_cast<std::size_t>(
+      std::count_if(rows.begin(), rows.end(), [](const DetectionRow& row) { return !row.pass; }));
+}
+
 const DetectionRow* DetectionMatrix::find(const std::string& scenario) const {
   auto found = std::find_if(rows.begin(), rows.end(), [&](const DetectionRow& row) { return row.scenario == scenario; });
   return found == rows.end() ? nullptr : &*found;
@@ -62,12 +67,17 @@ std::vector<const models::Part*> parts_where(const solver::Circuit& circuit, con
   return found;
 }
 
+// What a caught fault ends as: no_rise with a rise check, timeout without.
+std::string caught_outcome(const netlist::SequenceSpec& sequence) {
+  return sequence.rise_fraction ? "no_rise" : "timeout";
+}
+
 // The plan under construction: the rows in order, each with its own copy of the case document.
 class Plan {
  public:
   Plan(const netlist::CaseDocument& document, const netlist::Case& nominal, const solver::Circuit& circuit)
       : document_(document), nominal_(nominal), circuit_(circuit), sequence_(*nominal.sequence),
-        at_(sequence_.mark), caught_(sequence_.rise_fraction ? "no_rise" : "timeout") {}
+        at_(sequence_.mark), caught_(caught_outcome(sequence_)) {}
 
   std::vector<Planned> built_in_and_case_scenarios() {
     add("nominal", "the case as written", sequence_.expected_outcome);
@@ -204,7 +214,7 @@ std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const net
                                std::string& explanation) {
   explanation = stall.explanation;
   if (!stall.applicable) return "closed";
-  const std::string caught = sequence.rise_fraction ? "no_rise" : "timeout";
+  const std::string caught = caught_outcome(sequence);
   if (std::isnan(stall.equilibrium)) return caught;
   if (stall.lower_root >= stall.resistive_below) {
     explanation = fmt::format(
@@ -250,12 +260,10 @@ void run_row(Planned& p) {
   row.pass = row.actual == row.expected && row.resistor_survived;
 }
 
-std::string cell(double value, const std::string& unit) { return analysis::format_metric(value, unit); }
-
 std::string against(double value, double rating, const std::string& unit) {
   if (std::isnan(value)) return "-";
-  if (std::isnan(rating)) return cell(value, unit);
-  return fmt::format("{} / {}", cell(value, unit), cell(rating, unit));
+  if (std::isnan(rating)) return analysis::format_metric(value, unit);
+  return fmt::format("{} / {}", analysis::format_metric(value, unit), analysis::format_metric(rating, unit));
 }
 }  // namespace
 
@@ -341,7 +349,7 @@ std::string matrix_text(const DetectionMatrix& matrix) {
     std::string result = !row.applicable ? "n/a" : row.pass ? "pass" : "FAIL";
     out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected,
                        row.actual, row.applicable ? std::to_string(row.attempts) : "-",
-                       cell(row.detection_time, "s"), against(row.peak_temperature, row.temperature_rating, "degC"),
+                       analysis::format_metric(row.detection_time, "s"), against(row.peak_temperature, row.temperature_rating, "degC"),
                        against(row.energy, row.energy_rating, "J"), result);
     if (!row.applicable || !row.note.empty() || (row.applicable && !row.pass)) {
       std::string why = row.note;
@@ -349,18 +357,12 @@ std::string matrix_text(const DetectionMatrix& matrix) {
       if (!why.empty()) out += fmt::format("      {}\n", why);
     }
   }
-  std::size_t failed = std::count_if(matrix.rows.begin(), matrix.rows.end(), [](const DetectionRow& r) { return !r.pass; });
-  out += fmt::format("  matrix    {} ({} of {} rows failed)\n", matrix.pass() ? "PASS" : "FAIL", failed,
+  out += fmt::format("  matrix    {} ({} of {} rows failed)\n", matrix.pass() ? "PASS" : "FAIL", matrix.failed(),
                      matrix.rows.size());
   return out;
 }
 
 std::string matrix_csv(const DetectionMatrix& matrix) {
-  auto quoted = [](const std::string& text) {
-    std::string out = "\"";
-    for (char c : text) out += c == '"' ? std::string("\"\"") : std::string(1, c);
-    return out + "\"";
-  };
   auto number = [](double value) { return csv_number(value); };
   std::string out =
       "scenario,expected,actual,applicable,attempts,detection_time [s],peak_temperature [degC],"
@@ -370,7 +372,7 @@ std::string matrix_csv(const DetectionMatrix& matrix) {
                        row.applicable ? "yes" : "no", row.attempts, number(row.detection_time),
                        number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
                        number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
-                       quoted(row.note));
+                       csv_quoted(row.note));
   }
   return out;
 }
@@ -393,11 +395,10 @@ nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
                     {"pass", row.pass},
                     {"note", row.note}});
   }
-  return {{"tool", {{"name", "linkrise"}, {"version", LINKRISE_VERSION}}},
-          {"case", {{"title", matrix.title}, {"file", matrix.case_file}}},
-          {"resistor", matrix.resistor},
-          {"verdict", matrix.pass() ? "pass" : "fail"},
-          {"rows", rows}};
+  return with_file_head({{"resistor", matrix.resistor},
+                         {"verdict", matrix.pass() ? "pass" : "fail"},
+                         {"rows", rows}},
+                        matrix.title, matrix.case_file);
 }
 
 std::string matrix_json(const DetectionMatrix& matrix) { return json_text(detection_matrix_json(matrix)); }

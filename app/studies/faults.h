@@ -19,6 +19,7 @@
 // expectation (netlist/scenario_spec.h).
 // Writes faults.json and faults.csv, and with --report an HTML report (app/report/faults_report.h). Exit 0 when every
 // applicable row passes, 1 otherwise, 2 for bad input, 3 when the solver failed in a scenario.
+#include <cstddef>
 #include <limits>
 #include <optional>
 #include <string>
@@ -58,6 +59,8 @@ struct DetectionMatrix {
   std::vector<DetectionRow> rows;
   bool pass() const;
   bool solver_failure() const;
+  /// Rows that did not pass (not-applicable rows pass).
+  std::size_t failed() const;
   /// The row of a scenario; null when there is none.
   const DetectionRow* find(const std::string& scenario) const;
 };

@@ -83,6 +83,54 @@ std::size_t Spread::failed() const {
   }));
 }
 
+namespace {
+// Corners or samples of the whole study (all shards). Throws InputError for more corners than a study runs.
+std::size_t population_size(const std::vector<Tolerance>& tolerances, const SpreadPlan& plan) {
+  if (!plan.corners) return plan.samples;
+  std::size_t k = tolerances.size();
+  if (k >= 63 || (std::size_t{1} << k) > kCornerLimit) {
+    throw InputError(tolerances.front().mark,
+                     fmt::format("{} tolerances make 2^{} corners, more than the {} a corner study runs", k, k,
+                                 kCornerLimit),
+                     "use Monte Carlo (--samples N) or fewer tolerances");
+  }
+  const std::size_t corners = std::size_t{1} << k;
+  if (corners > kCornerWarning) {
+    std::cerr << fmt::format("linkrise: warning: {} tolerances make 2^{} = {} corners; this takes a while\n", k, k,
+                             corners);
+  }
+  return corners;
+}
+
+// Statistics of metric column c over the points that reached it.
+MetricSpread metric_spread(const StudyResults& results, std::size_t c) {
+  MetricSpread s;
+  s.name = results.columns[c].name;
+  s.unit = results.columns[c].unit;
+  std::vector<double> values;
+  bool larger = larger_is_better(s.name);
+  for (std::size_t p = 0; p < results.points.size(); ++p) {
+    double v = results.points[p].values.empty() ? std::nan("") : results.points[p].values[c];
+    if (std::isnan(v)) continue;
+    values.push_back(v);
+    double worst = s.worst < 0 ? 0.0 : results.points[static_cast<std::size_t>(s.worst)].values[c];
+    if (s.worst < 0 || (larger ? v < worst : v > worst)) s.worst = static_cast<long>(p);
+  }
+  std::sort(values.begin(), values.end());
+  s.reached = values.size();
+  if (!values.empty()) {
+    s.minimum = values.front();
+    s.maximum = values.back();
+    s.p0_1 = quantile(values, 0.001);
+    s.p1 = quantile(values, 0.01);
+    s.p50 = quantile(values, 0.5);
+    s.p99 = quantile(values, 0.99);
+    s.p99_9 = quantile(values, 0.999);
+  }
+  return s;
+}
+}  // namespace
+
 Spread run_spread(const std::string& case_file, const std::vector<netlist::Override>& settings,
                   const SpreadPlan& plan, int jobs, const std::string& progress_label) {
   Spread spread;
@@ -99,22 +147,7 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "the case has no 'tolerances:' block to spread",
                      "add e.g. 'tolerances: {r_pre.resistance: {plus_minus: 5 %}}'");
   }
-  if (plan.corners) {
-    std::size_t k = spread.tolerances.size();
-    if (k >= 63 || (std::size_t{1} << k) > kCornerLimit) {
-      throw InputError(spread.tolerances.front().mark,
-                       fmt::format("{} tolerances make 2^{} corners, more than the {} a corner study runs", k, k,
-                                   kCornerLimit),
-                       "use Monte Carlo (--samples N) or fewer tolerances");
-    }
-    spread.population = std::size_t{1} << k;
-    if (spread.population > kCornerWarning) {
-      std::cerr << fmt::format("linkrise: warning: {} tolerances make 2^{} = {} corners; this takes a while\n", k, k,
-                               spread.population);
-    }
-  } else {
-    spread.population = plan.samples;
-  }
+  spread.population = population_size(spread.tolerances, plan);
   spread.range = shard_range(spread.population, plan.shard, plan.shards);
 
   // The nominal run fixes the metric columns: every sample has the nominal's structure, so one number per
@@ -134,34 +167,10 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
     return label;
   });
 
-  const StudyResults& results = spread.results;
-  for (std::size_t c = 0; c < results.columns.size(); ++c) {
-    MetricSpread s;
-    s.name = results.columns[c].name;
-    s.unit = results.columns[c].unit;
-    std::vector<double> values;
-    bool larger = larger_is_better(s.name);
-    for (std::size_t p = 0; p < results.points.size(); ++p) {
-      double v = results.points[p].values.empty() ? std::nan("") : results.points[p].values[c];
-      if (std::isnan(v)) continue;
-      values.push_back(v);
-      double worst = s.worst < 0 ? 0.0 : results.points[static_cast<std::size_t>(s.worst)].values[c];
-      if (s.worst < 0 || (larger ? v < worst : v > worst)) s.worst = static_cast<long>(p);
-    }
-    std::sort(values.begin(), values.end());
-    s.reached = values.size();
-    if (!values.empty()) {
-      s.minimum = values.front();
-      s.maximum = values.back();
-      s.p0_1 = quantile(values, 0.001);
-      s.p1 = quantile(values, 0.01);
-      s.p50 = quantile(values, 0.5);
-      s.p99 = quantile(values, 0.99);
-      s.p99_9 = quantile(values, 0.999);
-    }
-    spread.statistics.push_back(s);
+  for (std::size_t c = 0; c < spread.results.columns.size(); ++c) {
+    spread.statistics.push_back(metric_spread(spread.results, c));
   }
-  spread.headline = headline_metrics(nominal, results.columns);
+  spread.headline = headline_metrics(nominal, spread.results.columns);
   return spread;
 }
 
@@ -187,21 +196,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
   out += "\n  tolerances:\n";
   for (const auto& t : spread.tolerances) out += fmt::format("    {:<28} {}\n", t.path, t.description);
 
-  std::vector<std::pair<std::string, std::size_t>> outcomes;
-  std::size_t failures = 0;
-  for (const auto& point : spread.results.points) {
-    std::string word = point.evaluated() ? point.outcome : status_word(point.status);
-    auto it = std::find_if(outcomes.begin(), outcomes.end(), [&](const auto& entry) { return entry.first == word; });
-    if (it == outcomes.end()) {
-      outcomes.emplace_back(word, 1);
-    } else {
-      ++it->second;
-    }
-    failures += !point.evaluated();
-  }
-  std::string outcome_list;
-  for (const auto& [word, count] : outcomes) outcome_list += fmt::format("{}{} {}", outcome_list.empty() ? "" : ", ", count, word);
-  out += fmt::format("  outcomes: {}; verdict failed in {} of {}\n", outcome_list, spread.failed(),
+  out += fmt::format("  outcomes: {}; verdict failed in {} of {}\n", spread.results.outcome_counts(), spread.failed(),
                      spread.results.points.size());
 
   std::vector<std::string> header{"metric", "nominal", "min", "p0.1", "p1", "p50", "p99", "p99.9", "max", "reached"};
@@ -297,17 +292,16 @@ nlohmann::json spread_json_value(const Spread& spread) {
     }
     metrics.push_back(entry);
   }
-  return {{"tool", {{"name", "linkrise"}, {"version", LINKRISE_VERSION}}},
-          {"case", {{"title", spread.title}, {"file", spread.case_file}}},
-          {"mode", spread.plan.corners ? "corners" : "monte_carlo"},
-          {"seed", spread.plan.seed},
-          {"population", spread.population},
-          {"shard", {{"k", spread.plan.shard}, {"n", spread.plan.shards}, {"first", spread.range.begin},
-                     {"count", spread.range.size()}}},
-          {"quantile_definition", "Hyndman & Fan type 7: h = (n-1)p, linear between order statistics"},
-          {"failed_verdicts", spread.failed()},
-          {"tolerances", tolerances},
-          {"metrics", metrics}};
+  return with_file_head({{"mode", spread.plan.corners ? "corners" : "monte_carlo"},
+                         {"seed", spread.plan.seed},
+                         {"population", spread.population},
+                         {"shard", {{"k", spread.plan.shard}, {"n", spread.plan.shards},
+                                    {"first", spread.range.begin}, {"count", spread.range.size()}}},
+                         {"quantile_definition", "Hyndman & Fan type 7: h = (n-1)p, linear between order statistics"},
+                         {"failed_verdicts", spread.failed()},
+                         {"tolerances", tolerances},
+                         {"metrics", metrics}},
+                        spread.title, spread.case_file);
 }
 }  // namespace
 

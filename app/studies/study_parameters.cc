@@ -57,26 +57,9 @@ std::vector<netlist::Override> parse_settings(const std::vector<std::string>& se
 }
 
 
-VariedParameter parse_variation(const std::string& text, const SourceMark& mark) {
-  netlist::Override assignment = parse_assignment(text, mark);
-  VariedParameter varied{assignment.path, {}, mark};
-  const std::string& spec = assignment.value;
-  std::size_t dots = spec.find("..");
-  if (dots == std::string::npos) {
-    std::size_t start = 0;
-    while (start <= spec.size()) {
-      std::size_t comma = spec.find(',', start);
-      std::string item = trim(spec.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
-      if (item.empty()) {
-        throw InputError(mark, fmt::format("the list '{}' has an empty item", spec), "separate values by single commas");
-      }
-      varied.values.push_back(item);
-      if (comma == std::string::npos) break;
-      start = comma + 1;
-    }
-    return varied;
-  }
-  // A range: A..B[:lin|:log][:N]
+namespace {
+// The points of a range A..B[:lin|:log][:N] (`dots` is where ".." stands in `spec`), as case-file texts.
+std::vector<std::string> range_values(const std::string& spec, std::size_t dots, const SourceMark& mark) {
   std::string first = trim(spec.substr(0, dots));
   std::string rest = spec.substr(dots + 2);
   std::vector<std::string> pieces;
@@ -117,13 +100,38 @@ VariedParameter parse_variation(const std::string& text, const SourceMark& mark)
                      "use ':lin' or positive ends");
   }
   netlist::Dimension dimension = low.bare ? high.dimension : low.dimension;
+  std::vector<std::string> values;
   for (int i = 0; i < count; ++i) {
     double fraction = static_cast<double>(i) / (count - 1);
     double value = logarithmic ? low.value * std::pow(high.value / low.value, fraction)
                                : low.value + (high.value - low.value) * fraction;
     if (i == count - 1) value = high.value;  // the end exactly as written
-    varied.values.push_back(netlist::quantity_text(value, dimension, low.absolute_temperature));
+    values.push_back(netlist::quantity_text(value, dimension, low.absolute_temperature));
   }
+  return values;
+}
+}  // namespace
+
+VariedParameter parse_variation(const std::string& text, const SourceMark& mark) {
+  netlist::Override assignment = parse_assignment(text, mark);
+  VariedParameter varied{assignment.path, {}, mark};
+  const std::string& spec = assignment.value;
+  std::size_t dots = spec.find("..");
+  if (dots == std::string::npos) {
+    std::size_t start = 0;
+    while (start <= spec.size()) {
+      std::size_t comma = spec.find(',', start);
+      std::string item = trim(spec.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
+      if (item.empty()) {
+        throw InputError(mark, fmt::format("the list '{}' has an empty item", spec), "separate values by single commas");
+      }
+      varied.values.push_back(item);
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+    return varied;
+  }
+  varied.values = range_values(spec, dots, mark);
   return varied;
 }
 

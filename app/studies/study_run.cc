@@ -3,9 +3,11 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <utility>
 
 #include <fmt/format.h>
 
+#include "app/studies/study_parameters.h"
 #include "app/studies/study_pool.h"
 #include "solver/waveform.h"
 #include "netlist/input_error.h"
@@ -36,6 +38,22 @@ long StudyResults::first_input_error() const {
 bool StudyResults::any_solver_failure() const {
   return std::any_of(points.begin(), points.end(),
                      [](const PointResult& p) { return p.status == CaseEvaluation::Status::SolverFailure; });
+}
+
+std::string StudyResults::outcome_counts() const {
+  std::vector<std::pair<std::string, std::size_t>> counts;
+  for (const auto& point : points) {
+    const std::string word = point.outcome_word();
+    auto it = std::find_if(counts.begin(), counts.end(), [&](const auto& entry) { return entry.first == word; });
+    if (it == counts.end()) {
+      counts.emplace_back(word, 1);
+    } else {
+      ++it->second;
+    }
+  }
+  std::string text;
+  for (const auto& [word, count] : counts) text += fmt::format("{}{} {}", text.empty() ? "" : ", ", count, word);
+  return text;
 }
 
 void reject_input_errors(const StudyResults& results, const std::string& file,
@@ -151,6 +169,11 @@ std::vector<std::string> chosen_metrics(const std::string& list, const std::vect
     start = comma + 1;
   }
   return names;
+}
+
+std::vector<std::string> shown_metrics(const std::string& option, const std::vector<std::string>& headline,
+                                       const std::vector<MetricColumn>& columns) {
+  return option.empty() ? headline : chosen_metrics(option, columns, option_mark("--metrics", 1));
 }
 
 std::string text_table(const std::vector<std::string>& header, const std::vector<std::vector<std::string>>& rows,

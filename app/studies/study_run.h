@@ -27,6 +27,11 @@ struct PointResult {
   std::string verdict;
   std::vector<double> values;  // one per StudyResults::columns; NaN when not reached or absent
   bool evaluated() const { return status == CaseEvaluation::Status::Evaluated; }
+  bool passed() const { return evaluated() && verdict == "pass"; }
+  /// The outcome, or the status word ("input error", "solver failure") when the point was not evaluated.
+  std::string outcome_word() const { return evaluated() ? outcome : status_word(status); }
+  /// The verdict, or the status word when the point was not evaluated.
+  std::string verdict_word() const { return evaluated() ? verdict : status_word(status); }
 };
 
 struct StudyResults {
@@ -39,6 +44,9 @@ struct StudyResults {
   /// The first point that was bad input (e.g. an override out of a parameter's range), or -1.
   long first_input_error() const;
   bool any_solver_failure() const;
+  /// "3 closed, 1 timeout": how many points ended with each outcome word, in order of first appearance; empty
+  /// without points.
+  std::string outcome_counts() const;
 };
 
 /// The case document of point i (the base case with the point's overrides or replacements).
@@ -70,6 +78,11 @@ std::vector<std::string> headline_metrics(const netlist::Case& spec, const std::
 /// did-you-mean).
 std::vector<std::string> chosen_metrics(const std::string& list, const std::vector<MetricColumn>& columns,
                                         const netlist::SourceMark& mark);
+
+/// The metrics a terminal table shows: those of a --metrics option (checked as chosen_metrics does), or the
+/// headline when the option is empty.
+std::vector<std::string> shown_metrics(const std::string& option, const std::vector<std::string>& headline,
+                                       const std::vector<MetricColumn>& columns);
 
 /// A plain-text table: columns padded to their widest cell; the first `left` columns left-aligned, the others
 /// right-aligned; each line indented by two spaces.

@@ -70,7 +70,7 @@ std::string sweep_text(const Sweep& sweep, const std::vector<std::string>& metri
       row.push_back(analysis::format_metric(results.value(i, metric), results.columns[results.column(metric)].unit));
     }
     row.push_back(point.evaluated() ? point.outcome : "-");
-    row.push_back(point.evaluated() ? point.verdict : status_word(point.status));
+    row.push_back(point.verdict_word());
     rows.push_back(std::move(row));
   }
   out += text_table(header, rows, 1 + sweep.parameters.size());
