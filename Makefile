@@ -1,6 +1,9 @@
 # Thin wrapper: dependencies, configure, build, then run.
 BUILD ?= build
 JOBS ?= $(shell nproc)
+# Warnings are errors (one configuration for demo and test, so neither rebuilds the other's objects);
+# `make test WERROR=OFF` builds anyway.
+WERROR ?= ON
 
 .PHONY: all deps build demo test bench clean
 
@@ -10,7 +13,7 @@ deps:
 	@bash scripts/install-deps.sh
 
 build: deps
-	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release > /dev/null
+	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release -DLINKRISE_WERROR=$(WERROR) > /dev/null
 	@cmake --build $(BUILD) -j $(JOBS)
 
 demo: build

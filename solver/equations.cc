@@ -20,9 +20,9 @@ Equations::Equations(const Circuit& circuit)
       step_(unknowns_),
       guess_(unknowns_),
       start_(unknowns_),
+      nodes_(static_cast<int>(circuit.node_names().size())),
       sensitivity_(unknowns_, std::max(states_, 1)),
-      state_change_(std::max(states_, 1)),
-      nodes_(static_cast<int>(circuit.node_names().size())) {}
+      state_change_(std::max(states_, 1)) {}
 
 models::Point Equations::point(double time, const double* states, const int* modes, const double* unknowns) const {
   models::Point p;

@@ -234,3 +234,23 @@ TEST_F(Cli, BadRunBlockValueExitsWithTwoAtItsPlace) {
   EXPECT_EQ(result.err.find("[CVODE"), std::string::npos) << result.err;
   EXPECT_TRUE(empty_directory(output));
 }
+
+// The command line rejects these before any case is read (the case file does not even exist), with exit code 2
+// and the option named in the message [by construction of the parser's checks].
+TEST_F(Cli, StudyOptionsAreCheckedByTheParser) {
+  const fs::path output = directory_ / "study_out";
+  const std::string tail = " -o \"" + output.string() + "\"";
+  Outcome both = run("spread missing.yaml --corners --samples 10" + tail);
+  EXPECT_EQ(both.exit_code, 2) << both.err;
+  EXPECT_NE(both.err.find("--corners excludes --samples"), std::string::npos) << both.err;
+  Outcome reversed = run("window missing.yaml --samples 10 --corners" + tail);
+  EXPECT_EQ(reversed.exit_code, 2) << reversed.err;
+  EXPECT_NE(reversed.err.find("excludes"), std::string::npos) << reversed.err;
+  for (const std::string shard : {"3/2", "0/4", "2", "a/b", "1/2x"}) {
+    Outcome bad = run("spread missing.yaml --samples 10 --shard " + shard + tail);
+    EXPECT_EQ(bad.exit_code, 2) << shard << ": " << bad.err;
+    EXPECT_NE(bad.err.find("--shard: '" + shard + "' is not a shard k/n with 1 <= k <= n"), std::string::npos)
+        << bad.err;
+  }
+  EXPECT_FALSE(fs::exists(output)) << "nothing is written for a rejected command line";
+}

@@ -7,13 +7,15 @@
 #include "app/commands/exit_codes.h"
 #include "app/commands/faults_command.h"
 #include "app/commands/run_command.h"
+#include "linkrise/version.h"
 #include "app/cli/study_commands.h"
 
 int main(int argc, char** argv) {
   using namespace linkrise::app;
+  using linkrise::kVersion;
   CLI::App cli{"linkrise — simulate and judge the pre-charge of battery-pack DC links"};
   cli.require_subcommand(1);
-  cli.set_version_flag("--version", LINKRISE_VERSION);
+  cli.set_version_flag("--version", kVersion);
 
   RunArguments run;
   auto* run_cli = cli.add_subcommand("run", "simulate one case; write waveforms.csv and summary.json");

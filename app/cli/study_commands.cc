@@ -32,11 +32,15 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   sweep_cli_->add_option("--metrics", sweep_.metrics, "metrics for the terminal table, comma-separated");
   add_output_options(sweep_cli_, sweep_);
 
-  auto add_population = [](CLI::App* command, SpreadArguments& arguments) {
-    command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
-    command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples");
+  // The parser rejects both --corners and --samples, and a malformed --shard, before anything runs.
+  const CLI::Validator shard_form([](std::string& text) { return shard_problem(text); }, "K/N", "shard");
+  auto add_population = [&shard_form](CLI::App* command, SpreadArguments& arguments) {
+    auto* corners =
+        command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
+    command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples")->excludes(corners);
     command->add_option("--seed", arguments.seed, "Monte Carlo seed")->capture_default_str();
-    command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4");
+    command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4")
+        ->check(shard_form);
     command->add_option("--set", arguments.settings, set_help);
     command->add_option("--metrics", arguments.metrics, "metrics for the terminal tables, comma-separated");
     add_output_options(command, arguments);

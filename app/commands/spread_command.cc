@@ -1,5 +1,7 @@
 #include "app/commands/spread_command.h"
 
+#include <fmt/format.h>
+
 #include "app/commands/command_steps.h"
 #include "app/report/study_report.h"
 #include "app/studies/spread.h"
@@ -24,6 +26,11 @@ int spread_command(const SpreadArguments& arguments) {
                                                             : kExitOk;
     return output;
   });
+}
+
+std::string shard_problem(const std::string& text) {
+  if (read_shard(text)) return "";
+  return fmt::format("'{}' is not a shard k/n with 1 <= k <= n; write e.g. '--shard 2/4'", text);
 }
 
 }  // namespace linkrise::app

@@ -24,4 +24,7 @@ struct SpreadArguments {
 
 int spread_command(const SpreadArguments& arguments);
 
+/// Why a --shard text is not "k/n" with 1 <= k <= n, for the command line's validator; empty when it is one.
+std::string shard_problem(const std::string& text);
+
 }  // namespace linkrise::app

@@ -2,6 +2,8 @@
 
 #include <cmath>
 
+#include "linkrise/version.h"
+
 namespace linkrise::app {
 
 nlohmann::json quantity(double value, const std::string& unit) {
@@ -12,7 +14,7 @@ nlohmann::json quantity(double value, const std::string& unit) {
 }
 
 nlohmann::json with_file_head(nlohmann::json fields, const std::string& case_title, const std::string& case_file) {
-  fields["tool"] = {{"name", "linkrise"}, {"version", LINKRISE_VERSION}};
+  fields["tool"] = {{"name", "linkrise"}, {"version", kVersion}};
   fields["case"] = {{"title", case_title}, {"file", case_file}};
   return fields;
 }

@@ -8,6 +8,7 @@
 
 #include "analysis/metrics.h"
 #include "app/output/text_format.h"
+#include "linkrise/version.h"
 #include "netlist/units.h"
 
 namespace linkrise::app {
@@ -154,7 +155,7 @@ std::string HtmlReport::html() const {
   // Nothing may be fetched: the page must look the same offline as online.
   out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'\"/>\n";
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
-  out += fmt::format("<meta name=\"generator\" content=\"linkrise {}\"/>\n", LINKRISE_VERSION);
+  out += fmt::format("<meta name=\"generator\" content=\"linkrise {}\"/>\n", kVersion);
   out += fmt::format("<title>{}</title>\n<style>{}</style>\n</head>\n<body>\n<div class=\"page\">\n",
                      escape_xml(title_), style_sheet);
   out += fmt::format("<header class=\"top\">\n<h1>{}</h1>\n", escape_xml(title_));
@@ -173,7 +174,7 @@ std::string HtmlReport::html() const {
   out += fmt::format(
       "<footer>Written by linkrise {}. The report carries no timestamp: the same input and version give the "
       "same file, byte for byte. Self-contained: no scripts, fonts or images are loaded.</footer>\n",
-      LINKRISE_VERSION);
+      kVersion);
   out += "</div>\n</body>\n</html>\n";
   return out;
 }

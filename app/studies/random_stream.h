@@ -8,8 +8,8 @@
 // generators", OOPSLA 2014), one per key word, each round mixing the previous result with the next word.
 // Uniform: the top 53 bits mapped to the open interval (0, 1) as (k + 0.5)·2⁻⁵³, so neither 0 nor 1 occurs and
 // the inverse CDF of the normal distribution is always finite.
-// Normal: the inverse of the standard normal CDF, Wichura's algorithm AS 241 (PPND16, Applied Statistics 37,
-// 1988; relative accuracy about 1e-16).
+// Normal: the inverse of the standard normal CDF from GSL (gsl_cdf_ugaussian_Pinv), a maintained library
+// rather than a hand-written rational approximation.
 #include <cstdint>
 
 namespace linkrise::app {
@@ -20,8 +20,6 @@ std::uint64_t splitmix64(std::uint64_t x);
 /// A uniform draw in (0, 1), a pure function of its three keys.
 double uniform_draw(std::uint64_t seed, std::uint64_t index, std::uint64_t slot);
 
-/// Φ⁻¹(p) for 0 < p < 1 (AS 241).
-double inverse_normal_cdf(double p);
 /// Φ(x), the standard normal CDF, through std::erfc.
 double normal_cdf(double x);
 

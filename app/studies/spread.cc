@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <cmath>
 #include <iostream>
+#include <tuple>
 
 #include <fmt/format.h>
 
@@ -21,22 +22,27 @@ constexpr std::size_t kCornerWarning = 256;
 constexpr std::size_t kCornerLimit = 65536;
 }  // namespace
 
-void parse_shard(const std::string& text, SpreadPlan& plan) {
-  netlist::SourceMark mark = option_mark("--shard", 1);
+std::optional<std::pair<int, int>> read_shard(const std::string& text) {
   std::size_t slash = text.find('/');
+  if (slash == std::string::npos) return std::nullopt;
   try {
-    if (slash == std::string::npos) throw std::invalid_argument("no slash");
     std::size_t used_k = 0, used_n = 0;
     int k = std::stoi(text.substr(0, slash), &used_k);
     int n = std::stoi(text.substr(slash + 1), &used_n);
-    if (used_k != slash || used_n != text.size() - slash - 1 || n < 1 || k < 1 || k > n) {
-      throw std::invalid_argument("out of range");
-    }
-    plan.shard = k;
-    plan.shards = n;
+    if (used_k != slash || used_n != text.size() - slash - 1 || n < 1 || k < 1 || k > n) return std::nullopt;
+    return std::pair{k, n};
   } catch (const std::exception&) {
-    throw InputError(mark, fmt::format("'{}' is not a shard k/n with 1 <= k <= n", text), "write e.g. '--shard 2/4'");
+    return std::nullopt;  // not a number, or out of int's range
   }
+}
+
+void parse_shard(const std::string& text, SpreadPlan& plan) {
+  auto shard = read_shard(text);
+  if (!shard) {
+    throw InputError(option_mark("--shard", 1), fmt::format("'{}' is not a shard k/n with 1 <= k <= n", text),
+                     "write e.g. '--shard 2/4'");
+  }
+  std::tie(plan.shard, plan.shards) = *shard;
 }
 
 SpreadPlan spread_plan(bool corners, std::size_t samples, std::uint64_t seed, const std::string& shard) {

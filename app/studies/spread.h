@@ -17,7 +17,9 @@
 // sample's verdict failed, 2 for bad input, 3 when the solver failed on a sample.
 #include <cstdint>
 #include <limits>
+#include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "app/studies/study_pool.h"
@@ -33,7 +35,9 @@ struct SpreadPlan {
   int shard = 1, shards = 1;
 };
 
-/// "k/n" -> shard k of n (1 <= k <= n). Throws InputError.
+/// "k/n" -> shard k of n (1 <= k <= n); nothing for any other text.
+std::optional<std::pair<int, int>> read_shard(const std::string& text);
+/// "k/n" -> shard k of n in `plan`. Throws InputError.
 void parse_shard(const std::string& text, SpreadPlan& plan);
 
 /// The value of tolerance `slot` in sample (or corner) `index`.
