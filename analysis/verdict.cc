@@ -5,6 +5,8 @@
 
 namespace linkrise::analysis {
 
+const char* verdict_word(Verdict verdict) { return verdict == Verdict::Pass ? "pass" : "fail"; }
+
 Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit,
                     const solver::SequenceReport* report) {
   Evaluation evaluation;
@@ -29,9 +31,10 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
   }
   if (report != nullptr && report->outcome != report->spec.expected_outcome) {
     evaluation.failures.push_back(fmt::format(
-        "the sequence ended '{}' after {} attempt(s), expected '{}'{}", report->outcome, report->attempts,
-        report->spec.expected_outcome,
-        report->outcome == "unfinished" ? " (the run ended first: lengthen 'run: duration')" : ""));
+        "the sequence ended '{}' after {} attempt(s), expected '{}'{}", netlist::outcome_word(report->outcome),
+        report->attempts, netlist::outcome_word(report->spec.expected_outcome),
+        report->outcome == netlist::SequenceOutcome::Unfinished ? " (the run ended first: lengthen 'run: duration')"
+                                                                : ""));
   }
   evaluation.pass = evaluation.failures.empty();
   return evaluation;

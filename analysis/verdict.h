@@ -16,12 +16,18 @@
 
 namespace linkrise::analysis {
 
+/// The judgement of one run: every limit, rating and the expected sequence outcome held, or not.
+enum class Verdict { Pass, Fail };
+/// "pass" or "fail", as outputs and golden files write it.
+const char* verdict_word(Verdict verdict);
+
 struct Evaluation {
   MetricSet metrics;
   std::optional<StallDiagnostic> stall;  // with a sequence only
   std::vector<JudgedLimit> limits;
   bool pass = true;
   std::vector<std::string> failures;  // one line per reason, empty when passing
+  Verdict verdict() const { return pass ? Verdict::Pass : Verdict::Fail; }
 };
 
 /// `report` is null for a case without a sequence. Throws netlist::InputError for a limit that names an

@@ -38,7 +38,7 @@ std::vector<ScenarioSpec> read_scenarios(const Tree& root) {
           read_set_block(*set, "a scenario's", "write e.g. 'set: {r_pre.resistance: 20 Ohm, ambient: 50 degC}'");
     }
     if (reader.has("expect")) {
-      scenario.expected = reader.word("expect", sequence_outcomes(), "closed");
+      scenario.expected = outcome_from_word(reader.word("expect", sequence_outcomes(), "closed"));
     } else {
       reader.accept("expect");
     }

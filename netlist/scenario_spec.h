@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "netlist/overrides.h"
+#include "netlist/sequence_spec.h"
 #include "netlist/tree.h"
 
 namespace linkrise::netlist {
@@ -19,7 +20,7 @@ namespace linkrise::netlist {
 struct ScenarioSpec {
   std::string name;
   std::vector<Override> overrides;
-  std::optional<std::string> expected;  // absent: a built-in scenario's own expectation (checked by `faults`)
+  std::optional<SequenceOutcome> expected;  // absent: a built-in scenario's own expectation (checked by `faults`)
   std::string note;
   SourceMark mark;
 };

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <set>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -13,6 +14,17 @@ namespace linkrise::netlist {
 const std::vector<std::string>& sequence_outcomes() {
   static const std::vector<std::string> outcomes = {"closed", "timeout", "no_rise", "too_fast", "unfinished"};
   return outcomes;
+}
+
+const char* outcome_word(SequenceOutcome outcome) {
+  return sequence_outcomes()[static_cast<std::size_t>(outcome)].c_str();
+}
+
+SequenceOutcome outcome_from_word(const std::string& word) {
+  const auto& words = sequence_outcomes();
+  const auto found = std::find(words.begin(), words.end(), word);
+  if (found == words.end()) throw std::invalid_argument("not a sequence outcome: " + word);
+  return static_cast<SequenceOutcome>(found - words.begin());
 }
 
 std::string SequenceSpec::rule_text() const {
@@ -185,7 +197,7 @@ void read_retries(ParameterReader& reader, SequenceSpec& sequence) {
                 "add e.g. 'cool_down: 2 s'");
   }
   sequence.cool_down = cool_down.value_or(0.0);
-  sequence.expected_outcome = reader.word("expected_outcome", sequence_outcomes(), "closed");
+  sequence.expected_outcome = outcome_from_word(reader.word("expected_outcome", sequence_outcomes(), "closed"));
 }
 
 // The times against each other and against the run's duration.

@@ -34,6 +34,12 @@ struct Case;
 
 enum class ClosingRule { Ratio, Difference };
 
+/// How a sequence ends: the main contactor closed, or the fault that stopped the last attempt, or the run ended
+/// while the sequence was still going.
+enum class SequenceOutcome { Closed, Timeout, NoRise, TooFast, Unfinished };
+/// The outcome as case files and outputs write it: closed, timeout, no_rise, too_fast, unfinished.
+const char* outcome_word(SequenceOutcome outcome);
+
 struct NodePair {
   std::string plus, minus;
 };
@@ -56,7 +62,7 @@ struct SequenceSpec {
   double timeout = 0.0;              // s
   int attempts = 1;
   double cool_down = 0.0;            // s
-  std::string expected_outcome = "closed";
+  SequenceOutcome expected_outcome = SequenceOutcome::Closed;
   SourceMark mark;
   // Where each named part is written, for the checks made once the part kinds are known.
   std::vector<SourceMark> start_closed_marks;
@@ -73,8 +79,10 @@ struct SequenceSpec {
   std::string rule_text() const;
 };
 
-/// The outcomes a sequence can end with.
+/// The words of the outcomes a sequence can end with, in enumeration order.
 const std::vector<std::string>& sequence_outcomes();
+/// The outcome a word names (one of sequence_outcomes()).
+SequenceOutcome outcome_from_word(const std::string& word);
 
 /// Reads and validates the `sequence:` block of a case tree against the parts, nodes, events and run already
 /// read into `spec`; std::nullopt when the case has none. That the named contactors are switches is checked

@@ -101,17 +101,18 @@ void SequenceController::start_attempt(double time, std::vector<Command>& comman
   rise_checked_ = false;
 }
 
-void SequenceController::raise_fault(double time, const std::string& fault, const std::string& reason,
+void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason,
                                      std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) {
   AttemptRecord& record = history_.back();
   record.fault = fault;
   record.fault_time = time;
   record.reason = reason;
-  timeline.push_back(TimelineEntry{time, fmt::format("fault {}", fault), reason});
+  const char* word = netlist::outcome_word(fault);
+  timeline.push_back(TimelineEntry{time, fmt::format("fault {}", word), reason});
   double latest = time;
   for (int part : start_closed_) {
     double parted = time + timing_of(circuit_, part).opening_delay;
-    commands.push_back(Command{parted, part, netlist::Action::Open, fmt::format("fault {}: pre-charge path opened", fault)});
+    commands.push_back(Command{parted, part, netlist::Action::Open, fmt::format("fault {}: pre-charge path opened", word)});
     latest = std::max(latest, parted);
   }
   if (static_cast<int>(history_.size()) < spec_.attempts) {
@@ -156,7 +157,7 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
 
   if (level_met && rate_met) {
     if (spec_.minimum_time > 0.0 && !due(elapsed, spec_.minimum_time)) {
-      raise_fault(t, "too_fast",
+      raise_fault(t, netlist::SequenceOutcome::TooFast,
                   fmt::format("link {} met '{}' after {}, before the minimum pre-charge time {} (capacitance "
                               "missing?)",
                               format_si(link, "V"), spec_.rule_text(), format_si(elapsed, "s"),
@@ -186,7 +187,7 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
     rise_checked_ = true;
     double level = *spec_.rise_fraction * pack;
     if (!(link >= level)) {
-      raise_fault(t, "no_rise",
+      raise_fault(t, netlist::SequenceOutcome::NoRise,
                   fmt::format("link {} is below {:g} % of pack ({}) {} after the start (short or reversed "
                               "connection?)",
                               format_si(link, "V"), 100.0 * *spec_.rise_fraction, format_si(level, "V"),
@@ -196,7 +197,7 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
     }
   }
   if (due(elapsed, spec_.timeout)) {
-    raise_fault(t, "timeout",
+    raise_fault(t, netlist::SequenceOutcome::Timeout,
                 fmt::format("'{}' not met within {}: link {}, pack {}", spec_.rule_text(),
                             format_si(spec_.timeout, "s"), format_si(link, "V"), format_si(pack, "V")),
                 commands, timeline);
@@ -218,7 +219,7 @@ SequenceReport SequenceController::report(double end_time) const {
   }
   report.attempts = static_cast<int>(report.history.size());
   for (const auto& record : report.history) {
-    if (!record.fault.empty()) {
+    if (record.fault) {
       report.first_fault = record.fault;
       report.first_fault_time = record.fault_time;
       break;
@@ -226,9 +227,9 @@ SequenceReport SequenceController::report(double end_time) const {
   }
   if (const AttemptRecord* last = report.last()) {
     if (!std::isnan(last->main_closed)) {
-      report.outcome = "closed";
-    } else if (!last->fault.empty() && phase_ == Phase::Faulted) {
-      report.outcome = last->fault;
+      report.outcome = netlist::SequenceOutcome::Closed;
+    } else if (last->fault && phase_ == Phase::Faulted) {
+      report.outcome = *last->fault;
     }
   }
   return report;

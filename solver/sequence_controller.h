@@ -44,7 +44,7 @@ class SequenceController final : public Supervisor {
   void schedule_close(int part, double coil_time, const std::string& why, std::vector<Command>& commands,
                       double& touch) const;
   void start_attempt(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
-  void raise_fault(double time, const std::string& fault, const std::string& reason, std::vector<Command>& commands,
+  void raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason, std::vector<Command>& commands,
                    std::vector<TimelineEntry>& timeline);
 
   const Circuit& circuit_;

@@ -2,6 +2,7 @@
 // What the BMS sequence controller did in one run, as plain data for the analyser and the reports.
 // Times are absolute run times in s; NaN means "did not happen within the run".
 #include <limits>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -19,18 +20,18 @@ struct AttemptRecord {
   double main_closed = kNotReached;  // main contacts first touched
   double released = kNotReached;     // pre-charge contacts parted after the overlap
   double fault_time = kNotReached;   // sample at which a fault was raised
-  std::string fault;                 // "", "timeout", "no_rise", "too_fast"
+  std::optional<netlist::SequenceOutcome> fault;  // timeout, no_rise or too_fast; none when no fault
   std::string reason;                // why it ended (decision or fault), in words
 };
 
 struct SequenceReport {
   netlist::SequenceSpec spec;  // the configuration the controller ran
   std::string ground;          // the case's ground node (it has no waveform column)
-  std::string outcome = "unfinished";  // closed | timeout | no_rise | too_fast | unfinished
+  netlist::SequenceOutcome outcome = netlist::SequenceOutcome::Unfinished;
   int attempts = 0;
   std::vector<AttemptRecord> history;
   double first_fault_time = kNotReached;
-  std::string first_fault;
+  std::optional<netlist::SequenceOutcome> first_fault;
 
   const AttemptRecord* last() const { return history.empty() ? nullptr : &history.back(); }
 };

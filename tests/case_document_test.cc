@@ -54,7 +54,7 @@ TEST(CaseDocument, ValidatesEverySectionIntoTypedData) {
   EXPECT_EQ(spec.limits[0].metric, "sequence.precharge_time");
   EXPECT_DOUBLE_EQ(spec.limits[0].maximum->value, 0.5);
   ASSERT_EQ(spec.scenarios.size(), 1u);
-  EXPECT_EQ(spec.scenarios[0].expected.value_or(""), "closed");
+  EXPECT_EQ(spec.scenarios[0].expected, linkrise::netlist::SequenceOutcome::Closed);
   ASSERT_EQ(spec.variants.size(), 1u);
   EXPECT_EQ(spec.variants[0].replaced_parts, std::vector<std::string>{"r_pre"});
   ASSERT_EQ(spec.tolerances.size(), 1u);

@@ -210,8 +210,8 @@ TEST(FaultsReport, EscapesHostileText) {
   DetectionRow simulated;
   simulated.scenario = hostile;
   simulated.description = hostile;
-  simulated.expected = "closed";
-  simulated.actual = "timeout";
+  simulated.expected = linkrise::netlist::SequenceOutcome::Closed;
+  simulated.actual = linkrise::netlist::SequenceOutcome::Timeout;
   simulated.note = hostile;
   simulated.pass = false;
   simulated.attempts = 1;
@@ -221,7 +221,6 @@ TEST(FaultsReport, EscapesHostileText) {
   DetectionRow skipped;
   skipped.scenario = "reversed_connection";
   skipped.applicable = false;
-  skipped.actual = "not_applicable";
   skipped.note = hostile;
   matrix.rows = {simulated, skipped};
 

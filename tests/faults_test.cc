@@ -32,14 +32,14 @@ const DetectionRow& row(const DetectionMatrix& matrix, const std::string& scenar
 TEST(Faults, WellDesignedCaseCatchesEveryBuiltInFault) {
   DetectionMatrix matrix = linkrise::app::detection_matrix(stored("sequence_clean_close.yaml"), 2);
   EXPECT_TRUE(matrix.pass()) << linkrise::app::matrix_text(matrix);
-  EXPECT_EQ(row(matrix, "nominal").actual, "closed");
-  EXPECT_EQ(row(matrix, "shorted_link").actual, "no_rise");
-  EXPECT_EQ(row(matrix, "open_precharge_resistor").actual, "no_rise");
-  EXPECT_EQ(row(matrix, "missing_capacitance").actual, "too_fast");
-  EXPECT_EQ(row(matrix, "oversize_capacitance").actual, "closed");
-  EXPECT_EQ(row(matrix, "reversed_connection").actual, "no_rise");
-  EXPECT_EQ(row(matrix, "constant_power_from_start").expected, "closed");
-  EXPECT_EQ(row(matrix, "slow_main_contactor").actual, "closed");  // a scenario the case defines
+  EXPECT_EQ(row(matrix, "nominal").actual_word(), "closed");
+  EXPECT_EQ(row(matrix, "shorted_link").actual_word(), "no_rise");
+  EXPECT_EQ(row(matrix, "open_precharge_resistor").actual_word(), "no_rise");
+  EXPECT_EQ(row(matrix, "missing_capacitance").actual_word(), "too_fast");
+  EXPECT_EQ(row(matrix, "oversize_capacitance").actual_word(), "closed");
+  EXPECT_EQ(row(matrix, "reversed_connection").actual_word(), "no_rise");
+  EXPECT_EQ(row(matrix, "constant_power_from_start").expected_word(), "closed");
+  EXPECT_EQ(row(matrix, "slow_main_contactor").actual_word(), "closed");  // a scenario the case defines
   // The rise check is due 25 ms after the start (a 5 ms sample), so it is the detection time into a short.
   EXPECT_NEAR(row(matrix, "shorted_link").detection_time, 25e-3, 1e-12);
   // Twice the capacitance: the resistor takes ½·C·V² twice over (docs/references.md [R-RC-energy]).
@@ -52,14 +52,14 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
   EXPECT_FALSE(matrix.pass());
   EXPECT_TRUE(row(matrix, "nominal").pass);
   const auto& shorted = row(matrix, "shorted_link");
-  EXPECT_EQ(shorted.expected, "timeout");  // no rise check: only the timeout can catch it
-  EXPECT_EQ(shorted.actual, "timeout");
+  EXPECT_EQ(shorted.expected_word(), "timeout");  // no rise check: only the timeout can catch it
+  EXPECT_EQ(shorted.actual_word(), "timeout");
   EXPECT_FALSE(shorted.resistor_survived);
   EXPECT_FALSE(shorted.pass);
   // Into the short the resistor takes V²/R for the whole 2 s timeout (Joule's law, docs/references.md
   // [R-Ohm-Joule]): ~22 kJ.
   EXPECT_GT(shorted.energy, 20e3);
-  EXPECT_EQ(row(matrix, "missing_capacitance").actual, "closed");  // no minimum time: nothing notices
+  EXPECT_EQ(row(matrix, "missing_capacitance").actual_word(), "closed");  // no minimum time: nothing notices
   EXPECT_FALSE(row(matrix, "missing_capacitance").pass);
   EXPECT_FALSE(row(matrix, "oversize_capacitance").resistor_survived);
   const auto& reversed = row(matrix, "reversed_connection");
@@ -77,14 +77,14 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
 TEST(Faults, ConstantPowerExpectationFollowsTheQuadratic) {
   DetectionMatrix stalled = linkrise::app::detection_matrix(stored("sequence_stall.yaml"), 1);
   const auto& bottom = row(stalled, "constant_power_from_start");
-  EXPECT_EQ(bottom.expected, "no_rise");
-  EXPECT_EQ(bottom.actual, "no_rise");
+  EXPECT_EQ(bottom.expected_word(), "no_rise");
+  EXPECT_EQ(bottom.actual_word(), "no_rise");
   EXPECT_TRUE(contains(bottom.note, "lower root")) << bottom.note;
   EXPECT_TRUE(stalled.pass()) << linkrise::app::matrix_text(stalled);
-  EXPECT_EQ(row(stalled, "light_converter_load").actual, "closed");
+  EXPECT_EQ(row(stalled, "light_converter_load").actual_word(), "closed");
   DetectionMatrix clean = linkrise::app::detection_matrix(stored("sequence_clean_close.yaml"), 1);
-  EXPECT_EQ(row(clean, "constant_power_from_start").expected, "closed");
-  EXPECT_EQ(row(clean, "constant_power_from_start").actual, "closed");
+  EXPECT_EQ(row(clean, "constant_power_from_start").expected_word(), "closed");
+  EXPECT_EQ(row(clean, "constant_power_from_start").actual_word(), "closed");
 }
 
 TEST(Faults, ResultsDoNotDependOnTheNumberOfThreads) {

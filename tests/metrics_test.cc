@@ -58,7 +58,7 @@ linkrise::solver::SequenceReport report() {
   r.spec.rule = linkrise::netlist::ClosingRule::Ratio;
   r.spec.rule_value = 0.95;
   r.ground = "gnd";
-  r.outcome = "closed";
+  r.outcome = linkrise::netlist::SequenceOutcome::Closed;
   r.attempts = 1;
   linkrise::solver::AttemptRecord attempt;
   attempt.start = kStart;
@@ -110,10 +110,10 @@ TEST(Metrics, AnAttemptThatNeverClosedLeavesTheClosureMetricsNotReached) {
   auto w = waveform();
   auto r = report();
   r.history[0].decision = r.history[0].main_closed = linkrise::solver::kNotReached;
-  r.history[0].fault = "timeout";
+  r.history[0].fault = linkrise::netlist::SequenceOutcome::Timeout;
   r.history[0].fault_time = 0.12;
   r.first_fault_time = 0.12;
-  r.outcome = "timeout";
+  r.outcome = linkrise::netlist::SequenceOutcome::Timeout;
   auto m = linkrise::analysis::sequence_metrics(w, r, linkrise::analysis::StallDiagnostic{});
   for (const char* name : {"sequence.main_close_time", "sequence.voltage_step_at_close", "sequence.peak_main_current",
                            "sequence.main_i2t", "sequence.link_overshoot", "sequence.precharge_time"}) {

@@ -89,7 +89,7 @@ TEST(SequenceController, DecisionIsQuantisedToTheSampleAndClosureDelayedByTheAct
                             "  overlap: 5 ms\n  close_when: {ratio: 90 %}\n  sample_period: 3 ms\n  start: 2 ms\n"
                             "  timeout: 2 s\n",
                             "400 ms"));
-  ASSERT_EQ(run.report.outcome, "closed");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::Closed);
   EXPECT_EQ(run.report.attempts, 1);
   const double start = 2e-3, period = 3e-3, c = 1e-3;
   const double contacts = start + 7e-3;  // k_pre closing delay
@@ -131,7 +131,7 @@ TEST(SequenceController, TimeoutFiresAtTheConfiguredTimeOnAConstantPowerStall) {
                             "  rise_check: {above: 50 %, by: 20 ms}\n",
                             "200 ms",
                             "{name: r_pre, kind: resistor, nodes: [mid, link], resistance: 0.99 Ohm}"));
-  ASSERT_EQ(run.report.outcome, "timeout");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::Timeout);
   EXPECT_EQ(run.report.attempts, 1);
   EXPECT_NEAR(run.report.first_fault_time, 60e-3, kTime);
   EXPECT_NEAR(run.metric("sequence.detection_time"), 60e-3, kTime);
@@ -157,7 +157,7 @@ TEST(SequenceController, TooFastFiresWithTheCapacitanceRemoved) {
                             "  close_when: {ratio: 95 %}\n  sample_period: 1 ms\n  minimum_time: 20 ms\n"
                             "  timeout: 200 ms\n",
                             "100 ms"));
-  ASSERT_EQ(run.report.outcome, "too_fast");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::TooFast);
   // k_pre touches at 7 ms; RC = 0.1 ms, so at the 8 ms sample the link is at 1 − e^(−10) of the pack.
   EXPECT_NEAR(run.report.first_fault_time, 8e-3, kTime);
   EXPECT_TRUE(std::isnan(run.metric("sequence.main_close_time")));
@@ -171,7 +171,7 @@ TEST(SequenceController, NoRiseFiresIntoAShort) {
                             "  close_when: {ratio: 95 %}\n  sample_period: 1 ms\n  timeout: 200 ms\n"
                             "  rise_check: {above: 20 %, by: 15 ms}\n",
                             "100 ms"));
-  ASSERT_EQ(run.report.outcome, "no_rise");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::NoRise);
   EXPECT_NEAR(run.report.first_fault_time, 15e-3, kTime);
   // Contacts closed from 7 ms to 15 ms + 2 ms opening delay.
   const double r_total = 0.01 + 100.0 + 0.01;
@@ -193,7 +193,7 @@ TEST(SequenceController, RetriesCarryTheResistorTemperatureAcrossAttempts) {
                             "500 ms",
                             "{name: r_pre, kind: resistor, nodes: [mid, link], resistance: 100 Ohm, "
                             "thermal: {heat_capacity: 10 J/K, thermal_resistance: adiabatic}}"));
-  ASSERT_EQ(run.report.outcome, "no_rise");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::NoRise);
   ASSERT_EQ(run.report.attempts, 3);
   // Attempts start at the first sample 100 ms after each fault: 0, 115 ms, 230 ms; faults 15 ms after each.
   EXPECT_NEAR(run.report.history[1].start, 115e-3, kTime);
@@ -238,7 +238,7 @@ TEST(SequenceController, ClosingInrushPeakMatchesTheSeriesRlcClosedForm) {
       "  close_when: {ratio: 90 %}\n  sample_period: 1 ms\n  timeout: 1 s\n"
       "run: {duration: 120 ms}\n";
   SequenceRun run(yaml, 1e-10, 1e-12);
-  ASSERT_EQ(run.report.outcome, "closed");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::Closed);
   const double t_close = run.metric("sequence.main_close_time");
   ASSERT_FALSE(std::isnan(t_close));
   const double v0 = linkrise::testing::value_at(run.result.steps, "link", t_close);
@@ -283,7 +283,7 @@ TEST(SequenceController, MainContactBouncesAsConfigured) {
   std::string from = "closing_delay: 11 ms}";
   text.replace(text.find(from), from.size(), "closing_delay: 11 ms, bounce_count: 2, bounce_interval: 0.5 ms}");
   SequenceRun run(text);
-  ASSERT_EQ(run.report.outcome, "closed");
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::Closed);
   double touch = run.metric("sequence.main_close_time");
   std::vector<std::pair<double, std::string>> moves;
   for (const auto& entry : run.result.timeline) {

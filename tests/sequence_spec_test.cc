@@ -50,7 +50,7 @@ TEST(SequenceSpec, ReadsAValidBlockWithDefaults) {
   EXPECT_DOUBLE_EQ(sequence->rule_value, 0.95);
   EXPECT_DOUBLE_EQ(sequence->closing_level(400.0), 380.0);
   EXPECT_EQ(sequence->attempts, 1);
-  EXPECT_EQ(sequence->expected_outcome, "closed");
+  EXPECT_EQ(sequence->expected_outcome, linkrise::netlist::SequenceOutcome::Closed);
   EXPECT_FALSE(sequence->rise_fraction.has_value());
   EXPECT_FALSE(case_from(kParts).sequence.has_value());
 }

@@ -44,12 +44,12 @@ TEST(StudyWindow, RecommendationFollowsTheRcExtremesAndCatchesTheFaults) {
   // No rise check in this case, so the short and the open resistor end in the timeout — at the timeout.
   const DetectionRow* shorted = row(window.matrix, "shorted_link");
   ASSERT_NE(shorted, nullptr);
-  EXPECT_EQ(shorted->actual, "timeout");
+  EXPECT_EQ(shorted->actual_word(), "timeout");
   EXPECT_NEAR(shorted->detection_time, window.timeout, 1e-9);
   const DetectionRow* missing = row(window.matrix, "missing_capacitance");
   ASSERT_NE(missing, nullptr);
-  EXPECT_EQ(missing->actual, "too_fast");
-  EXPECT_EQ(row(window.matrix, "oversize_capacitance")->actual, "timeout");
+  EXPECT_EQ(missing->actual_word(), "too_fast");
+  EXPECT_EQ(row(window.matrix, "oversize_capacitance")->actual_word(), "timeout");
   EXPECT_TRUE(window.verified()) << matrix_text(window.matrix);
 }
 
@@ -64,7 +64,7 @@ TEST(StudyWindow, StoredCaseWindowIsVerified) {
   ASSERT_FALSE(window.matrix.rows.empty());
   for (const auto& r : window.matrix.rows) {
     if (r.applicable) {
-      EXPECT_TRUE(r.pass) << r.scenario << ": " << r.actual << " instead of " << r.expected;
+      EXPECT_TRUE(r.pass) << r.scenario << ": " << r.actual_word() << " instead of " << r.expected_word();
     }
   }
   EXPECT_TRUE(window.verified()) << window_text(window, spread);

@@ -26,8 +26,8 @@ CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, sol
       evaluation.status = CaseEvaluation::Status::SolverFailure;
       evaluation.message = run.result().message;
     } else {
-      evaluation.outcome = run.report() ? run.report()->outcome : "completed";
-      evaluation.verdict = run.evaluation().pass ? "pass" : "fail";
+      evaluation.outcome = run.report() ? netlist::outcome_word(run.report()->outcome) : "completed";
+      evaluation.verdict = run.evaluation().verdict();
       for (const auto& metric : run.evaluation().metrics.list()) {
         evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
       }

@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "analysis/verdict.h"
 #include "netlist/case_document.h"
 #include "solver/waveform.h"
 
@@ -22,7 +23,7 @@ struct CaseEvaluation {
   Status status = Status::Evaluated;
   std::string message;  // the error text when not evaluated
   std::string outcome;  // sequence outcome ("closed", "timeout"...) or run outcome ("completed")
-  std::string verdict;  // "pass" or "fail"
+  analysis::Verdict verdict = analysis::Verdict::Fail;
   std::vector<MetricValue> metrics;
   double seconds = 0.0;  // wall time of the evaluation
 };

@@ -44,8 +44,8 @@ void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation
 void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
                   const analysis::Evaluation& evaluation) {
   nlohmann::json sequence;
-  sequence["outcome"] = report.outcome;
-  sequence["expected_outcome"] = report.spec.expected_outcome;
+  sequence["outcome"] = netlist::outcome_word(report.outcome);
+  sequence["expected_outcome"] = netlist::outcome_word(report.spec.expected_outcome);
   sequence["attempts"] = report.attempts;
   sequence["closing_rule"] = report.spec.rule_text();
   sequence["sample_period"] = quantity(report.spec.sample_period, "s");
@@ -57,7 +57,7 @@ void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
                        {"decision", time_or_null(attempt.decision)},
                        {"main_closed", time_or_null(attempt.main_closed)},
                        {"precharge_released", time_or_null(attempt.released)},
-                       {"fault", attempt.fault.empty() ? nlohmann::json(nullptr) : nlohmann::json(attempt.fault)},
+                       {"fault", attempt.fault ? nlohmann::json(netlist::outcome_word(*attempt.fault)) : nlohmann::json(nullptr)},
                        {"fault_time", time_or_null(attempt.fault_time)},
                        {"reason", attempt.reason}});
   }
@@ -90,8 +90,9 @@ std::string summary_json(const solver::Circuit& circuit, const solver::Result& r
 std::string verdict_terminal(const analysis::Evaluation& evaluation, const solver::SequenceReport* report) {
   std::string out;
   if (report != nullptr) {
-    out += fmt::format("  sequence  {} after {} attempt(s) (expected {}); rule: {}\n", report->outcome,
-                       report->attempts, report->spec.expected_outcome, report->spec.rule_text());
+    out += fmt::format("  sequence  {} after {} attempt(s) (expected {}); rule: {}\n",
+                       netlist::outcome_word(report->outcome), report->attempts,
+                       netlist::outcome_word(report->spec.expected_outcome), report->spec.rule_text());
     if (evaluation.stall && evaluation.stall->applicable) out += fmt::format("  stall     {}\n", evaluation.stall->explanation);
   }
   std::string table;

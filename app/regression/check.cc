@@ -53,7 +53,7 @@ void check_one(CaseCheck& check) {
     check.pass = false;
     return;
   }
-  check.rows = compare_with_golden(check.golden, check.evaluation.outcome, check.evaluation.verdict,
+  check.rows = compare_with_golden(check.golden, check.evaluation.outcome, analysis::verdict_word(check.evaluation.verdict),
                                    check.evaluation.metrics);
   check.pass = std::all_of(check.rows.begin(), check.rows.end(), [](const Comparison& row) { return row.pass; });
 }
@@ -140,7 +140,7 @@ std::vector<GoldenUpdate> golden_updates(const std::vector<CaseCheck>& checks) {
       updates.push_back(update);
       continue;
     }
-    Golden updated = golden_from(check.evaluation.outcome, check.evaluation.verdict, check.evaluation.metrics,
+    Golden updated = golden_from(check.evaluation.outcome, analysis::verdict_word(check.evaluation.verdict), check.evaluation.metrics,
                                  check.has_golden ? &check.golden : nullptr);
     if (check.has_golden) {
       // Every stored value that differs in the digits the golden file keeps, however small the change.

@@ -34,7 +34,7 @@ std::vector<std::string> failure_lines(const DetectionMatrix& matrix) {
     if (row.pass) continue;
     std::string why;
     for (const auto& reason : failure_reasons(row)) why += (why.empty() ? "" : "; ") + reason;
-    if (row.actual == "solver_failure" && !row.note.empty()) why += " (" + row.note + ")";
+    if (row.solver_failed && !row.note.empty()) why += " (" + row.note + ")";
     lines.push_back(fmt::format("{} \u2014 FAIL: {}", row.scenario, why));
   }
   return lines;
@@ -103,7 +103,7 @@ void add_matrix_table(HtmlReport& report, const DetectionMatrix& matrix) {
   // Only the short columns are numeric (kept on one line); value / rating pairs may wrap to fit the page.
   table.numeric_columns = {3, 4};
   for (const auto& row : matrix.rows) {
-    table.rows.push_back({row.scenario, row.expected, row.applicable ? row.actual : "-",
+    table.rows.push_back({row.scenario, row.expected_word(), row.applicable ? row.actual_word() : "-",
                           row.applicable ? fmt::format("{}", row.attempts) : "-",
                           display_metric(row.detection_time, "s"),
                           against(row.peak_temperature, row.temperature_rating, "degC"),
@@ -164,7 +164,7 @@ void add_link_plots(HtmlReport& report, const DetectionMatrix& matrix) {
   for (const auto& row : matrix.rows) {
     if (!row.applicable || row.link_time.empty()) continue;
     PlotSpec plot;
-    plot.title = fmt::format("{}: {}", row.scenario, row.actual);
+    plot.title = fmt::format("{}: {}", row.scenario, row.actual_word());
     plot.x_label = "time";
     plot.x_unit = "s";
     plot.y_label = "link voltage";
@@ -177,8 +177,8 @@ void add_link_plots(HtmlReport& report, const DetectionMatrix& matrix) {
     series.dash = "none";
     plot.series.push_back(std::move(series));
     if (std::isfinite(row.detection_time)) plot.markers.push_back({row.detection_time, "first fault"});
-    report.line_plot(std::move(plot), fmt::format("{} \u2014 expected {}, ended {}: {}", row.scenario, row.expected,
-                                                  row.actual, row.pass ? "pass" : "FAIL"));
+    report.line_plot(std::move(plot), fmt::format("{} \u2014 expected {}, ended {}: {}", row.scenario, row.expected_word(),
+                                                  row.actual_word(), row.pass ? "pass" : "FAIL"));
     ++drawn;
   }
   if (drawn == 0) report.paragraph("No scenario was simulated, so there is no link voltage to show.");

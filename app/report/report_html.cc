@@ -733,7 +733,7 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
 void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluation,
                     const solver::SequenceReport* sequence) {
   Assessment assessment;
-  assessment.verdict = evaluation.pass ? "pass" : "fail";
+  assessment.verdict = analysis::verdict_word(evaluation.verdict());
   assessment.failures = evaluation.failures;
   for (const auto& limit : evaluation.limits) {
     LimitRow row;
@@ -766,7 +766,7 @@ void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluatio
     hints.closing_difference = spec.rule_value;
   }
   hints.rule_text = spec.rule_text();
-  hints.outcome = sequence->outcome;
+  hints.outcome = netlist::outcome_word(sequence->outcome);
   hints.attempts = sequence->attempts;
 }
 

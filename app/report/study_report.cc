@@ -274,7 +274,7 @@ void add_window_overview(HtmlReport& report, const FaultWindow& window, const Sp
       }
     }
     for (const auto& row : window.matrix.rows) {
-      if (!row.pass) reasons.push_back(fmt::format("scenario {} ended '{}', expected '{}'", row.scenario, row.actual, row.expected));
+      if (!row.pass) reasons.push_back(fmt::format("scenario {} ended '{}', expected '{}'", row.scenario, row.actual_word(), row.expected_word()));
     }
     std::string why;
     for (const auto& reason : reasons) why += (why.empty() ? "" : "; ") + reason;
@@ -364,11 +364,11 @@ void add_window_verification(HtmlReport& report, const FaultWindow& window, cons
   }
   for (const auto& row : window.matrix.rows) {
     if (!row.applicable) {
-      table.rows.push_back({"scenario " + row.scenario, row.expected, "-", "-", "not applicable"});
+      table.rows.push_back({"scenario " + row.scenario, row.expected_word(), "-", "-", "not applicable"});
       table.row_tones.push_back(Tone::Plain);
       continue;
     }
-    table.rows.push_back({"scenario " + row.scenario, row.expected, row.actual, display_seconds(row.detection_time),
+    table.rows.push_back({"scenario " + row.scenario, row.expected_word(), row.actual_word(), display_seconds(row.detection_time),
                           row.pass ? "PASS" : "FAIL"});
     table.row_tones.push_back(row.pass ? Tone::Pass : Tone::Fail);
   }

@@ -133,7 +133,7 @@ nlohmann::json comparison_json_value(const VariantComparison& comparison) {
                         {"status", status_word(point.status)},
                         {"message", point.message},
                         {"outcome", point.outcome},
-                        {"verdict", point.verdict},
+                        {"verdict", analysis::verdict_word(point.verdict)},
                         {"metrics", metrics}});
   }
   nlohmann::json best = nlohmann::json::object();

@@ -24,12 +24,18 @@
 
 namespace linkrise::app {
 
+std::string DetectionRow::actual_word() const {
+  if (!applicable) return "not_applicable";
+  if (solver_failed) return "solver_failure";
+  return netlist::outcome_word(actual);
+}
+
 bool DetectionMatrix::pass() const {
   return std::all_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.pass; });
 }
 
 bool DetectionMatrix::solver_failure() const {
-  return std::any_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.actual == "solver_failure"; });
+  return std::any_of(rows.begin(), rows.end(), [](const DetectionRow& row) { return row.solver_failed; });
 }
 
 std::size_t DetectionMatrix::failed() const {
@@ -68,8 +74,8 @@ std::vector<const models::Part*> parts_where(const solver::Circuit& circuit, con
 }
 
 // What a caught fault ends as: no_rise with a rise check, timeout without.
-std::string caught_outcome(const netlist::SequenceSpec& sequence) {
-  return sequence.rise_fraction ? "no_rise" : "timeout";
+netlist::SequenceOutcome caught_outcome(const netlist::SequenceSpec& sequence) {
+  return sequence.rise_fraction ? netlist::SequenceOutcome::NoRise : netlist::SequenceOutcome::Timeout;
 }
 
 // The plan under construction: the rows in order, each with its own copy of the case document.
@@ -91,7 +97,7 @@ class Plan {
   }
 
  private:
-  Planned& add(const std::string& name, const std::string& description, const std::string& expected) {
+  Planned& add(const std::string& name, const std::string& description, netlist::SequenceOutcome expected) {
     Planned p;
     p.row.scenario = name;
     p.row.description = description;
@@ -102,7 +108,6 @@ class Plan {
   }
   static void not_applicable(Planned& p, const std::string& reason) {
     p.row.applicable = false;
-    p.row.actual = "not_applicable";
     p.row.note = reason;
   }
 
@@ -132,8 +137,8 @@ class Plan {
       if (auto value = part->defining_value()) paths.push_back(part->name() + "." + value->parameter);
     }
     for (auto [name, factor, expected, description] :
-         {std::tuple{"missing_capacitance", 1e-3, std::string("too_fast"), "link capacitance at 0.1 % (stray only)"},
-          std::tuple{"oversize_capacitance", 2.0, std::string("closed"), "link capacitance doubled"}}) {
+         {std::tuple{"missing_capacitance", 1e-3, netlist::SequenceOutcome::TooFast, "link capacitance at 0.1 % (stray only)"},
+          std::tuple{"oversize_capacitance", 2.0, netlist::SequenceOutcome::Closed, "link capacitance doubled"}}) {
       Planned& p = add(name, description, expected);
       if (paths.empty()) {
         not_applicable(p, "no capacitor is connected across the sensed link nodes");
@@ -144,7 +149,7 @@ class Plan {
   }
 
   void constant_power_from_start() {
-    Planned& p = add("constant_power_from_start", "constant-power loads draw from 0 V on", "closed");
+    Planned& p = add("constant_power_from_start", "constant-power loads draw from 0 V on", netlist::SequenceOutcome::Closed);
     p.expect_from_stall = true;
     bool any = false;
     for (const models::Part* load : parts_where(circuit_, sequence_, models::Role::Load, false)) {
@@ -202,7 +207,7 @@ class Plan {
   const solver::Circuit& circuit_;
   const netlist::SequenceSpec& sequence_;
   const netlist::SourceMark at_;  // built-in edits point at the sequence block
-  const std::string caught_;      // the outcome a fault that stops the rise ends in
+  const netlist::SequenceOutcome caught_;  // the outcome a fault that stops the rise ends in
   std::vector<Planned> planned_;
 };
 
@@ -210,11 +215,12 @@ class Plan {
 // must first climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2: where the loads are still constant-power
 // there (the root lies above their resistive floor) it cannot, and stays near 0 V. Past it, the link settles at the
 // upper root, which must reach the closing level.
-std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const netlist::SequenceSpec& sequence,
-                               std::string& explanation) {
+netlist::SequenceOutcome outcome_from_stall(const analysis::StallDiagnostic& stall,
+                                            const netlist::SequenceSpec& sequence, std::string& explanation) {
+  using netlist::SequenceOutcome;
   explanation = stall.explanation;
-  if (!stall.applicable) return "closed";
-  const std::string caught = caught_outcome(sequence);
+  if (!stall.applicable) return SequenceOutcome::Closed;
+  const SequenceOutcome caught = caught_outcome(sequence);
   if (std::isnan(stall.equilibrium)) return caught;
   if (stall.lower_root >= stall.resistive_below) {
     explanation = fmt::format(
@@ -223,16 +229,18 @@ std::string outcome_from_stall(const analysis::StallDiagnostic& stall, const net
         netlist::format_si(stall.lower_root, "V"));
     return caught;
   }
-  if (!stall.stalls) return "closed";
-  if (sequence.rise_fraction && stall.equilibrium < *sequence.rise_fraction * stall.source_voltage) return "no_rise";
-  return "timeout";
+  if (!stall.stalls) return SequenceOutcome::Closed;
+  if (sequence.rise_fraction && stall.equilibrium < *sequence.rise_fraction * stall.source_voltage) {
+    return SequenceOutcome::NoRise;
+  }
+  return SequenceOutcome::Timeout;
 }
 
 void run_row(Planned& p) {
   DetectionRow& row = p.row;
   CaseRun run(*p.spec);
   if (run.solver_failed()) {
-    row.actual = "solver_failure";
+    row.solver_failed = true;
     row.note = run.result().message;
     row.pass = false;
     return;
@@ -335,7 +343,7 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs) {
 std::vector<std::string> failure_reasons(const DetectionRow& row) {
   std::vector<std::string> reasons;
   if (!row.applicable || row.pass) return reasons;
-  if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual, row.expected));
+  if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual_word(), row.expected_word()));
   if (!row.resistor_survived) reasons.push_back("the resistor exceeded its rating before the fault was cleared");
   return reasons;
 }
@@ -347,8 +355,8 @@ std::string matrix_text(const DetectionMatrix& matrix) {
                      "detected", "peak temperature", "energy", "result");
   for (const auto& row : matrix.rows) {
     std::string result = !row.applicable ? "n/a" : row.pass ? "pass" : "FAIL";
-    out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected,
-                       row.actual, row.applicable ? std::to_string(row.attempts) : "-",
+    out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected_word(),
+                       row.actual_word(), row.applicable ? std::to_string(row.attempts) : "-",
                        analysis::format_metric(row.detection_time, "s"), against(row.peak_temperature, row.temperature_rating, "degC"),
                        against(row.energy, row.energy_rating, "J"), result);
     if (!row.applicable || !row.note.empty() || (row.applicable && !row.pass)) {
@@ -368,7 +376,7 @@ std::string matrix_csv(const DetectionMatrix& matrix) {
       "scenario,expected,actual,applicable,attempts,detection_time [s],peak_temperature [degC],"
       "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
   for (const auto& row : matrix.rows) {
-    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected, row.actual,
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(), row.actual_word(),
                        row.applicable ? "yes" : "no", row.attempts, number(row.detection_time),
                        number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
                        number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
@@ -382,8 +390,8 @@ nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
   for (const auto& row : matrix.rows) {
     rows.push_back({{"scenario", row.scenario},
                     {"description", row.description},
-                    {"expected", row.expected},
-                    {"actual", row.actual},
+                    {"expected", row.expected_word()},
+                    {"actual", row.actual_word()},
                     {"applicable", row.applicable},
                     {"attempts", row.attempts},
                     {"detection_time", quantity(row.detection_time, "s")},

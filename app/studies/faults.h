@@ -32,11 +32,16 @@
 namespace linkrise::app {
 
 struct DetectionRow {
+  /// How the row ended, in words: the sequence outcome, "not_applicable" or "solver_failure".
+  std::string actual_word() const;
+  std::string expected_word() const { return netlist::outcome_word(expected); }
+
   std::string scenario;
   std::string description;
-  std::string expected;
-  std::string actual;  // the sequence outcome, "not_applicable" or "solver_failure"
+  netlist::SequenceOutcome expected = netlist::SequenceOutcome::Closed;
+  netlist::SequenceOutcome actual = netlist::SequenceOutcome::Unfinished;  // when simulated without failure
   bool applicable = true;
+  bool solver_failed = false;
   std::string note;  // why not applicable, the solver's message, or the scenario's note
   int attempts = 0;
   double detection_time = std::numeric_limits<double>::quiet_NaN();   // s, first fault

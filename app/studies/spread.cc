@@ -85,7 +85,7 @@ double quantile(const std::vector<double>& sorted, double p) {
 
 std::size_t Spread::failed() const {
   return static_cast<std::size_t>(std::count_if(results.points.begin(), results.points.end(), [](const PointResult& p) {
-    return p.evaluated() && p.verdict != "pass";
+    return p.evaluated() && p.verdict != analysis::Verdict::Pass;
   }));
 }
 
@@ -252,7 +252,7 @@ std::string spread_csv(const Spread& spread) {
       double v = spread_value(spread.tolerances, spread.plan, spread.index(p), j);
       out.append(",").append(csv_number(spread.tolerances[j].absolute_temperature ? v - 273.15 : v));
     }
-    out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(point.verdict));
+    out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(analysis::verdict_word(point.verdict)));
     for (double value : point.values) out.append(",").append(csv_number(value));
     out += "\n";
   }

@@ -101,7 +101,7 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);
         point.outcome = std::move(evaluation.outcome);
-        point.verdict = std::move(evaluation.verdict);
+        point.verdict = evaluation.verdict;
         if (fixed_columns) {
           point.values = aligned(evaluation.metrics, *fixed_columns);
         } else {

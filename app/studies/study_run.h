@@ -24,14 +24,14 @@ struct PointResult {
   CaseEvaluation::Status status = CaseEvaluation::Status::Evaluated;
   std::string message;
   std::string outcome;
-  std::string verdict;
+  analysis::Verdict verdict = analysis::Verdict::Fail;
   std::vector<double> values;  // one per StudyResults::columns; NaN when not reached or absent
   bool evaluated() const { return status == CaseEvaluation::Status::Evaluated; }
-  bool passed() const { return evaluated() && verdict == "pass"; }
+  bool passed() const { return evaluated() && verdict == analysis::Verdict::Pass; }
   /// The outcome, or the status word ("input error", "solver failure") when the point was not evaluated.
   std::string outcome_word() const { return evaluated() ? outcome : status_word(status); }
   /// The verdict, or the status word when the point was not evaluated.
-  std::string verdict_word() const { return evaluated() ? verdict : status_word(status); }
+  std::string verdict_word() const { return evaluated() ? analysis::verdict_word(verdict) : status_word(status); }
 };
 
 struct StudyResults {

@@ -92,7 +92,7 @@ std::string sweep_csv(const Sweep& sweep) {
     for (std::size_t p = 0; p < sweep.parameters.size(); ++p) {
       out.append(",").append(csv_text(sweep.parameters[p].values[sweep.points[i][p]]));
     }
-    out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(point.verdict));
+    out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(analysis::verdict_word(point.verdict)));
     for (double value : point.values) out.append(",").append(csv_number(value));
     out += "\n";
   }
