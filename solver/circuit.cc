@@ -92,18 +92,22 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
   }
 }
 
-// The sequence's contactors must be switches and its resistor resistive; the kinds are known only here.
+// The sequence's contactors must be switches; the part kinds are known only here.
 void Circuit::check_sequence_parts() const {
   if (!spec_.sequence) return;
   const netlist::SequenceSpec& sequence = *spec_.sequence;
   for (const auto& [name, mark] : sequence.moved_contactors()) {
     const models::Part& part = *parts_[find_part(name)];
-    if (part.role() != models::Role::Switch) {
-      throw netlist::InputError(mark,
-                                fmt::format("the sequence moves '{}', a {} part ({}), which cannot switch", name,
-                                            models::role_word(part.role()), part.kind()),
-                                "name a part of kind 'contactor'");
+    if (part.role() == models::Role::Switch) continue;
+    std::string switches;
+    for (const auto& other : parts_) {
+      if (other->role() == models::Role::Switch) switches += (switches.empty() ? "" : ", ") + other->name();
     }
+    throw netlist::InputError(mark,
+                              fmt::format("the sequence moves '{}', a {} part ({}), which cannot switch", name,
+                                          models::role_word(part.role()), part.kind()),
+                              switches.empty() ? "add a contactor part for the sequence to move"
+                                               : "name one of the case's switching parts: " + switches);
   }
 }
 

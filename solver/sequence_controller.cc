@@ -15,8 +15,9 @@ using netlist::format_si;
 int contactor_index(const Circuit& circuit, const std::string& name, const netlist::SourceMark& mark) {
   int index = circuit.find_part(name);
   if (index < 0 || !circuit.part(index).actuation()) {
-    throw netlist::InputError(mark, fmt::format("the sequence names '{}', which is not a contactor", name),
-                              "name a part of kind 'contactor'");
+    // Circuit::check_sequence_parts() rejects this with a fix first; kept for controllers built by hand.
+    throw netlist::InputError(mark, fmt::format("the sequence names '{}', which cannot switch", name),
+                              "name one of the case's switching parts");
   }
   return index;
 }

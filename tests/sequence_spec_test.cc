@@ -81,6 +81,7 @@ TEST(SequenceSpec, MainMustBeAContactor) {
   std::string message = error_of(with_sequence(text));
   EXPECT_TRUE(contains(message, "test.yaml:12:9")) << message;
   EXPECT_TRUE(contains(message, "'r_pre', a resistive part (resistor), which cannot switch")) << message;
+  EXPECT_TRUE(contains(message, "name one of the case's switching parts: k_pre, k_main")) << message;
 }
 
 TEST(SequenceSpec, UnknownNodeGetsADidYouMean) {
