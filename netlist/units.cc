@@ -311,20 +311,28 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
   return quantity;
 }
 
+const char* si_prefix(int exponent) {
+  switch (exponent) {
+    case -12: return "p";
+    case -9: return "n";
+    case -6: return "\u00B5";
+    case -3: return "m";
+    case 3: return "k";
+    case 6: return "M";
+    case 9: return "G";
+    case 12: return "T";
+    default: return "";
+  }
+}
+
 std::string format_si(double value, std::string_view unit, int significant) {
   if (!std::isfinite(value)) return fmt::format("{} {}", value, unit);
   if (value == 0.0) return fmt::format("0 {}", unit);
-  static const std::array<std::pair<int, const char*>, 9> prefixes = {
-      {{-12, "p"}, {-9, "n"}, {-6, "µ"}, {-3, "m"}, {0, ""}, {3, "k"}, {6, "M"}, {9, "G"}, {12, "T"}}};
   if (unit == "%" || unit == "degC" || unit.empty()) return fmt::format("{:.{}g} {}", value, significant, unit);
   int exponent3 = static_cast<int>(std::floor(std::log10(std::fabs(value)) / 3.0)) * 3;
   exponent3 = std::clamp(exponent3, -12, 12);
-  const char* prefix = "";
-  for (const auto& [power, symbol] : prefixes) {
-    if (power == exponent3) prefix = symbol;
-  }
   double scaled = value / std::pow(10.0, exponent3);
-  return fmt::format("{:.{}g} {}{}", scaled, significant, prefix, unit);
+  return fmt::format("{:.{}g} {}{}", scaled, significant, si_prefix(exponent3), unit);
 }
 
 std::string display_quantity(const Quantity& quantity) {

@@ -57,6 +57,8 @@ struct Quantity {
 /// with products (*, ·), quotients (/) and powers (^2, ², ³) such as J/K, K/W, mm², %/K, 1/K.
 std::optional<Quantity> parse_quantity(std::string_view text, std::string& problem);
 
+/// The SI prefix of a power of ten that is a multiple of 3 from -12 to 12 ("p" … "T", "µ" for -6; "" otherwise).
+const char* si_prefix(int exponent);
 /// Formats a number with an SI prefix and unit, e.g. 0.0012 F -> "1.2 mF" (for messages and terminal output).
 std::string format_si(double value, std::string_view unit, int significant = 4);
 /// A quantity for people: SI prefix and unit, an absolute temperature in degC ("33 Ohm", "25 degC").

@@ -11,6 +11,7 @@
 
 #include "app/output/decimation.h"
 #include "app/output/text_format.h"
+#include "netlist/units.h"
 
 namespace linkrise::app {
 namespace {
@@ -54,18 +55,6 @@ bool is_unprefixed_unit(const std::string& unit) {
   return unit.empty() || unit == "%" || unit == "degC" || unit == "\u00B0C";
 }
 
-const char* prefix_for(int exponent) {
-  switch (exponent) {
-    case -12: return "p";
-    case -9: return "n";
-    case -6: return "\u00B5";
-    case -3: return "m";
-    case 3: return "k";
-    case 6: return "M";
-    case 9: return "G";
-    default: return "";
-  }
-}
 
 // Zero-valued numbers print without a sign: "-0.00" reads as a bug.
 std::string strip_negative_zero(std::string text) {
@@ -752,7 +741,7 @@ std::string si_label(double value, double step, const std::string& unit,
   std::string text =
       strip_negative_zero(fmt::format("{:.{}f}", scaled, decimals));
   const std::string shown_unit = display_unit(unit);
-  const std::string prefix = unprefixed ? "" : prefix_for(used_exponent);
+  const std::string prefix = unprefixed ? "" : netlist::si_prefix(used_exponent);
   if (!prefix.empty() || !shown_unit.empty()) {
     text += ' ';
     text += prefix;
