@@ -154,6 +154,27 @@ TEST(RunReport, EnergyAndPeakNumbersMatchClosedForms) {
   EXPECT_EQ(cell_text(doc, parts, 2, 3), "16 kW");
 }
 
+TEST(RunReport, ListsTheValuesACableDerivedFromItsGeometry) {
+  // Without a geometry cable the table is left out.
+  const ParseResult plain = parse_xml(ReportedRun(rc_case("RC pre-charge")).html());
+  ASSERT_TRUE(plain.ok) << plain.error;
+  EXPECT_LT(find_id(plain, "derived"), 0);
+  // 2 × 1 m of 35 mm² copper at 20 °C: 2·ρ·L/A = 0.96 mOhm with ρ = 1.68e-8 Ohm·m
+  // (docs/references.md [R-conductor-resistivity]); the report prints 4 significant digits.
+  std::string yaml = rc_case("cable");  // the supply reaches the contactors through the cable
+  yaml.replace(yaml.find("nodes: [p, n], voltage"), 13, "nodes: [s, n]");
+  yaml.replace(yaml.find("  - {name: k_pre"), 0,
+               "  - {name: lead, kind: cable, nodes: [s, p], length: 1 m, cross_section: 35 mm², spacing: 20 mm}\n");
+  const ParseResult doc = parse_xml(ReportedRun(yaml).html());
+  ASSERT_TRUE(doc.ok) << doc.error;
+  const int derived = find_id(doc, "derived");
+  ASSERT_GE(derived, 0);
+  EXPECT_EQ(body_rows(doc, derived), 2);
+  EXPECT_EQ(cell_text(doc, derived, 0, 0), "lead");
+  EXPECT_EQ(cell_text(doc, derived, 0, 1), "loop resistance");
+  EXPECT_EQ(cell_text(doc, derived, 0, 2), "960 µOhm");
+}
+
 TEST(RunReport, IsByteReproducible) {
   // Two independent simulations of the same case: identical files (no timestamp, no addresses, fixed formats).
   const ReportedRun first(rc_case("RC pre-charge"));

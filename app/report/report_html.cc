@@ -718,7 +718,7 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
   ReportTable derived;
   derived.id = "derived";
   derived.caption = "Values the parts derived from their inputs";
-  derived.columns = {"part", "value", "", "how"};
+  derived.columns = {"part", "quantity", "value", "how"};
   derived.numeric_columns = {2};
   for (int p = 0; p < circuit.part_count(); ++p) {
     for (const auto& value : circuit.part(p).derived_values()) {
