@@ -136,7 +136,10 @@ void read_resistor(const Case& spec, ParameterReader& reader, const Tree& block,
     throw InputError(block.mark, "the sequence needs 'resistor', the pre-charge resistor it judges",
                      "add e.g. 'resistor: r_pre'");
   }
-  if (!node->is_scalar() || spec.find_part(node->text) == nullptr) {
+  if (!node->is_scalar()) {
+    throw InputError(node->mark, "the sequence's resistor must be one part name", "write e.g. 'resistor: r_pre'");
+  }
+  if (spec.find_part(node->text) == nullptr) {
     throw InputError(node->mark, fmt::format("the sequence's resistor '{}' is not in the parts list", node->text),
                      did_you_mean(node->text, spec.part_names(), "name the pre-charge resistor part"));
   }

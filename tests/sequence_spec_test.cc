@@ -74,6 +74,14 @@ TEST(SequenceSpec, MisspeltKeyIsNamedWithItsPositionAndASuggestion) {
   EXPECT_TRUE(contains(message, "did you mean 'timeout'?")) << message;
 }
 
+TEST(SequenceSpec, ResistorMustBeOnePartName) {
+  std::string text = kGood;
+  text.replace(text.find("resistor: r_pre"), 15, "resistor: [r_pre]");
+  std::string message = error_of(with_sequence(text));
+  EXPECT_TRUE(contains(message, "test.yaml:13:13")) << message;
+  EXPECT_TRUE(contains(message, "must be one part name")) << message;
+}
+
 // Checked when the circuit is built: only the part models know that a resistor cannot switch.
 TEST(SequenceSpec, MainMustBeAContactor) {
   std::string text = kGood;
