@@ -26,7 +26,7 @@ std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit) {
       limit.metric = fmt::format("{}.{}", part.name(), rating.metric);
       netlist::Quantity bound;
       std::string problem;
-      if (auto parsed = netlist::parse_quantity(fmt::format("{:.17g} {}", rating.value, rating.unit), problem)) {
+      if (auto parsed = netlist::parse_quantity(fmt::format("{} {}", rating.value, rating.unit), problem)) {
         bound = *parsed;
       } else {
         bound.value = rating.value;
@@ -66,6 +66,7 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
       j.metric = limit.metric;
       j.bound = side;
       j.unit = metric->unit;
+      j.margin_unit = difference_unit(metric->unit);
       j.source = limit.source;
       j.rated_part = limit.rated_part;
       j.limit = in_metric_unit(bound, metric->unit);

@@ -1,9 +1,10 @@
 #pragma once
 // Judging metrics against limits: the case's `limits:` block and the ratings declared on parts.
 //
-// For a maximum, margin = bound − value; for a minimum, margin = value − bound (in the metric's unit; positive
-// inside the bound). relative_margin = margin / |bound|. A limit passes when margin >= required·|bound|
-// (required margin 0 unless the limit sets `margin:`). A metric that was not reached in the run (NaN, e.g.
+// For a maximum, margin = bound − value; for a minimum, margin = value − bound (in the metric's unit, K for a
+// temperature in degC since a margin is a difference; positive inside the bound). relative_margin =
+// margin / |bound|. A limit passes when margin >= required·|bound| (required margin 0 unless the limit sets
+// `margin:`). A metric that was not reached in the run (NaN, e.g.
 // the main current of a sequence that never closed) is reported as not judged and does not fail; the
 // sequence outcome judges that run.
 #include <string>
@@ -23,7 +24,8 @@ const char* bound_word(BoundSide side);
 struct JudgedLimit {
   std::string metric;
   BoundSide bound = BoundSide::Maximum;
-  std::string unit;
+  std::string unit;         // of the limit and the value
+  std::string margin_unit;  // of the margin: difference_unit(unit), K for a temperature
   std::string source;  // "limits block" or "rating of <part>"
   std::string rated_part;  // the part whose rating this is; empty for the limits block
   double limit = 0.0;

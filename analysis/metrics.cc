@@ -48,9 +48,11 @@ netlist::Dimension metric_dimension(const std::string& unit) {
   throw std::logic_error(fmt::format("metric unit '{}' has no dimension", unit));
 }
 
+std::string difference_unit(const std::string& unit) { return unit == "degC" ? "K" : unit; }
+
 std::string format_metric(double value, const std::string& unit) {
   if (std::isnan(value)) return "-";
-  if (unit == "degC") return fmt::format("{:.4g} degC", value);
+  if (unit == "degC" || unit == "K") return fmt::format("{:.4g} {}", value, unit);
   if (unit == "1") return fmt::format("{:g}", value);
   return netlist::format_si(value, unit);
 }
@@ -104,8 +106,8 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
         "sensed pack minus sensed link voltage just before the main contacts touched");
   m.add("sequence.peak_main_current", after_close ? or_nan(main_current.absolute().maximum(closed, end)) : kNaN, "A",
         "largest |current| through the main contactor from its closure to the end of the run");
-  m.add("sequence.main_i2t", after_close ? main_current.squared().integral(closed, end) : kNaN, "A²s",
-        "∫ i² dt of the main contactor current from its closure to the end of the run");
+  m.add("sequence.main_current_squared_time", after_close ? main_current.squared().integral(closed, end) : kNaN,
+        "A²s", "I²t: ∫ i² dt of the main contactor current from its closure to the end of the run");
   m.add("sequence.peak_precharge_current",
         rows ? or_nan(pre_current.absolute().maximum(waveform.times().front(), end)) : kNaN, "A",
         "largest |current| through the pre-charge contactor over the run (all attempts)");
@@ -127,13 +129,18 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
 }
 
 namespace {
+// Definitions are for people reading a report: plain words, no pointers into the source.
 std::string part_definition(const std::string& metric) {
   if (metric == "peak_temperature") return "highest element temperature of the part over the run";
   if (metric == "peak_power") return "largest instantaneous power dissipated in the part";
   if (metric == "energy") return "heat dissipated in the part over the run (the solver's energy account)";
   if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
   if (metric == "peak_voltage") return "largest |voltage| across the part";
-  return "per-part figure (analysis/part_metrics.h)";
+  if (metric == "average_power") {
+    return "heat dissipated in the part over the run divided by the run's length (the mean a continuous power "
+           "rating is judged against)";
+  }
+  throw std::logic_error(fmt::format("part metric '{}' has no definition", metric));
 }
 }  // namespace
 

@@ -6,12 +6,13 @@
 // the definition says "from the start of the final attempt":
 //   sequence.attempts [1], sequence.time_to_threshold [s], sequence.decision_time [s],
 //   sequence.main_close_time [s], sequence.precharge_time [s], sequence.voltage_step_at_close [V],
-//   sequence.peak_main_current [A], sequence.main_i2t [A²s], sequence.peak_precharge_current [A],
-//   sequence.link_overshoot [V], sequence.minimum_pack_voltage [V], sequence.detection_time [s],
-//   sequence.stall [1], sequence.stall_equilibrium [V].
+//   sequence.peak_main_current [A], sequence.main_current_squared_time [A²s] (I²t),
+//   sequence.peak_precharge_current [A], sequence.link_overshoot [V], sequence.minimum_pack_voltage [V],
+//   sequence.detection_time [s], sequence.stall [1], sequence.stall_equilibrium [V].
 // Part metrics for every resistive part (analysis/part_metrics.h): <part>.peak_power [W], <part>.energy [J],
-//   <part>.current_squared_time [A²s], <part>.peak_voltage [V], and <part>.peak_temperature [degC] where the
-//   part has a temperature.
+//   <part>.current_squared_time [A²s] (I²t), <part>.peak_voltage [V], <part>.average_power [W], and
+//   <part>.peak_temperature [degC] where the part has a temperature.
+// Names are whole words: I²t is "current_squared_time" for the sequence and for every part alike.
 // A metric that does not apply to the run (no closure, no fault) has the value NaN ("not reached").
 #include <optional>
 #include <string>
@@ -50,7 +51,10 @@ class MetricSet {
 /// The dimension of a metric unit ("s", "V", "A", "A²s", "W", "J", "degC", "1"), for judging limits.
 netlist::Dimension metric_dimension(const std::string& unit);
 
-/// A metric value for people: SI prefixes, degC and plain numbers as such, "-" for not reached.
+/// The unit of a difference of two values in `unit`: K for degC (a temperature rise or margin), else `unit`.
+std::string difference_unit(const std::string& unit);
+
+/// A metric value for people: SI prefixes, degC, K and plain numbers without a prefix, "-" for not reached.
 std::string format_metric(double value, const std::string& unit);
 
 /// Metrics of the BMS sequence, from the waveform and the controller's report.

@@ -9,7 +9,8 @@
 //   polarisation: list of up to two {resistance (Ohm, > 0), capacitance (F, > 0)}; cell_capacity Q (Ah, > 0);
 //   initial_soc (fraction or %, default 100 %); cells_in_series s (>= 1); cells_in_parallel p (>= 1, default 1).
 // String values: E = s·OCV, R0s = s·R0/p, Rk = s·Rk/p, Ck = p·Ck/s.
-// States: soc (1), then one voltage per pair vk (V).
+// States: soc (held as a fraction 0 … 1, unit 1, as the solver works in SI; outputs show it as the signal
+//   soc [%]), then one voltage per pair vk (V).
 // Unknowns: branch current j (A, entering the positive terminal; discharge current is id = -j).
 // Equations: v+ - v- = E(soc) - R0s·id - Σ vk;  Ck·dvk/dt = id - vk/Rk;  dsoc/dt = -id / (p·3600·Q).
 // Source power: E·id.  Heat: R0s·id² + Σ vk²/Rk.  Stored: Σ ½·Ck·vk².

@@ -182,7 +182,8 @@ class Stamp {
 
 struct StateInfo {
   std::string name;         // e.g. "voltage", "soc", "temperature"
-  std::string unit;         // SI symbol for output
+  std::string unit;         // SI symbol of the value the solver holds ("1" for a fraction such as SOC); outputs
+                            // for people show fractions in % through a signal (SignalInfo)
   double initial = 0.0;
   double tolerance_scale = 1.0;  // multiplies the run's atol for this state
 };

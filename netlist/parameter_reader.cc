@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -27,6 +28,24 @@ std::string example_for(const Dimension& dimension) {
   if (dimension == Dimension::length()) return "'2.5 m' or '20 mm'";
   if (dimension == Dimension::area()) return "'35 mm²' or '35 mm^2'";
   return "a number with a unit of " + dimension.describe();
+}
+}  // namespace
+
+bool is_percent_key(std::string_view key) {
+  return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin";
+}
+
+bool is_percent_path(std::string_view path) {
+  const std::size_t dot = path.rfind('.');
+  return is_percent_key(dot == std::string_view::npos ? path : path.substr(dot + 1));
+}
+
+namespace {
+// A fraction read under a key the percent rule does not know would be shown as a plain number.
+void check_fraction_key(const std::string& key, Bound bound) {
+  if (bound == Bound::Fraction && !is_percent_key(key)) {
+    throw std::logic_error(fmt::format("'{}' is read as a fraction but is_percent_key() does not name it", key));
+  }
 }
 }  // namespace
 
@@ -87,6 +106,7 @@ double ParameterReader::read_value(const Tree& node, const Dimension& dimension,
 }
 
 double ParameterReader::required(const std::string& key, const Dimension& dimension, Bound bound) {
+  check_fraction_key(key, bound);
   known_.push_back(key);
   const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) {
@@ -110,6 +130,7 @@ double ParameterReader::quantity(const std::string& key, const Dimension& dimens
 }
 
 std::optional<double> ParameterReader::optional(const std::string& key, const Dimension& dimension, Bound bound) {
+  check_fraction_key(key, bound);
   known_.push_back(key);
   const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return std::nullopt;

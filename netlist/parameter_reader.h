@@ -4,6 +4,7 @@
 #include <optional>
 #include <set>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "netlist/tree.h"
@@ -11,8 +12,16 @@
 
 namespace linkrise::netlist {
 
-/// The range rule a numeric parameter must satisfy.
+/// The range rule a numeric parameter must satisfy. Fraction: 0 … 1, a fraction of a whole; only the keys that
+/// is_percent_key() names may be read so.
 enum class Bound { Any, Positive, NonNegative, Fraction };
+
+/// The keys whose values are fractions of a whole: a cell string's `initial_soc`, the closing rule's `ratio`,
+/// the rise check's `above` and a limit's `margin`. The case may write them as '95 %' or 0.95; every output
+/// people read shows them in % (netlist::shown_unit), while the program holds them as fractions.
+bool is_percent_key(std::string_view key);
+/// The same for a parameter path ("pack.initial_soc", "sequence.close_when.ratio"): by its last key.
+bool is_percent_path(std::string_view path);
 
 class ParameterReader {
  public:

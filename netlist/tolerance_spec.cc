@@ -10,14 +10,6 @@
 
 namespace linkrise::netlist {
 
-std::string ToleranceSpec::display(double value) const {
-  Quantity quantity;
-  quantity.value = value;
-  quantity.dimension = dimension;
-  quantity.absolute_temperature = absolute_temperature;
-  return display_quantity(quantity);
-}
-
 namespace {
 
 Quantity nominal_value(const Tree& node, const std::string& path, const SourceMark& mark) {
@@ -156,7 +148,7 @@ void read_distribution(const ToleranceKeys& keys, const Tree& entry, const std::
     if (!(t.sigma > 0.0)) {
       throw InputError(keys.sigma->mark, fmt::format("tolerance '{}': sigma must be positive", path));
     }
-    t.description += fmt::format(", normal σ = {} truncated", format_si(t.sigma, t.dimension.symbol()));
+    t.description += fmt::format(", normal σ = {} truncated", t.shown().difference().display(t.sigma));
   } else if (keys.sigma != nullptr) {
     throw InputError(keys.sigma->mark, fmt::format("tolerance '{}': sigma belongs to a normal distribution", path),
                      "add 'distribution: normal' or remove sigma");
@@ -171,6 +163,7 @@ ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tr
   ToleranceSpec t;
   t.path = path;
   t.mark = mark;
+  t.percent = is_percent_path(path);
   ToleranceKeys keys;
   keys.plus_minus = reader.child("plus_minus");
   keys.minus = reader.child("minus");

@@ -36,6 +36,7 @@ struct ToleranceSpec {
   double sigma = 0.0;               // the normal's standard deviation (normal only)
   Dimension dimension;
   bool absolute_temperature = false;
+  bool percent = false;     // a fraction of a whole (netlist::is_percent_path), shown in %
   std::string description;  // for reports, e.g. "33 Ohm (31.35 Ohm … 34.65 Ohm), uniform"
   SourceMark mark;
   /// Set when the tolerance is relative to a nominal value the case does not write (a variant may have replaced
@@ -44,8 +45,10 @@ struct ToleranceSpec {
 
   /// Case-file text of a value of this parameter.
   std::string text(double value) const { return quantity_text(value, dimension, absolute_temperature); }
-  /// The value for people (SI prefix, degC).
-  std::string display(double value) const;
+  /// The unit its values are shown in (degC, %, "1" or the SI symbol) and the conversion from SI.
+  ShownUnit shown() const { return shown_unit(dimension, absolute_temperature, percent); }
+  /// The value for people (SI prefix, degC, %).
+  std::string display(double value) const { return shown().display(value); }
 };
 
 /// Reads the `tolerances:` block of a case tree (empty when absent), taking nominal values from the same tree.

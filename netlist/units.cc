@@ -199,6 +199,7 @@ std::string Dimension::describe() const {
 
 std::string Dimension::symbol() const {
   if (*this == charge()) return "C";  // SI base form in output columns; "Ah" only as input
+  if (*this == mass()) return "kg";   // values are held in kg; "g" is the input unit that takes prefixes
   if (*this == area()) return "m^2";
   for (const auto& entry : named_dimensions()) {
     if (entry.dimension == *this) return std::string(entry.symbol);
@@ -335,18 +336,48 @@ std::string format_si(double value, std::string_view unit, int significant) {
   return fmt::format("{:.{}g} {}{}", scaled, significant, si_prefix(exponent3), unit);
 }
 
-std::string display_quantity(const Quantity& quantity) {
-  if (quantity.absolute_temperature) return fmt::format("{:.4g} degC", quantity.value - kelvin_offset);
-  std::string unit = quantity.dimension.symbol();
-  if (quantity.dimension == Dimension::none()) return fmt::format("{:.4g}", quantity.value);
-  return format_si(quantity.value, unit);
+ShownUnit shown_unit(const Dimension& dimension, bool absolute_temperature, bool percent) {
+  if (absolute_temperature) return ShownUnit{"degC", 1.0, kelvin_offset};
+  if (dimension == Dimension::none()) return percent ? ShownUnit{"%", 100.0, 0.0} : ShownUnit{"1", 1.0, 0.0};
+  return ShownUnit{dimension.symbol(), 1.0, 0.0};
 }
 
+ShownUnit ShownUnit::difference() const { return ShownUnit{symbol == "degC" ? "K" : symbol, scale, 0.0}; }
+
+std::string ShownUnit::display(double si) const {
+  if (symbol == "1") return fmt::format("{:.4g}", shown(si));
+  // Kelvin without a prefix, like the degC values a difference is read beside.
+  if (symbol == "K") return fmt::format("{:.4g} K", shown(si));
+  return format_si(shown(si), symbol);
+}
+
+std::string display_quantity(const Quantity& quantity) {
+  return shown_unit(quantity.dimension, quantity.absolute_temperature).display(quantity.value);
+}
+
+namespace {
+// fmt's "{}" writes the shortest digits that read back as the same double (from_chars, as the parser reads).
+std::string shortest(double value) { return fmt::format("{}", value); }
+
+// degC text: the parser adds kelvin_offset to the number, so the number is a double whose sum with the offset is
+// `kelvin` exactly — the one nearest to kelvin − offset (the plain difference can miss by a unit in the last
+// place). Far from 0 degC (below about −120 degC, above about 1700 degC) some kelvin values are no such sum
+// (the sum rounds to even on a tie); those are written in K, which reads back exactly.
+std::string celsius_text(double kelvin) {
+  double celsius = kelvin - kelvin_offset;
+  for (int step = 0; step < 4 && celsius + kelvin_offset != kelvin; ++step) {
+    celsius = std::nextafter(celsius, celsius + kelvin_offset < kelvin ? HUGE_VAL : -HUGE_VAL);
+  }
+  if (celsius + kelvin_offset != kelvin) return shortest(kelvin) + " K";
+  return shortest(celsius) + " degC";
+}
+}  // namespace
+
 std::string quantity_text(double value, const Dimension& dimension, bool absolute_temperature) {
-  if (absolute_temperature) return fmt::format("{:.17g} degC", value - kelvin_offset);
+  if (absolute_temperature) return celsius_text(value);
   std::string unit = dimension.symbol();
-  if (dimension == Dimension::none() || unit.empty() || unit == "1") return fmt::format("{:.17g}", value);
-  return fmt::format("{:.17g} {}", value, unit);
+  if (dimension == Dimension::none() || unit.empty()) return shortest(value);
+  return shortest(value) + " " + unit;
 }
 
 }  // namespace linkrise::netlist

@@ -17,7 +17,8 @@ struct Dimension {
   Dimension power(int n) const;
   /// A plain name and the unit a person would write, e.g. "resistance (Ohm)".
   std::string describe() const;
-  /// The unit symbol used in output column headers, e.g. "Ohm", "J/K".
+  /// The SI unit symbol of a value in base units, e.g. "Ohm", "J/K", "kg"; empty for a plain number (outputs
+  /// for people take their unit from ShownUnit).
   std::string symbol() const;
 
   static Dimension none();
@@ -61,9 +62,28 @@ std::optional<Quantity> parse_quantity(std::string_view text, std::string& probl
 const char* si_prefix(int exponent);
 /// Formats a number with an SI prefix and unit, e.g. 0.0012 F -> "1.2 mF" (for messages and terminal output).
 std::string format_si(double value, std::string_view unit, int significant = 4);
+
+/// The unit a value is shown in to people, and its conversion from SI (shown = SI·scale − offset). The one rule
+/// for every output: an absolute temperature in degC, a temperature difference in K, a fraction of a whole
+/// (state of charge, a ratio, a margin) in %, another plain number in "1", everything else in its SI symbol.
+struct ShownUnit {
+  std::string symbol;  // "degC", "%", "1", "Ohm", ...
+  double scale = 1.0;
+  double offset = 0.0;
+
+  double shown(double si) const { return si * scale - offset; }
+  /// A difference of two values in this unit: no offset, and K in place of degC.
+  ShownUnit difference() const;
+  /// The value for people: SI prefix where the unit takes one (format_si); a plain number without "1".
+  std::string display(double si) const;
+};
+/// The shown unit of a value of `dimension`; `percent` (only for a plain number) marks a fraction of a whole.
+ShownUnit shown_unit(const Dimension& dimension, bool absolute_temperature, bool percent = false);
+
 /// A quantity for people: SI prefix and unit, an absolute temperature in degC ("33 Ohm", "25 degC").
 std::string display_quantity(const Quantity& quantity);
-/// Case-file text of a value that reads back exactly ("3.3000000000000003e-05 F", "25 degC").
+/// Case-file text that reads back as exactly `value`, with the fewest digits that do ("3.3e-05 F", "25 degC";
+/// a plain number, fractions included, without a unit).
 std::string quantity_text(double value, const Dimension& dimension, bool absolute_temperature);
 
 }  // namespace linkrise::netlist

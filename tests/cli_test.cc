@@ -124,6 +124,10 @@ TEST_F(Cli, DemoCaseWritesWaveformsAndSummary) {
   EXPECT_TRUE(has("k_main.current [A]"));
   EXPECT_TRUE(has("r_pre.power [W]"));
   EXPECT_TRUE(has("rack.soc [%]"));
+  for (const auto& column : header) {
+    EXPECT_NE(column.find(" ["), std::string::npos) << column << " has no unit";
+    EXPECT_EQ(column.find("[]"), std::string::npos) << column;
+  }
   for (std::size_t r = 1; r < csv.size(); ++r) ASSERT_EQ(split(csv[r]).size(), header.size()) << "row " << r;
 
   nlohmann::json summary = nlohmann::json::parse(slurp(output / "summary.json"));
@@ -133,6 +137,23 @@ TEST_F(Cli, DemoCaseWritesWaveformsAndSummary) {
   EXPECT_EQ(summary["energy_audit"]["relative_residual"]["unit"], "1");
   EXPECT_LE(summary["energy_audit"]["relative_residual"]["value"].get<double>(), 1e-6);
   EXPECT_EQ(summary["parts"]["link"]["stored_energy_end"]["unit"], "J");
+  // Definitions are for people: plain words, never a source file.
+  for (const auto& [name, metric] : summary["metrics"].items()) {
+    const std::string definition = metric["definition"];
+    for (const char* source : {".h", ".cc", "analysis/", "models/"}) {
+      EXPECT_EQ(definition.find(source), std::string::npos) << name << ": " << definition;
+    }
+  }
+  EXPECT_TRUE(summary["metrics"].contains("k_main.current_squared_time"));
+  // A margin to a temperature rating is a difference, in K; relative margins are in %.
+  for (const auto& limit : summary["limits"]) {
+    if (limit["metric"] != "r_pre.peak_temperature") continue;
+    EXPECT_EQ(limit["value"]["unit"], "degC");
+    EXPECT_EQ(limit["margin"]["unit"], "K");
+    EXPECT_EQ(limit["relative_margin"]["unit"], "%");
+    EXPECT_NEAR(limit["margin"]["value"].get<double>(),
+                limit["limit"]["value"].get<double>() - limit["value"]["value"].get<double>(), 1e-9);
+  }
 
   // Regression with digit tolerances. The link's stored energy is ½·C·V² of its final voltage
   // (docs/references.md [R-RC-energy]; the ESR drop of the converter's and bleed's < 1 A is below 1e-5 of it).

@@ -7,6 +7,7 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <set>
 #include <string>
 
 #include "netlist/input_error.h"
@@ -92,6 +93,19 @@ TEST(Faults, ResultsDoNotDependOnTheNumberOfThreads) {
   auto four = linkrise::app::detection_matrix(stored("sequence_retry_short.yaml"), 4);
   EXPECT_EQ(linkrise::app::matrix_csv(one), linkrise::app::matrix_csv(four));
   EXPECT_EQ(row(one, "hot_ambient").attempts, 3);
+  // Every number column of faults.csv names its unit; the others hold words.
+  const std::string csv = linkrise::app::matrix_csv(one);
+  const std::string header = csv.substr(0, csv.find('\n'));
+  const std::set<std::string> words{"scenario", "expected", "actual", "applicable",
+                                    "resistor_survived", "pass", "note"};
+  for (std::size_t start = 0, end = 0; end != std::string::npos; start = end + 1) {
+    end = header.find(',', start);
+    const std::string column = header.substr(start, end == std::string::npos ? end : end - start);
+    if (words.count(column) == 0) {
+      EXPECT_NE(column.find(" ["), std::string::npos) << column << " has no unit";
+    }
+  }
+  EXPECT_NE(header.find(",attempts [1],"), std::string::npos) << header;
 }
 
 TEST(Faults, ABadScenarioIsAnInputErrorAtItsPosition) {

@@ -49,6 +49,7 @@ TEST(Limits, MaximumAndMinimumWithMargins) {
   EXPECT_EQ(result[0].bound, linkrise::analysis::BoundSide::Maximum);
   EXPECT_NEAR(result[0].margin, 0.020, 1e-15);
   EXPECT_NEAR(result[0].relative_margin, 0.10, 1e-12);
+  EXPECT_EQ(result[0].margin_unit, "s");
   EXPECT_TRUE(result[0].pass);
   // min 390 V, value 385 V: 5 V outside.
   EXPECT_NEAR(result[1].margin, -5.0, 1e-12);
@@ -64,6 +65,9 @@ TEST(Limits, TemperaturesInDegreesCelsiusOrKelvin) {
   auto result = judged("  r1.peak_temperature: {max: 150 degC}\n");
   EXPECT_NEAR(result[0].limit, 150.0, 1e-12);
   EXPECT_NEAR(result[0].margin, 30.0, 1e-12);
+  // A margin is a difference of temperatures, so it is in K; the limit and the value stay in degC.
+  EXPECT_EQ(result[0].unit, "degC");
+  EXPECT_EQ(result[0].margin_unit, "K");
   auto kelvin = judged("  r1.peak_temperature: {max: 373.15 K}\n");
   EXPECT_NEAR(kelvin[0].limit, 100.0, 1e-12);
   EXPECT_FALSE(kelvin[0].pass);

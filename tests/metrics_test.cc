@@ -88,7 +88,7 @@ TEST(Metrics, EverySequenceMetricMatchesItsClosedForm) {
   EXPECT_NEAR(m.value("sequence.peak_main_current"), peak, 1e-5 * peak);
   // ∫0^∞ I²·e^(−2αs)·sin²(ωs) ds = I²·ω² / (4α·(α² + ω²)) [R-ringing-integrals, from memory].
   double i2t = kI * kI * kOmega * kOmega / (4.0 * kAlpha * (kAlpha * kAlpha + kOmega * kOmega));
-  EXPECT_NEAR(m.value("sequence.main_i2t"), i2t, 1e-7 * i2t);
+  EXPECT_NEAR(m.value("sequence.main_current_squared_time"), i2t, 1e-7 * i2t);
   // Pre-charge current is largest when the contacts touch: V/R.
   EXPECT_NEAR(m.value("sequence.peak_precharge_current"), kV / kR, 1e-12);
   // Link − pack after closure: −ΔV·e^(−αs)·cos(ωs), largest where tan(ωs) = −α/ω.
@@ -116,7 +116,8 @@ TEST(Metrics, AnAttemptThatNeverClosedLeavesTheClosureMetricsNotReached) {
   r.outcome = linkrise::netlist::SequenceOutcome::Timeout;
   auto m = linkrise::analysis::sequence_metrics(w, r, linkrise::analysis::StallDiagnostic{});
   for (const char* name : {"sequence.main_close_time", "sequence.voltage_step_at_close", "sequence.peak_main_current",
-                           "sequence.main_i2t", "sequence.link_overshoot", "sequence.precharge_time"}) {
+                           "sequence.main_current_squared_time", "sequence.link_overshoot",
+                           "sequence.precharge_time"}) {
     EXPECT_TRUE(std::isnan(m.value(name))) << name;
   }
   EXPECT_EQ(m.value("sequence.detection_time"), 0.12);

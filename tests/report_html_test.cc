@@ -268,9 +268,10 @@ TEST(RunReport, LimitsTableAndVerdict) {
   RunReportInput input(run.simulation.circuit, run.result, run.audit);
   Assessment assessment;
   assessment.verdict = "fail";
-  assessment.rows.push_back({"precharge_time", 0.05, "s", "<= 80 ms", 0.03, true, true, "limits block"});
-  assessment.rows.push_back({"resistor_energy", 80.0, "J", "<= 60 J", -20.0, false, true, "rating of r_pre"});
-  assessment.rows.push_back({"main_current", std::nan(""), "A", "<= 1 kA", std::nan(""), true, false, "limits block"});
+  assessment.rows.push_back({"precharge_time", 0.05, "s", "<= 80 ms", 0.03, "s", true, true, "limits block"});
+  assessment.rows.push_back({"resistor_energy", 80.0, "J", "<= 60 J", -20.0, "J", false, true, "rating of r_pre"});
+  assessment.rows.push_back(
+      {"main_current", std::nan(""), "A", "<= 1 kA", std::nan(""), "A", true, false, "limits block"});
   assessment.failures.push_back("resistor_energy = 80 J is above its max 60 J");
   input.assessment = assessment;
   input.closing_threshold = 380.0;

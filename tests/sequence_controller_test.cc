@@ -272,7 +272,7 @@ TEST(SequenceController, ClosingInrushPeakMatchesTheSeriesRlcClosedForm) {
   EXPECT_GT(overshoot, 1.0);
   EXPECT_NEAR(run.metric("sequence.link_overshoot"), overshoot, 1e-5 * dv);
   double i2t = (0.5 * c * dv * dv + 0.5 * l * i0 * i0) / r;
-  EXPECT_NEAR(run.metric("sequence.main_i2t"), i2t, 1e-6 * i2t);
+  EXPECT_NEAR(run.metric("sequence.main_current_squared_time"), i2t, 1e-6 * i2t);
 }
 
 // The contact bounce of the main contactor: the contact opens and closes again `bounce_count` times after its

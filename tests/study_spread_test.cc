@@ -6,6 +6,7 @@
 #include <cmath>
 
 #include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
 
 #include "netlist/input_error.h"
 #include "study_fixture.h"
@@ -35,6 +36,29 @@ TEST(StudySpread, CornersHitTheAnalyticExtremes) {
   EXPECT_NEAR(spread.results.value(0, "sequence.time_to_threshold"), shortest, 1e-6 * shortest);
   EXPECT_EQ(t.worst, 3);
   EXPECT_NEAR(spread.results.value(1, "sequence.time_to_threshold"), 110.0 * 0.8e-3 * to_95_percent(), 1e-6 * shortest);
+}
+
+// spread_samples.csv and spread.json: a fraction in %, an absolute temperature in degC (a percent is a
+// hundredth and 0 degC is 273.15 K, docs/references.md [R-SI]).
+TEST(StudySpread, SamplesCsvAndJsonShowFractionsInPercent) {
+  std::string file = write_case("study_rc_percent.yaml",
+                                rc_case_text("  sequence.close_when.ratio: {range: [90 %, 96 %]}\n"
+                                             "  ambient: {range: [-20 degC, 45 degC]}\n"));
+  Spread spread = run_spread(file, {}, spread_plan(true, 0, 1, ""), 2);
+  const std::string csv = spread_csv(spread);
+  const std::string header = csv.substr(0, csv.find('\n'));
+  EXPECT_NE(header.find("corner,sequence.close_when.ratio [%],ambient [degC],status"), std::string::npos) << header;
+  EXPECT_EQ(header.find("[]"), std::string::npos) << header;
+  // Corner 0 is every parameter at its lower bound.
+  const std::string first = csv.substr(header.size() + 1, csv.find('\n', header.size() + 1) - header.size() - 1);
+  EXPECT_EQ(first.substr(0, first.find(",evaluated")), "0,90,-20");
+  const nlohmann::json json = nlohmann::json::parse(spread_json(spread));
+  EXPECT_EQ(json.at("tolerances").at(0).at("lower").at("unit"), "%");
+  EXPECT_NEAR(json.at("tolerances").at(0).at("upper").at("value").get<double>(), 96.0, 1e-12);
+  EXPECT_EQ(json.at("tolerances").at(0).at("description"), "90 % … 96 %, uniform");
+  // The charge to 96 % takes −R·C·ln(0.04) ([R-RC-charge]); 1e-6 relative as above.
+  const double longest = 100.0 * 1e-3 * -std::log(1.0 - 0.96);
+  EXPECT_NEAR(spread.results.value(3, "sequence.time_to_threshold"), longest, 1e-6 * longest);
 }
 
 // CDF of Z = X·Y for independent X ~ U[a, b], Y ~ U[c, d] (0 < a, 0 < c), derived here:

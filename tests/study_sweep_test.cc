@@ -73,5 +73,45 @@ TEST(StudySweep, BadPathsAndValuesAreInputErrors) {
   }
 }
 
+std::vector<std::string> csv_cells(const std::string& line) {
+  std::vector<std::string> cells;
+  std::size_t start = 0;
+  for (std::size_t comma; (comma = line.find(',', start)) != std::string::npos; start = comma + 1) {
+    cells.push_back(line.substr(start, comma - start));
+  }
+  cells.push_back(line.substr(start));
+  return cells;
+}
+
+// Every parameter column of sweep.csv names its unit; a fraction is in %, and a bare number takes the unit of the
+// other values (a percent is a hundredth, docs/references.md [R-SI]).
+TEST(StudySweep, CsvParameterColumnsCarryTheirUnits) {
+  std::string file = write_case("study_rc_sweep_units.yaml", rc_case_text(""));
+  netlist::SourceMark mark{"test", 1, 1};
+  Sweep sweep = run_sweep(file, {}, {parse_variation("sequence.close_when.ratio=0.9,95%", mark),
+                                     parse_variation("r_pre.resistance=50,100Ohm", mark)}, 2);
+  const std::string csv = sweep_csv(sweep);
+  std::vector<std::string> lines;
+  for (std::size_t start = 0, end; (end = csv.find('\n', start)) != std::string::npos; start = end + 1) {
+    lines.push_back(csv.substr(start, end - start));
+  }
+  ASSERT_EQ(lines.size(), 5u);
+  const auto header = csv_cells(lines[0]);
+  EXPECT_EQ(header[1], "sequence.close_when.ratio [%]");
+  EXPECT_EQ(header[2], "r_pre.resistance [Ohm]");
+  for (const auto& name : header) {
+    if (name == "point" || name == "status" || name == "outcome" || name == "verdict") continue;
+    EXPECT_NE(name.find(" ["), std::string::npos) << name << " has no unit";
+    EXPECT_EQ(name.find("[]"), std::string::npos) << name;
+  }
+  const auto last = csv_cells(lines[4]);
+  EXPECT_NEAR(std::stod(last[1]), 95.0, 1e-9);
+  EXPECT_NEAR(std::stod(last[2]), 100.0, 1e-9);
+  EXPECT_EQ(sweep.columns[0].display(0), "90 %");
+  // RC closed form at the last point: t = −R·C·ln(1 − 0.95) (docs/references.md [R-RC-charge]), 1e-6 relative.
+  const double expected = 100.0 * 1e-3 * to_95_percent();
+  EXPECT_NEAR(sweep.results.value(3, "sequence.time_to_threshold"), expected, 1e-6 * expected);
+}
+
 }  // namespace
 }  // namespace linkrise::app

@@ -55,7 +55,33 @@ TEST(ToleranceSpec, ACaseFileValueReadsBackExactly) {
   std::string problem;
   auto back = linkrise::netlist::parse_quantity(tolerance.text(value), problem);
   ASSERT_TRUE(back.has_value()) << problem;
-  EXPECT_EQ(back->value, value);  // 17 significant digits round-trip a double (docs/references.md [R-IEEE754])
+  EXPECT_EQ(back->value, value);
+  // The fewest digits that read back as the same double (docs/references.md [R-shortest-round-trip]).
+  EXPECT_EQ(tolerance.text(value), "0.00099 F");
+}
+
+TEST(ToleranceSpec, StateOfChargeIsShownInPercent) {
+  auto tolerances = case_from(
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: pack, kind: cell_string, nodes: [plus, gnd], cells_in_series: 100, cell_voltage: 3.7 V,\n"
+      "     cell_resistance: 1 mOhm, cell_capacity: 50 Ah, initial_soc: 0.5}\n"
+      "  - {name: r1, kind: resistor, nodes: [plus, gnd], resistance: 100 Ohm}\n"
+      "run: {duration: 1 s}\n"
+      "tolerances:\n"
+      "  pack.initial_soc: {range: [20 %, 90 %]}\n"
+      "  pack.cells_in_series: {range: [98, 102]}\n").tolerances;
+  ASSERT_EQ(tolerances.size(), 2u);
+  // Held as fractions, shown in % (a percent is a hundredth, docs/references.md [R-SI]).
+  EXPECT_DOUBLE_EQ(tolerances[0].lower, 0.2);
+  EXPECT_EQ(tolerances[0].shown().symbol, "%");
+  EXPECT_DOUBLE_EQ(tolerances[0].shown().shown(tolerances[0].upper), 90.0);
+  EXPECT_EQ(tolerances[0].description, "20 % … 90 %, uniform");
+  // A count is a plain number.
+  EXPECT_EQ(tolerances[1].shown().symbol, "1");
+  EXPECT_EQ(tolerances[1].description, "98 … 102, uniform");
+  // The case-file text stays a fraction, which reads back exactly ([R-shortest-round-trip]).
+  EXPECT_EQ(tolerances[0].text(0.9), "0.9");
 }
 
 TEST(ToleranceSpec, ErrorsNameTheEntryAndTheFix) {

@@ -13,6 +13,12 @@
 namespace linkrise::app {
 namespace {
 nlohmann::json time_or_null(double time) { return quantity(time, "s"); }
+
+// A margin with its sign, "+169.5 K", like the relative margins beside it.
+std::string signed_metric(double value, const std::string& unit) {
+  const std::string text = analysis::format_metric(value, unit);
+  return value >= 0.0 ? "+" + text : text;
+}
 }  // namespace
 
 void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation) {
@@ -24,9 +30,9 @@ void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation
                       {"bound", analysis::bound_word(limit.bound)},
                       {"limit", quantity(limit.limit, limit.unit)},
                       {"value", quantity(limit.value, limit.unit)},
-                      {"margin", quantity(limit.margin, limit.unit)},
-                      {"relative_margin", quantity(limit.relative_margin, "1")},
-                      {"required_margin", quantity(limit.required_margin, "1")},
+                      {"margin", quantity(limit.margin, limit.margin_unit)},
+                      {"relative_margin", quantity(100.0 * limit.relative_margin, "%")},
+                      {"required_margin", quantity(100.0 * limit.required_margin, "%")},
                       {"judged", limit.judged},
                       {"pass", limit.pass},
                       {"source", limit.source}});
@@ -115,11 +121,13 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
       if (limit.metric != metric.name) continue;
       if (!limit_text.empty()) limit_text += ", ";
       limit_text += fmt::format("{} {}", analysis::bound_word(limit.bound), analysis::format_metric(limit.limit, limit.unit));
-      // The tightest limit's margin, relative to its bound.
+      // The tightest limit's margin, relative to its bound; a temperature's in K, since a fraction of a bound
+      // in degC depends on where the scale has its zero.
       if (limit.judged && !(limit.relative_margin >= smallest)) {
         smallest = limit.relative_margin;
-        margin_text = std::isnan(limit.relative_margin) ? analysis::format_metric(limit.margin, limit.unit)
-                                                        : fmt::format("{:+.1f} %", 100.0 * limit.relative_margin);
+        const bool absolute = std::isnan(limit.relative_margin) || limit.margin_unit != limit.unit;
+        margin_text = absolute ? signed_metric(limit.margin, limit.margin_unit)
+                               : fmt::format("{:+.1f} %", 100.0 * limit.relative_margin);
       }
       mark = !limit.judged ? "not judged" : limit.pass ? (mark == "FAIL" ? "FAIL" : "ok") : "FAIL";
     }

@@ -650,7 +650,7 @@ void add_limits(HtmlReport& report, const RunReportInput& input) {
     for (const auto& row : assessment.rows) {
       const std::string result = !row.judged ? "not judged" : row.pass ? "pass" : "FAIL";
       table.rows.push_back({row.metric, display_metric(row.value, row.unit), row.bound,
-                            row.judged ? display_metric(row.margin, row.unit) : "-", row.source, result});
+                            row.judged ? display_metric(row.margin, row.margin_unit) : "-", row.source, result});
       table.row_tones.push_back(!row.judged ? Tone::Plain : row.pass ? Tone::Pass : Tone::Fail);
     }
     report.table(table);
@@ -743,6 +743,7 @@ void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluatio
     row.bound = (limit.bound == analysis::BoundSide::Minimum ? "\u2265 " : "\u2264 ") + display_metric(limit.limit, limit.unit);
     if (limit.required_margin > 0.0) row.bound += fmt::format(" with {:g} % margin", 100.0 * limit.required_margin);
     row.margin = limit.margin;
+    row.margin_unit = limit.margin_unit;
     row.pass = limit.pass;
     row.judged = limit.judged;
     row.source = limit.source;

@@ -89,7 +89,8 @@ struct LimitRow {
   double value = 0.0;  // NaN: not reached in the run
   std::string unit;
   std::string bound;    // as displayed, e.g. "<= 500 ms"
-  double margin = 0.0;  // in the value's unit; positive means inside the limit
+  double margin = 0.0;  // in margin_unit; positive means inside the limit
+  std::string margin_unit;  // the value's unit, K for a temperature (a difference)
   bool pass = true;
   bool judged = true;  // false: the metric was not reached, so the limit was not judged
   std::string source;  // e.g. "limits block", "rating of r_pre"

@@ -381,24 +381,6 @@ void add_window_verification(HtmlReport& report, const FaultWindow& window, cons
 // ---------------------------------------------------------------------------------------------------------
 // sweep
 
-// A swept value on a plot axis: SI number and unit, with degC and % kept as written so the axis reads as the case.
-struct AxisValue {
-  double value = std::nan("");
-  std::string unit;
-};
-
-AxisValue axis_value(const std::string& text) {
-  std::string problem;
-  const auto quantity = netlist::parse_quantity(text, problem);
-  if (!quantity) return {};
-  if (quantity->absolute_temperature) return {quantity->value - 273.15, "degC"};
-  if (quantity->dimension == netlist::Dimension::none()) {
-    if (text.find('%') != std::string::npos) return {quantity->value * 100.0, "%"};
-    return {quantity->value, ""};
-  }
-  return {quantity->value, quantity->dimension.symbol()};
-}
-
 void add_sweep_overview(HtmlReport& report, const Sweep& sweep) {
   const auto& points = sweep.results.points;
   report.section("Overview", "overview");
@@ -414,10 +396,10 @@ void add_sweep_overview(HtmlReport& report, const Sweep& sweep) {
     report.verdict(Tone::Fail, fmt::format("{} of {} points did not pass: {}", failing.size(), points.size(), list));
   }
   std::vector<std::pair<std::string, std::string>> facts{{"case file", sweep.case_file}, {"case title", sweep.title}};
-  for (const auto& parameter : sweep.parameters) {
+  for (const auto& column : sweep.columns) {
     std::string values;
-    for (const auto& value : parameter.values) values += (values.empty() ? "" : ", ") + display_text(value);
-    facts.emplace_back(parameter.path, values);
+    for (std::size_t k = 0; k < column.texts.size(); ++k) values += (values.empty() ? "" : ", ") + column.display(k);
+    facts.emplace_back(column.path, values);
   }
   facts.emplace_back("points", fmt::format("{}{}", points.size(),
                                            sweep.parameters.size() == 2 ? " (every combination, the first varies slowest)" : ""));
@@ -427,13 +409,9 @@ void add_sweep_overview(HtmlReport& report, const Sweep& sweep) {
 
 void add_sweep_plots(HtmlReport& report, const Sweep& sweep, const std::vector<std::string>& metrics) {
   const VariedParameter& first = sweep.parameters.front();
+  const ParameterColumn& axis = sweep.columns.front();
   report.section(fmt::format("Metrics against {}", first.path), "curves");
-  std::vector<AxisValue> xs;
-  for (const auto& text : first.values) xs.push_back(axis_value(text));
-  const bool numeric = std::all_of(xs.begin(), xs.end(), [&](const AxisValue& x) {
-    return std::isfinite(x.value) && x.unit == xs.front().unit;
-  });
-  if (!numeric || xs.empty()) {
+  if (!axis.numeric()) {
     report.paragraph(fmt::format("The values of {} are not quantities of one unit, so there is no axis to plot "
                                  "them on; the table below lists every point.",
                                  first.path));
@@ -453,19 +431,19 @@ void add_sweep_plots(HtmlReport& report, const Sweep& sweep, const std::vector<s
     PlotSpec plot;
     plot.title = metric;
     plot.x_label = first.path;
-    plot.x_unit = xs.front().unit;
+    plot.x_unit = axis.unit.symbol == "1" ? "" : axis.unit.symbol;
     plot.y_label = metric;
     plot.y_unit = column.unit;
     plot.height = 300;
     for (std::size_t b = 0; b < curves; ++b) {
       Series series;
-      series.name = two ? fmt::format("{} = {}", sweep.parameters[1].path, display_text(sweep.parameters[1].values[b]))
+      series.name = two ? fmt::format("{} = {}", sweep.parameters[1].path, sweep.columns[1].display(b))
                         : metric;
       for (std::size_t i = 0; i < sweep.points.size(); ++i) {
         if (two && sweep.points[i][1] != b) continue;
         const double y = sweep.results.value(i, metric);
         if (!std::isfinite(y)) continue;
-        series.x.push_back(xs[sweep.points[i][0]].value);
+        series.x.push_back(axis.unit.shown(axis.values[sweep.points[i][0]]));
         series.y.push_back(y);
       }
       plot.series.push_back(std::move(series));
@@ -494,9 +472,7 @@ void add_sweep_table(HtmlReport& report, const Sweep& sweep, const std::vector<s
   for (std::size_t i = 0; i < sweep.points.size(); ++i) {
     const PointResult& point = sweep.results.points[i];
     std::vector<std::string> row{fmt::format("{}", i + 1)};
-    for (std::size_t p = 0; p < sweep.parameters.size(); ++p) {
-      row.push_back(display_text(sweep.parameters[p].values[sweep.points[i][p]]));
-    }
+    for (std::size_t p = 0; p < sweep.columns.size(); ++p) row.push_back(sweep.columns[p].display(sweep.points[i][p]));
     for (int c : shown) {
       row.push_back(display_metric(sweep.results.value(i, sweep.results.columns[static_cast<std::size_t>(c)].name),
                                sweep.results.columns[static_cast<std::size_t>(c)].unit));

@@ -30,8 +30,9 @@ bool FaultWindow::verified() const {
 
 std::vector<netlist::Override> window_overrides(double minimum_time, double timeout) {
   netlist::SourceMark mark{"fault window", 0, 0};
-  return {netlist::Override{"sequence.minimum_time", fmt::format("{:.17g} s", minimum_time), mark},
-          netlist::Override{"sequence.timeout", fmt::format("{:.17g} s", timeout), mark}};
+  const netlist::Dimension time = netlist::Dimension::time();
+  return {netlist::Override{"sequence.minimum_time", netlist::quantity_text(minimum_time, time, false), mark},
+          netlist::Override{"sequence.timeout", netlist::quantity_text(timeout, time, false), mark}};
 }
 
 FaultWindow recommend_window(const Spread& spread, double margin, double sample_period) {
@@ -174,7 +175,7 @@ nlohmann::json window_json_value(const FaultWindow& window, const Spread& spread
                    {"seed", spread.plan.seed},
                    {"samples", spread.results.points.size()},
                    {"closed", window.closed}}},
-       {"margin", window.margin},
+       {"margin", quantity(100.0 * window.margin, "%")},
        {"sample_period", quantity(window.sample_period, "s")},
        {"fastest", {{"time_to_threshold", quantity(window.fastest, "s")}, {"sample", sample(window.fastest_point)}}},
        {"slowest",

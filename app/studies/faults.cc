@@ -316,7 +316,7 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs) {
   const double needed = sequence->start + sequence->attempts * (sequence->timeout + 4.0 * sequence->sample_period) +
                         (sequence->attempts - 1) * sequence->cool_down + 0.2;
   if (needed > nominal.run.duration) {
-    document.apply({"run.duration", fmt::format("{:.9g} s", needed), sequence->mark});
+    document.apply({"run.duration", netlist::quantity_text(needed, netlist::Dimension::time(), false), sequence->mark});
     nominal = document.validate();
   }
   const solver::Circuit circuit(nominal);
@@ -373,7 +373,7 @@ std::string matrix_text(const DetectionMatrix& matrix) {
 std::string matrix_csv(const DetectionMatrix& matrix) {
   auto number = [](double value) { return csv_number(value); };
   std::string out =
-      "scenario,expected,actual,applicable,attempts,detection_time [s],peak_temperature [degC],"
+      "scenario,expected,actual,applicable,attempts [1],detection_time [s],peak_temperature [degC],"
       "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
   for (const auto& row : matrix.rows) {
     out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(), row.actual_word(),

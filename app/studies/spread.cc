@@ -240,7 +240,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
 std::string spread_csv(const Spread& spread) {
   std::string out = spread.plan.corners ? "corner" : "sample";
   for (const auto& t : spread.tolerances) {
-    out.append(",").append(csv_text(fmt::format("{} [{}]", t.path, t.absolute_temperature ? "degC" : t.dimension.symbol())));
+    out.append(",").append(csv_text(fmt::format("{} [{}]", t.path, t.shown().symbol)));
   }
   out += ",status,outcome,verdict";
   for (const auto& column : spread.results.columns) out.append(",").append(csv_text(fmt::format("{} [{}]", column.name, column.unit)));
@@ -250,7 +250,7 @@ std::string spread_csv(const Spread& spread) {
     out += std::to_string(spread.index(p));
     for (std::size_t j = 0; j < spread.tolerances.size(); ++j) {
       double v = spread_value(spread.tolerances, spread.plan, spread.index(p), j);
-      out.append(",").append(csv_number(spread.tolerances[j].absolute_temperature ? v - 273.15 : v));
+      out.append(",").append(csv_number(spread.tolerances[j].shown().shown(v)));
     }
     out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(analysis::verdict_word(point.verdict)));
     for (double value : point.values) out.append(",").append(csv_number(value));
@@ -263,13 +263,12 @@ namespace {
 nlohmann::json spread_json_value(const Spread& spread) {
   nlohmann::json tolerances = nlohmann::json::array();
   for (const auto& t : spread.tolerances) {
-    std::string unit = t.absolute_temperature ? "degC" : t.dimension.symbol();
-    double shift = t.absolute_temperature ? 273.15 : 0.0;
+    const netlist::ShownUnit unit = t.shown();
     tolerances.push_back({{"path", t.path},
                           {"description", t.description},
                           {"distribution", t.shape == Tolerance::Shape::Normal ? "normal" : "uniform"},
-                          {"lower", quantity(t.lower - shift, unit)},
-                          {"upper", quantity(t.upper - shift, unit)}});
+                          {"lower", quantity(unit.shown(t.lower), unit.symbol)},
+                          {"upper", quantity(unit.shown(t.upper), unit.symbol)}});
   }
   nlohmann::json metrics = nlohmann::json::array();
   for (std::size_t c = 0; c < spread.statistics.size(); ++c) {

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "netlist/input_error.h"
+#include "netlist/parameter_reader.h"
 
 namespace linkrise::app {
 using netlist::InputError;
@@ -135,10 +136,38 @@ VariedParameter parse_variation(const std::string& text, const SourceMark& mark)
   return varied;
 }
 
-std::string display_text(const std::string& text) {
-  std::string problem;
-  auto quantity = netlist::parse_quantity(text, problem);
-  return quantity ? netlist::display_quantity(*quantity) : text;
+ParameterColumn parameter_column(const VariedParameter& parameter, const std::optional<netlist::Quantity>& nominal) {
+  ParameterColumn column{parameter.path, {}, {}, parameter.values};
+  std::vector<netlist::Quantity> quantities;
+  std::optional<netlist::Quantity> unit_from;  // a value that carries the column's unit
+  for (const auto& text : parameter.values) {
+    std::string problem;
+    auto quantity = netlist::parse_quantity(text, problem);
+    if (!quantity) return column;
+    if (!quantity->bare && !unit_from) unit_from = quantity;
+    quantities.push_back(*quantity);
+  }
+  if (!unit_from && nominal && !nominal->bare) unit_from = nominal;
+  if (!unit_from) unit_from = quantities.front();  // all bare: plain numbers
+  for (const auto& quantity : quantities) {
+    if (quantity.bare) {
+      if (unit_from->absolute_temperature) return column;  // a bare number is kelvin, the others degC: no one unit
+      continue;
+    }
+    const bool same_unit = quantity.dimension == unit_from->dimension &&
+                           quantity.absolute_temperature == unit_from->absolute_temperature;
+    if (!same_unit) return column;
+  }
+  column.unit = netlist::shown_unit(unit_from->dimension, unit_from->absolute_temperature,
+                                    netlist::is_percent_path(parameter.path));
+  for (const auto& quantity : quantities) column.values.push_back(quantity.value);
+  return column;
 }
+
+std::string ParameterColumn::header() const {
+  return numeric() ? fmt::format("{} [{}]", path, unit.symbol) : path;
+}
+
+std::string ParameterColumn::display(std::size_t k) const { return numeric() ? unit.display(values[k]) : texts[k]; }
 
 }  // namespace linkrise::app

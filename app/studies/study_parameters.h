@@ -8,6 +8,7 @@
 //   --vary r_pre.resistance=22Ohm,33Ohm,47Ohm  a list of values, written as in a case file
 //   --vary "link.capacitance=0.5mF..2mF:log:7" a range: A..B[:lin|:log][:N]  (default lin, N = 5 points,
 //                                             both ends included; log needs two positive ends)
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -35,7 +36,22 @@ struct VariedParameter {
 /// Parses a --vary argument (list or range, see above). Throws InputError for a bad range.
 VariedParameter parse_variation(const std::string& text, const netlist::SourceMark& mark);
 
-/// A case-file value text for people: netlist::display_quantity when it is a quantity, else the text itself.
-std::string display_text(const std::string& text);
+/// A varied parameter's values as numbers in the unit people read them in (netlist::ShownUnit: degC, %, "1" or
+/// the SI symbol), for CSV columns, tables and plot axes. A bare number takes the dimension of the other values,
+/// or of the case's own value when every value is bare.
+struct ParameterColumn {
+  std::string path;
+  netlist::ShownUnit unit;
+  std::vector<double> values;      // SI, one per value; empty when the values are not quantities of one unit
+  std::vector<std::string> texts;  // the values as given
+
+  bool numeric() const { return !values.empty(); }
+  /// "<path> [<unit>]" when numeric, else the path alone (the cells are then text as given).
+  std::string header() const;
+  /// Value k for people: SI prefix, degC or % when numeric, else the text as given.
+  std::string display(std::size_t k) const;
+};
+/// `nominal`: the value the case writes at the path, if any.
+ParameterColumn parameter_column(const VariedParameter& parameter, const std::optional<netlist::Quantity>& nominal);
 
 }  // namespace linkrise::app

@@ -40,6 +40,15 @@ Sweep run_sweep(const std::string& case_file, const std::vector<netlist::Overrid
   }
   // Paths are checked once up front, so a misspelt one fails before any simulation.
   (void)base.with(sweep.overrides(0));
+  for (const auto& parameter : parameters) {
+    std::optional<netlist::Quantity> nominal;
+    try {
+      nominal = base.quantity_at(parameter.path, parameter.mark);
+    } catch (const InputError&) {
+      // The case writes no quantity there (a word, a block): the column's unit comes from the values alone.
+    }
+    sweep.columns.push_back(parameter_column(parameter, nominal));
+  }
   sweep.results = run_study(
       sweep.points.size(), [&](std::size_t i) { return base.with(sweep.overrides(i)); }, jobs, progress_label);
   reject_input_errors(sweep.results, case_file, [&](std::size_t i) {
@@ -63,9 +72,7 @@ std::string sweep_text(const Sweep& sweep, const std::vector<std::string>& metri
   for (std::size_t i = 0; i < sweep.points.size(); ++i) {
     const PointResult& point = results.points[i];
     std::vector<std::string> row{std::to_string(i + 1)};
-    for (std::size_t p = 0; p < sweep.parameters.size(); ++p) {
-      row.push_back(display_text(sweep.parameters[p].values[sweep.points[i][p]]));
-    }
+    for (std::size_t p = 0; p < sweep.columns.size(); ++p) row.push_back(sweep.columns[p].display(sweep.points[i][p]));
     for (const auto& metric : metrics) {
       row.push_back(analysis::format_metric(results.value(i, metric), results.columns[results.column(metric)].unit));
     }
@@ -82,15 +89,18 @@ std::string sweep_text(const Sweep& sweep, const std::vector<std::string>& metri
 
 std::string sweep_csv(const Sweep& sweep) {
   std::string out = "point";
-  for (const auto& parameter : sweep.parameters) out.append(",").append(csv_text(parameter.path));
+  for (const auto& column : sweep.columns) out.append(",").append(csv_text(column.header()));
   out += ",status,outcome,verdict";
   for (const auto& column : sweep.results.columns) out.append(",").append(csv_text(fmt::format("{} [{}]", column.name, column.unit)));
   out += "\n";
   for (std::size_t i = 0; i < sweep.points.size(); ++i) {
     const PointResult& point = sweep.results.points[i];
     out += std::to_string(i + 1);
-    for (std::size_t p = 0; p < sweep.parameters.size(); ++p) {
-      out.append(",").append(csv_text(sweep.parameters[p].values[sweep.points[i][p]]));
+    for (std::size_t p = 0; p < sweep.columns.size(); ++p) {
+      const ParameterColumn& column = sweep.columns[p];
+      const std::size_t k = sweep.points[i][p];
+      out.append(",").append(column.numeric() ? csv_number(column.unit.shown(column.values[k]))
+                                              : csv_text(column.texts[k]));
     }
     out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(analysis::verdict_word(point.verdict)));
     for (double value : point.values) out.append(",").append(csv_number(value));

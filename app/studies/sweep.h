@@ -16,6 +16,7 @@ struct Sweep {
   std::string case_file;
   std::string title;
   std::vector<VariedParameter> parameters;
+  std::vector<ParameterColumn> columns;  // per parameter, its values as numbers in one unit (when they are)
   std::vector<std::vector<std::size_t>> points;  // per point, the value index of each parameter
   StudyResults results;
   std::vector<std::string> headline;  // metrics for the terminal table
