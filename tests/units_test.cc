@@ -173,7 +173,9 @@ TEST(QuantityText, CelsiusTextsReadBackAsTheIdenticalKelvin) {
     const bool celsius = text.find(" degC") != std::string::npos;
     in_celsius += celsius;
     // From −40 degC to 300 degC every value has its degC text.
-    if (kelvin >= 233.15 && kelvin <= 573.15) EXPECT_TRUE(celsius) << text;
+    if (kelvin >= 233.15 && kelvin <= 573.15) {
+      EXPECT_TRUE(celsius) << text;
+    }
   }
   EXPECT_GT(in_celsius, 3000);
   EXPECT_EQ(quantity_text(298.15, Dimension::temperature(), true), "25 degC");
