@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cctype>
+#include <map>
 #include <set>
 
 #include <fmt/format.h>
@@ -132,6 +133,40 @@ PartSpec read_part(const Tree& block, std::size_t index) {
 
 namespace {
 
+// A node that only one part terminal touches joins nothing: almost always a misspelt node name. Several such
+// nodes are reported together, since two of them are often one node spelt two ways.
+void reject_lone_nodes(const Tree& parts, const Case& result) {
+  std::map<std::string, int> uses;
+  for (const auto& part : result.parts) {
+    for (const auto& node : part.nodes) ++uses[node];
+  }
+  std::vector<std::string> joined;
+  for (const auto& [node, count] : uses) {
+    if (count > 1 || node == result.ground) joined.push_back(node);
+  }
+  std::vector<std::pair<std::string, SourceMark>> lone;  // "'node' (part 'p')", where it is written
+  std::string first_node;
+  for (std::size_t i = 0; i < result.parts.size(); ++i) {
+    for (int t = 0; t < 2; ++t) {
+      const std::string& node = result.parts[i].nodes[t];
+      if (uses[node] > 1 || node == result.ground) continue;
+      if (first_node.empty()) first_node = node;
+      lone.emplace_back(fmt::format("'{}' (part '{}')", node, result.parts[i].name),
+                        parts.items[i].find("nodes")->items[t].mark);
+    }
+  }
+  if (lone.empty()) return;
+  if (lone.size() == 1) {
+    throw InputError(lone[0].second,
+                     fmt::format("node {} joins nothing: a node connects at least two parts", lone[0].first),
+                     did_you_mean(first_node, joined, "connect another part to it, or name the node it should join"));
+  }
+  std::string list;
+  for (const auto& [what, mark] : lone) list += fmt::format("\n  {} at {}", what, mark.to_string());
+  throw InputError(lone[0].second, "these nodes each connect to one part only:" + list,
+                   "a node connects at least two parts: give the nodes that belong together one name");
+}
+
 // The parts list; every part's name unique, the ground node used by some part.
 void read_parts(const Tree& root, Case& result) {
   const Tree* parts = root.find("parts");
@@ -155,6 +190,7 @@ void read_parts(const Tree& root, Case& result) {
                      fmt::format("ground node '{}' is not connected to any part", result.ground),
                      "name a node that appears in some part's 'nodes'");
   }
+  reject_lone_nodes(*parts, result);
 }
 
 std::vector<EventSpec> read_events(const Tree& root, const Case& spec) {

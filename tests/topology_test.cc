@@ -112,3 +112,25 @@ TEST(Topology, PartConnectedToItself) {
   EXPECT_EQ(error.mark().line, 5) << error.what();
   EXPECT_TRUE(contains(error.fix(), "different nodes")) << error.what();
 }
+
+TEST(Topology, ANodeThatJoinsOnePartIsAMisspeltName) {
+  // A node touched by one part terminal carries no current and joins nothing (Kirchhoff's current law at a node
+  // with one branch, docs/references.md [R-MNA]): the usual cause is a typing slip, so the reader names the
+  // nearest node that does join parts.
+  const std::string yaml = circuit_with(
+      "  - {name: r_pre, kind: resistor, nodes: [plus, link_plus], resistance: 47 Ohm}\n"    // line 4
+      "  - {name: link, kind: capacitor, nodes: [link_plus, gnd], capacitance: 1 mF}\n"     // line 5
+      "  - {name: bleed, kind: resistor, nodes: [link_plu, gnd], resistance: 100 kOhm}\n");  // line 6
+  const std::string message = case_error(yaml).what();
+  EXPECT_TRUE(contains(message, "test.yaml:6:43")) << message;  // column of link_plu, counted
+  EXPECT_TRUE(contains(message, "node 'link_plu' (part 'bleed') joins nothing")) << message;
+  EXPECT_TRUE(contains(message, "did you mean 'link_plus'?")) << message;
+
+  // Two lone nodes are listed together: often one node spelt two ways.
+  const std::string two = case_error(circuit_with(
+      "  - {name: r_pre, kind: resistor, nodes: [plus, link_a], resistance: 47 Ohm}\n"
+      "  - {name: link, kind: capacitor, nodes: [link_b, gnd], capacitance: 1 mF}\n")).what();
+  EXPECT_TRUE(contains(two, "'link_a' (part 'r_pre') at test.yaml:4:")) << two;
+  EXPECT_TRUE(contains(two, "'link_b' (part 'link') at test.yaml:5:")) << two;
+  EXPECT_TRUE(contains(two, "give the nodes that belong together one name")) << two;
+}
