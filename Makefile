@@ -21,7 +21,6 @@ demo: build
 
 test: build
 	cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
-	$(BUILD)/linkrise check cases --junit $(BUILD)/check-junit.xml
 
 bench: build
 	$(BUILD)/linkrise_bench
