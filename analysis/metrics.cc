@@ -121,7 +121,7 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
   m.add("sequence.detection_time", report.first_fault_time, "s", "run time at which the first fault was raised");
   m.add("sequence.stall", stall.applicable && stall.stalls ? 1.0 : 0.0, "1",
         "1 when a constant-power load leaves no equilibrium at or above the closing level (quadratic "
-        "v = [Vs + √(Vs² − 4PR)]/2), else 0");
+        "v = [Vs + √(Vs² − 4PR)]/2) or holds the link below the lower root [Vs − √(Vs² − 4PR)]/2, else 0");
   m.add("sequence.stall_equilibrium", stall.applicable ? stall.equilibrium : kNaN, "V",
         "link equilibrium [Vs + √(Vs² − 4PR)]/2 with the loads that drew in the final attempt; NaN when there "
         "is none or no load drew");

@@ -22,9 +22,62 @@ double constant_power_lower_root(double source_voltage, double resistance, doubl
   return 0.5 * (source_voltage - std::sqrt(discriminant));
 }
 
+namespace {
+using netlist::format_si;
+
+// The constant-power loads that drew at some row of [start, end]: their summed power and highest onset.
+void add_loads_that_drew(const solver::Waveform& waveform, const std::vector<ConstantPowerLoad>& loads, double start,
+                         double end, StallDiagnostic& d) {
+  for (const auto& load : loads) {
+    int column = waveform.column(load.name + ".drawing");
+    if (column < 0) continue;
+    bool drew = false;
+    for (std::size_t r = 0; r < waveform.row_count() && !drew; ++r) {
+      double t = waveform.time(r);
+      drew = t >= start && t <= end && waveform.value(r, column) > 0.5;
+    }
+    if (drew) {
+      d.load_power += load.power;
+      d.resistive_below = std::max(d.resistive_below, load.resistive_below);
+    }
+  }
+}
+
+// The finding in words; each states what it measured and what it computed from that.
+void explain(StallDiagnostic& d) {
+  const std::string drawn = fmt::format("{} drawn through {} from {}", format_si(d.load_power, "W"),
+                                        format_si(d.path_resistance, "Ohm"), format_si(d.source_voltage, "V"));
+  if (std::isnan(d.equilibrium)) {
+    d.stalls = true;
+    d.explanation = fmt::format(
+        "stall: the loads draw {} but the path ({} from {}) can deliver at most Vs²/(4R) = {}; there is no "
+        "equilibrium and the link collapses (it measured {} at the end of the attempt)",
+        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.source_voltage, "V"),
+        format_si(d.maximum_power, "W"), format_si(d.link_voltage, "V"));
+  } else if (d.link_voltage < d.lower_root) {
+    d.stalls = true;
+    d.latched = true;
+    d.explanation = fmt::format(
+        "stall at the bottom: with {}, the link measured {} at the end of the attempt, below the unstable lower "
+        "root [Vs − √(Vs² − 4PR)]/2 = {}: the loads draw from the start and hold it there, so the upper "
+        "equilibrium {} is never reached; only the timeout ends the attempt",
+        drawn, format_si(d.link_voltage, "V"), format_si(d.lower_root, "V"), format_si(d.equilibrium, "V"));
+  } else if (d.equilibrium < d.closing_level) {
+    d.stalls = true;
+    d.explanation = fmt::format(
+        "stall: with {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {} (measured {}), below the closing level "
+        "{}; only the timeout ends the attempt",
+        drawn, format_si(d.equilibrium, "V"), format_si(d.link_voltage, "V"), format_si(d.closing_level, "V"));
+  } else {
+    d.explanation = fmt::format(
+        "no stall: with {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, above the closing level {}", drawn,
+        format_si(d.equilibrium, "V"), format_si(d.closing_level, "V"));
+  }
+}
+}  // namespace
+
 StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
                                const std::vector<ConstantPowerLoad>& loads) {
-  using netlist::format_si;
   StallDiagnostic d;
   const solver::AttemptRecord* attempt = report.last();
   if (attempt == nullptr || waveform.row_count() < 2) {
@@ -39,19 +92,7 @@ StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::S
   Trace pack = Trace::node_pair(waveform, spec.pack.plus, spec.pack.minus, report.ground);
   Trace link = Trace::node_pair(waveform, spec.link.plus, spec.link.minus, report.ground);
   Trace current = Trace::column(waveform, spec.precharge + ".current");
-  for (const auto& load : loads) {
-    int column = waveform.column(load.name + ".drawing");
-    if (column < 0) continue;
-    bool drew = false;
-    for (std::size_t r = 0; r < waveform.row_count() && !drew; ++r) {
-      double t = waveform.time(r);
-      drew = t >= start && t <= end && waveform.value(r, column) > 0.5;
-    }
-    if (drew) {
-      d.load_power += load.power;
-      d.resistive_below = std::max(d.resistive_below, load.resistive_below);
-    }
-  }
+  add_loads_that_drew(waveform, loads, start, end, d);
   d.source_voltage = pack.at(start);
   d.closing_level = spec.closing_level(d.source_voltage);
   if (d.load_power <= 0.0) {
@@ -64,32 +105,13 @@ StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::S
     return d;
   }
   d.applicable = true;
+  d.link_voltage = link.at(end);
   // Vs − link over the current: the whole path (source resistance, contactors, resistor, cable).
-  d.path_resistance = (d.source_voltage - link.at(end)) / i;
+  d.path_resistance = (d.source_voltage - d.link_voltage) / i;
   d.maximum_power = d.source_voltage * d.source_voltage / (4.0 * d.path_resistance);
   d.equilibrium = constant_power_equilibrium(d.source_voltage, d.path_resistance, d.load_power);
   d.lower_root = constant_power_lower_root(d.source_voltage, d.path_resistance, d.load_power);
-  if (std::isnan(d.equilibrium)) {
-    d.stalls = true;
-    d.explanation = fmt::format(
-        "stall: the loads draw {} but the path ({} from {}) can deliver at most Vs²/(4R) = {}; there is no "
-        "equilibrium and the link collapses",
-        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.source_voltage, "V"),
-        format_si(d.maximum_power, "W"));
-  } else if (d.equilibrium < d.closing_level) {
-    d.stalls = true;
-    d.explanation = fmt::format(
-        "stall: with {} drawn through {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, below the closing "
-        "level {}; only the timeout ends the attempt",
-        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.equilibrium, "V"),
-        format_si(d.closing_level, "V"));
-  } else {
-    d.explanation = fmt::format(
-        "no stall: with {} drawn through {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, above the "
-        "closing level {}",
-        format_si(d.load_power, "W"), format_si(d.path_resistance, "Ohm"), format_si(d.equilibrium, "V"),
-        format_si(d.closing_level, "V"));
-  }
+  explain(d);
   return d;
 }
 

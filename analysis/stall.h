@@ -38,7 +38,9 @@ struct StallDiagnostic {
   double lower_root = 0.0;       // V, the unstable lower root, NaN when there is none
   double resistive_below = 0.0;  // V, the highest constant-power onset among the loads that drew
   double closing_level = 0.0;    // V, the closing rule's level at Vs
+  double link_voltage = 0.0;     // V, the link as measured at the end of the attempt
   bool stalls = false;
+  bool latched = false;          // the link sits below the lower root: held down from the start
   std::string explanation;
 };
 

@@ -118,6 +118,27 @@ TEST(SequenceController, DecisionIsQuantisedToTheSampleAndClosureDelayedByTheAct
   EXPECT_TRUE(run.evaluation.pass);
 }
 
+// A 50 W constant-power load that draws from 0 V on, behind 100 Ω + 10 mΩ from 400 V: its equilibria are
+// [Vs ± √(Vs² − 4PR)]/2 = 387.1 V and 12.92 V ([R-CPL-equilibrium]). The upper one lies above the 95 % closing
+// level, but below its 10 V resistive floor the load is the resistance (10 V)²/50 W = 2 Ohm, so the link holds
+// at the divider 400 V · 2/(100.01 + 2) = 7.842 V [Ohm's law] — under the lower root, which it cannot pass.
+// The diagnostic must say so, not that the link settles at 387 V.
+TEST(SequenceController, StallDiagnosticNamesALatchAtTheBottom) {
+  SequenceRun run(case_text("{name: cpl, kind: constant_power_load, nodes: [link, gnd], power: 50 W}",
+                            "  close_when: {ratio: 95 %}\n  sample_period: 1 ms\n  timeout: 60 ms\n", "200 ms"));
+  ASSERT_EQ(run.report.outcome, linkrise::netlist::SequenceOutcome::Timeout);
+  ASSERT_TRUE(run.evaluation.stall.has_value());
+  const auto& stall = *run.evaluation.stall;
+  EXPECT_TRUE(stall.stalls);
+  EXPECT_TRUE(stall.latched);
+  const double divider = 400.0 * 2.0 / (100.01 + 2.0);
+  EXPECT_NEAR(stall.link_voltage, divider, 1e-6 * divider);
+  EXPECT_NEAR(stall.lower_root, 0.5 * (400.0 - std::sqrt(400.0 * 400.0 - 4.0 * 50.0 * 100.01)), 1e-6);
+  EXPECT_GT(stall.equilibrium, stall.closing_level);
+  EXPECT_NE(stall.explanation.find("stall at the bottom"), std::string::npos) << stall.explanation;
+  EXPECT_NE(stall.explanation.find("7.842 V"), std::string::npos) << stall.explanation;
+}
+
 // A 10 kW constant-power load behind 1 Ω from 400 V settles at v = [Vs + √(Vs² − 4PR)]/2 = 373.2051 V
 // ([R-CPL-equilibrium]: Simpson-Porco, Dörfler & Bullo, arXiv:1503.04769), below a 95 % closing level (380 V):
 // the charge stalls and the timeout fires at the first sample 60 ms after the start.

@@ -77,6 +77,9 @@ void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
                          {"load_power", quantity(stall.load_power, "W")},
                          {"maximum_power", quantity(stall.maximum_power, "W")},
                          {"equilibrium", quantity(stall.equilibrium, "V")},
+                         {"lower_root", quantity(stall.lower_root, "V")},
+                         {"link_voltage", quantity(stall.link_voltage, "V")},
+                         {"latched", stall.latched},
                          {"closing_level", quantity(stall.closing_level, "V")},
                          {"explanation", stall.explanation}};
   }
