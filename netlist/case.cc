@@ -254,6 +254,7 @@ Case read_case(const Tree& root, const std::string& file) {
   }
   result.ground = *ground;
   result.ambient = top.quantity("ambient", Dimension::temperature(), Bound::Positive, 298.15);
+  result.ambient_mark = top.has("ambient") ? top.mark("ambient") : SourceMark{file, 1, 1};
 
   read_parts(root, result);
   result.events = read_events(root, result);
@@ -274,6 +275,7 @@ Case read_case(const Tree& root, const std::string& file) {
   result.scenarios = read_scenarios(root);
   result.variants = read_variants(root);
   result.tolerances = read_tolerances(root);
+  result.warnings = plausibility_warnings(result);
   return result;
 }
 

@@ -9,6 +9,7 @@
 
 #include "netlist/limit_spec.h"
 #include "netlist/parameter_reader.h"
+#include "netlist/plausibility.h"
 #include "netlist/run_spec.h"
 #include "netlist/scenario_spec.h"
 #include "netlist/sequence_spec.h"
@@ -56,10 +57,12 @@ struct CaseSettings {
   std::string title;
   std::string ground;
   double ambient = 298.15;  // K
+  SourceMark ambient_mark;  // where the ambient is written (the file's start when it is left at its default)
   std::vector<EventSpec> events;
   RunSpec run;
   std::optional<SequenceSpec> sequence;  // the BMS sequence, when the case has one
   std::vector<LimitSpec> limits;         // the case's limits block (part ratings are added by the analysis)
+  std::vector<PlausibilityWarning> warnings;  // legal values the trade does not use (netlist/plausibility.h)
 };
 
 struct Case : CaseSettings {

@@ -286,3 +286,29 @@ TEST_F(Cli, StudyOptionsAreCheckedByTheParser) {
   }
   EXPECT_FALSE(fs::exists(output)) << "nothing is written for a rejected command line";
 }
+
+TEST_F(Cli, ImplausibleValuesWarnAndStrictRefuses) {
+  // A 1.5 MF link: legal, but M written for m (docs/plausibility.md; common practice).
+  fs::path file = write_case("mega_farad.yaml",
+                             "ground: gnd\n"
+                             "parts:\n"
+                             "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V, "
+                             "series_resistance: 1 Ohm}\n"
+                             "  - {name: c1, kind: capacitor, nodes: [plus, gnd], capacitance: 1.5 MF}\n"
+                             "run: {duration: 1 ms}\n");
+  fs::path output = directory_ / "strict_out";
+  Outcome strict = run("run \"" + file.string() + "\" -q --strict -o \"" + output.string() + "\"");
+  EXPECT_EQ(strict.exit_code, 2) << strict.err;
+  EXPECT_NE(strict.err.find(file.string() + ":4:66: error: part 'c1' capacitance = 1.5 MF"), std::string::npos)
+      << strict.err;
+  EXPECT_TRUE(empty_directory(output)) << "--strict writes nothing";
+  Outcome plain = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
+  EXPECT_EQ(plain.exit_code, 0) << plain.err;
+  EXPECT_NE(plain.err.find(":4:66: warning: part 'c1' capacitance = 1.5 MF lies outside the usual range 0 … 1 F"),
+            std::string::npos)
+      << plain.err;
+  std::ifstream in(output / "summary.json");
+  const auto summary = nlohmann::json::parse(in);
+  ASSERT_EQ(summary["warnings"].size(), 1u);
+  EXPECT_NE(summary["warnings"][0]["why"].get<std::string>().find("M written for m"), std::string::npos);
+}

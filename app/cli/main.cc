@@ -26,6 +26,7 @@ int main(int argc, char** argv) {
   run_cli->add_option("--atol", run.absolute_tolerance, "absolute tolerance (overrides the case)");
   run_cli->add_option("--report", run.report, "also write a self-contained HTML report to this file");
   run_cli->add_flag("-q,--quiet", run.quiet, "print nothing on success");
+  run_cli->add_flag("--strict", run.strict, "treat values outside the usual ranges (docs/plausibility.md) as errors");
 
   CheckArguments check;
   auto* check_cli = cli.add_subcommand("check", "re-run the stored cases and compare them with their golden results");

@@ -1,5 +1,7 @@
 #include "app/commands/run_command.h"
 
+#include <iostream>
+
 #include <fmt/format.h>
 
 #include "app/commands/command_steps.h"
@@ -33,9 +35,23 @@ void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   netlist::require_valid_run(run);
 }
 
+// Values the trade does not use: printed before the run, or with --strict an input error.
+void report_warnings(const RunArguments& arguments, const netlist::Case& spec) {
+  if (spec.warnings.empty()) return;
+  const auto& first = spec.warnings.front();
+  if (arguments.strict) {
+    throw netlist::InputError(first.mark, first.message + " (" + first.reason + ")",
+                              "correct the value, or run without --strict to simulate it anyway");
+  }
+  for (const auto& warning : spec.warnings) {
+    std::cerr << fmt::format("{}: warning: {}\n  why: {}\n", warning.mark.to_string(), warning.message, warning.reason);
+  }
+}
+
 CommandOutput run_output(const RunArguments& arguments) {
   netlist::Case spec = netlist::load_case(arguments.case_file);
   apply_run_options(arguments, spec.run);
+  report_warnings(arguments, spec);
   CaseRun run(spec);
   const solver::Circuit& circuit = run.circuit();
   const solver::Result& result = run.result();

@@ -13,6 +13,7 @@ struct RunArguments {
   std::optional<double> absolute_tolerance;
   std::optional<std::string> report;  // HTML report file (self-contained)
   bool quiet = false;
+  bool strict = false;  // values outside the trade's ranges (netlist/plausibility.h) are input errors
 };
 
 /// Returns the process exit code (0 ok, 2 input error, 3 solver failure).

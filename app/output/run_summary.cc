@@ -86,6 +86,11 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
   summary["outcome"] = outcome_word(result.outcome);
   if (!result.message.empty()) summary["message"] = result.message;
   summary["end_time"] = quantity(result.end_time, "s");
+  nlohmann::json warnings = nlohmann::json::array();
+  for (const auto& warning : circuit.spec().warnings) {
+    warnings.push_back({{"where", warning.mark.to_string()}, {"message", warning.message}, {"why", warning.reason}});
+  }
+  summary["warnings"] = warnings;
   nlohmann::json parts = nlohmann::json::object();
   for (int p = 0; p < circuit.part_count(); ++p) {
     parts[circuit.part(p).name()] = part_summary(circuit, result, audit, p);
