@@ -44,19 +44,7 @@ CaseDocument CaseDocument::with_variant(const VariantSpec& variant) const {
 }
 
 std::optional<Quantity> CaseDocument::quantity_at(const std::string& path, const SourceMark& mark) const {
-  const Tree* node = find_value(root_, path, mark);
-  if (node == nullptr) return std::nullopt;
-  if (!node->is_scalar()) {
-    throw InputError(mark, fmt::format("'{}' has no single value in the case", path),
-                     "name a parameter that holds one value, e.g. 'r_pre.resistance'");
-  }
-  std::string problem;
-  auto quantity = parse_quantity(node->text, problem);
-  if (!quantity) {
-    throw InputError(node->mark, fmt::format("the value of '{}' '{}' is not a quantity: {}", path, node->text, problem),
-                     "write a number with a unit, e.g. '22 Ohm' or '1.5 mF'");
-  }
-  return quantity;
+  return netlist::quantity_at(root_, path, mark, "name a parameter that holds one value, e.g. 'r_pre.resistance'");
 }
 
 void CaseDocument::scale(const std::string& path, double factor, const SourceMark& mark) {

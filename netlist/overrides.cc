@@ -174,6 +174,20 @@ const Tree* find_value(const Tree& root, const std::string& path, const SourceMa
   return block;
 }
 
+std::optional<Quantity> quantity_at(const Tree& root, const std::string& path, const SourceMark& mark,
+                                    const std::string& fix) {
+  const Tree* node = find_value(root, path, mark);
+  if (node == nullptr) return std::nullopt;
+  if (!node->is_scalar()) throw InputError(mark, fmt::format("'{}' has no single value in the case", path), fix);
+  std::string problem;
+  auto quantity = parse_quantity(node->text, problem);
+  if (!quantity) {
+    throw InputError(node->mark, fmt::format("the value of '{}' '{}' is not a quantity: {}", path, node->text, problem),
+                     "write a number with a unit, e.g. '22 Ohm' or '1.5 mF'");
+  }
+  return quantity;
+}
+
 void scale_value(Tree& root, const std::string& path, double factor, const SourceMark& mark) {
   const Tree* node = find_value(root, path, mark);
   if (node == nullptr || !node->is_scalar()) {

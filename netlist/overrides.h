@@ -10,12 +10,14 @@
 // The value is text as it would appear in the case file ("47 Ohm", "95 %"); a value starting with '[' or '{'
 // is read as a YAML list or block. New keys may be added (a part parameter left at its default); the reader of
 // the block rejects unknown ones afterwards with a did-you-mean, at the position of the override.
+#include <optional>
 #include <string>
 #include <utility>
 #include <vector>
 
 #include "netlist/input_error.h"
 #include "netlist/tree.h"
+#include "netlist/units.h"
 
 namespace linkrise::netlist {
 
@@ -36,6 +38,11 @@ void apply_overrides(Tree& root, const std::vector<Override>& changes);
 
 /// The value at `path`, or nullptr when it is not set (no throw for a missing key; throws for an unknown part).
 const Tree* find_value(const Tree& root, const std::string& path, const SourceMark& mark);
+
+/// The quantity written at `path`; std::nullopt when nothing is written there. Throws InputError at `mark`, with
+/// `fix`, when the path holds a block or a list, and at the value when it is no quantity.
+std::optional<Quantity> quantity_at(const Tree& root, const std::string& path, const SourceMark& mark,
+                                    const std::string& fix);
 
 /// Multiplies the quantity at `path` by `factor`, keeping its unit (the text is rewritten in SI units).
 void scale_value(Tree& root, const std::string& path, double factor, const SourceMark& mark);

@@ -55,8 +55,8 @@ void check(double value, const PlausibilityRule& rule, const std::string& what, 
 std::vector<PlausibilityWarning> plausibility_warnings(const Case& spec) {
   std::vector<PlausibilityWarning> warnings;
   for (const auto& part : spec.parts) {
+    ParameterReader reader = part.parameters();
     for (const auto& rule : plausibility_rules()) {
-      ParameterReader reader = part.parameters();
       if (!reader.has(rule.key)) continue;
       try {
         double value = reader.required(rule.key, rule.dimension, Bound::Any);

@@ -12,20 +12,6 @@ namespace linkrise::netlist {
 
 namespace {
 
-Quantity nominal_value(const Tree& node, const std::string& path, const SourceMark& mark) {
-  if (!node.is_scalar()) {
-    throw InputError(mark, fmt::format("'{}' has no single value in the case", path),
-                     "give it a value in the case file (a default cannot carry a tolerance), or use 'range:'");
-  }
-  std::string problem;
-  auto quantity = parse_quantity(node.text, problem);
-  if (!quantity) {
-    throw InputError(node.mark, fmt::format("the value of '{}' '{}' is not a quantity: {}", path, node.text, problem),
-                     "write a number with a unit, e.g. '22 Ohm' or '1.5 mF'");
-  }
-  return *quantity;
-}
-
 Quantity quantity_of(const Tree& node, const std::string& what) {
   if (!node.is_scalar()) {
     throw InputError(node.mark, fmt::format("{} must be a single value", what), "write e.g. '5 %' or '2 ms'");
@@ -180,8 +166,8 @@ ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tr
   }
 
   // The nominal value, when the case gives one (a range does not need it).
-  std::optional<Quantity> nominal;
-  if (const Tree* nominal_node = find_value(root, path, mark)) nominal = nominal_value(*nominal_node, path, mark);
+  const std::optional<Quantity> nominal = quantity_at(
+      root, path, mark, "give it a value in the case file (a default cannot carry a tolerance), or use 'range:'");
 
   if (keys.range != nullptr) {
     read_range(*keys.range, path, nominal, t);
