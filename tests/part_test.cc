@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <numbers>
 #include <string>
 
 #include "models/registry.h"
@@ -96,7 +97,7 @@ TEST(Part, ACableDerivesItsLoopResistanceAndInductanceFromGeometry) {
   EXPECT_NEAR(derived[0].value, 1.68e-8 * 4.0 / 35e-6, 1e-12);
   // Two round wires, radius √(A/π), 20 mm apart: L = length·(µ0/π)·[ln(d/r) + ¼]
   // (docs/references.md [R-wire-pair-inductance], low-frequency form).
-  const double radius = std::sqrt(35e-6 / M_PI);
+  const double radius = std::sqrt(35e-6 / std::numbers::pi);
   const double expected = 2.0 * 4e-7 * (std::log(0.020 / radius) + 0.25);
   EXPECT_EQ(derived[1].unit, "H");
   EXPECT_NEAR(derived[1].value, expected, 1e-6 * expected);
