@@ -312,3 +312,49 @@ TEST_F(Cli, ImplausibleValuesWarnAndStrictRefuses) {
   ASSERT_EQ(summary["warnings"].size(), 1u);
   EXPECT_NE(summary["warnings"][0]["why"].get<std::string>().find("M written for m"), std::string::npos);
 }
+
+TEST_F(Cli, SetOverridesTheCaseOnRunAndFaultsAndIsRefusedWithCheckUpdate) {
+  // Closing a 10 V source with 2 Ohm onto an empty capacitor: the first current is V/R = 5 A (Ohm's law,
+  // docs/references.md [R-Ohm-Joule]), against 10 A with the case's own 1 Ohm.
+  fs::path file = write_capacitor_case("set.yaml", "run: {duration: 20 us}");
+  fs::path output = directory_ / "set_out";
+  Outcome result = run("run \"" + file.string() + "\" -q --set source.series_resistance=2Ohm -o \"" + output.string() + "\"");
+  ASSERT_EQ(result.exit_code, 0) << result.err;
+  std::ifstream in(output / "summary.json");
+  const auto summary = nlohmann::json::parse(in);
+  EXPECT_NEAR(summary["parts"]["source"]["peak_current"]["value"].get<double>(), 5.0, 5.0 * 1e-6);
+  Outcome unknown = run("run \"" + file.string() + "\" -q --set source.resistanse=2Ohm -o \"" + output.string() + "\"");
+  EXPECT_EQ(unknown.exit_code, 2);
+  EXPECT_NE(unknown.err.find("resistanse"), std::string::npos) << unknown.err;
+
+  // faults: the override reaches every scenario; the constant-power row's note states the resistance it used.
+  const std::string sequence_case = LINKRISE_SOURCE_DIR "/cases/sequence_clean_close.yaml";
+  Outcome faults = run("faults \"" + sequence_case + "\" -j 2 --set r_pre.resistance=39Ohm -o \"" +
+                       (directory_ / "faults_out").string() + "\"");
+  EXPECT_EQ(faults.exit_code, 0) << faults.err;
+  EXPECT_NE(faults.out.find("through 39"), std::string::npos) << faults.out;
+
+  Outcome update = run("check \"" + sequence_case + "\" --update --set r_pre.resistance=39Ohm");
+  EXPECT_EQ(update.exit_code, 2);
+  EXPECT_NE(update.err.find("--update cannot be combined with --set"), std::string::npos) << update.err;
+}
+
+TEST_F(Cli, CompareWithFaultsRunsTheScenariosPerVariant) {
+  const std::string study_case = LINKRISE_SOURCE_DIR "/cases/study_precharge_window.yaml";
+  fs::path output = directory_ / "compare_out";
+  Outcome result = run("compare \"" + study_case + "\" --faults -j 2 -o \"" + output.string() + "\"");
+  ASSERT_EQ(result.exit_code, 0) << result.err;
+  auto csv = lines(slurp(output / "compare_faults.csv"));
+  // Nominal and three variants, nine scenarios each, after the header.
+  ASSERT_EQ(csv.size(), 1u + 4u * 9u);
+  // The case's resistor-tolerance scenario overrides a parameter the thermistor variants do not have.
+  bool ptc_not_applicable = false;
+  for (const auto& line : csv) {
+    auto cells = split(line);
+    if (cells[0] == "ptc_thermistor" && cells[1] == "resistor_low_tolerance") ptc_not_applicable = cells[3] == "not_applicable";
+  }
+  EXPECT_TRUE(ptc_not_applicable);
+  std::ifstream in(output / "compare.json");
+  const auto json = nlohmann::json::parse(in);
+  EXPECT_EQ(json["variants"][1]["faults"]["rows"].size(), 9u);
+}

@@ -21,6 +21,7 @@ int main(int argc, char** argv) {
   auto* run_cli = cli.add_subcommand("run", "simulate one case; write waveforms.csv and summary.json");
   run_cli->add_option("case", run.case_file, "case file (YAML)")->required();
   run_cli->add_option("-o,--output", run.output_directory, "output directory")->capture_default_str();
+  run_cli->add_option("--set", run.settings, kSetHelp);
   run_cli->add_option("--sample", run.sample, "uniform output grid, e.g. '100 us'");
   run_cli->add_option("--rtol", run.relative_tolerance, "relative tolerance (overrides the case)");
   run_cli->add_option("--atol", run.absolute_tolerance, "absolute tolerance (overrides the case)");
@@ -33,6 +34,7 @@ int main(int argc, char** argv) {
   check_cli->add_option("paths", check.paths, "case files or directories (default: cases)");
   check_cli->add_option("--junit", check.junit_file, "also write a JUnit XML report to this file");
   check_cli->add_flag("--update", check.update, "rewrite the golden results, listing every value that changed");
+  check_cli->add_option("--set", check.settings, "override a parameter in every case, e.g. run.rtol=1e-8 (repeatable)");
   check_cli->add_flag("--all", check.show_all, "list unchanged items too");
   check_cli->add_option("-j,--jobs", check.jobs, "parallel cases (default: one per core)");
 
@@ -41,6 +43,7 @@ int main(int argc, char** argv) {
       cli.add_subcommand("faults", "run the built-in and the case's fault scenarios; write the detection matrix");
   faults_cli->add_option("case", faults.case_file, "case file (YAML) with a sequence block")->required();
   faults_cli->add_option("-o,--output", faults.output_directory, "output directory")->capture_default_str();
+  faults_cli->add_option("--set", faults.settings, kSetHelp);
   faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
   faults_cli->add_option("--report", faults.report, "also write a self-contained HTML report to this file");
   faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");

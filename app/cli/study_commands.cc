@@ -3,8 +3,6 @@
 namespace linkrise::app {
 namespace {
 
-constexpr const char* set_help = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
-
 // The options every study ends with, in the order its help lists them.
 template <class Arguments>
 void add_output_options(CLI::App* command, Arguments& arguments) {
@@ -20,7 +18,8 @@ void add_output_options(CLI::App* command, Arguments& arguments) {
 StudyCommands::StudyCommands(CLI::App& cli) {
   compare_cli_ = cli.add_subcommand("compare", "run the case's variants side by side with the nominal case");
   compare_cli_->add_option("case", compare_.case_file, "case file (YAML) with a variants block")->required();
-  compare_cli_->add_option("--set", compare_.settings, set_help);
+  compare_cli_->add_option("--set", compare_.settings, kSetHelp);
+  compare_cli_->add_flag("--faults", compare_.faults, "also run the fault scenarios for every variant");
   add_output_options(compare_cli_, compare_);
 
   sweep_cli_ = cli.add_subcommand("sweep", "vary one or two parameters over lists or ranges");
@@ -28,7 +27,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   sweep_cli_->add_option("--vary", sweep_.vary,
                          "PATH=A,B,C or PATH=A..B[:lin|:log][:N] (once or twice), e.g. r_pre.resistance=22Ohm..68Ohm:log:5")
       ->required();
-  sweep_cli_->add_option("--set", sweep_.settings, set_help);
+  sweep_cli_->add_option("--set", sweep_.settings, kSetHelp);
   sweep_cli_->add_option("--metrics", sweep_.metrics, "metrics for the terminal table, comma-separated");
   add_output_options(sweep_cli_, sweep_);
 
@@ -41,7 +40,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
     command->add_option("--seed", arguments.seed, "Monte Carlo seed")->capture_default_str();
     command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4")
         ->check(shard_form);
-    command->add_option("--set", arguments.settings, set_help);
+    command->add_option("--set", arguments.settings, kSetHelp);
     command->add_option("--metrics", arguments.metrics, "metrics for the terminal tables, comma-separated");
     add_output_options(command, arguments);
   };

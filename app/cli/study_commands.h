@@ -12,6 +12,9 @@
 
 namespace linkrise::app {
 
+/// The help of every --set option.
+inline constexpr const char* kSetHelp = "override a parameter first, e.g. r_pre.resistance=56Ohm (repeatable)";
+
 class StudyCommands {
  public:
   explicit StudyCommands(CLI::App& cli);

@@ -3,6 +3,7 @@
 #include "app/commands/command_steps.h"
 #include "app/regression/check.h"
 #include "app/regression/junit_xml.h"
+#include "app/studies/study_parameters.h"
 
 namespace linkrise::app {
 namespace {
@@ -12,7 +13,12 @@ CommandOutput check_output(const CheckArguments& arguments) {
   if (files.empty()) {
     throw CommandFailure(kExitInputError, "linkrise check: no case files found under the given paths");
   }
-  std::vector<CaseCheck> checks = check_cases(files, arguments.jobs);
+  if (arguments.update && !arguments.settings.empty()) {
+    throw CommandFailure(kExitInputError,
+                         "linkrise check: --update cannot be combined with --set (the golden results would store a "
+                         "changed case); run --update without --set");
+  }
+  std::vector<CaseCheck> checks = check_cases(files, arguments.jobs, parse_settings(arguments.settings));
   CheckSummary summary = summarise_checks(checks, arguments.show_all);
   CommandOutput output;
   output.text = summary.table + summary.closing_line();

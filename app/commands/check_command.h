@@ -11,6 +11,7 @@ struct CheckArguments {
   std::vector<std::string> paths = {"cases"};
   std::string junit_file;  // empty: none
   bool update = false;     // rewrite golden results after showing what changed
+  std::vector<std::string> settings;  // --set path=value, applied to every case (not with --update)
   bool show_all = false;   // table rows for unchanged items too
   int jobs = 0;            // 0: one per core
 };

@@ -13,6 +13,7 @@ struct CompareArguments {
   int jobs = 0;
   std::string report;  // optional HTML report file
   bool quiet = false;
+  bool faults = false;  // also run the fault scenarios per variant
 };
 
 int compare_command(const CompareArguments& arguments);

@@ -10,6 +10,8 @@
 #include "app/output/verdict_summary.h"
 #include "app/output/waveform_csv.h"
 #include "app/report/report_html.h"
+#include "app/studies/study_parameters.h"
+#include "netlist/case_document.h"
 #include "netlist/parameter_reader.h"
 #include "netlist/run_spec.h"
 
@@ -49,7 +51,8 @@ void report_warnings(const RunArguments& arguments, const netlist::Case& spec) {
 }
 
 CommandOutput run_output(const RunArguments& arguments) {
-  netlist::Case spec = netlist::load_case(arguments.case_file);
+  netlist::Case spec =
+      netlist::CaseDocument::load(arguments.case_file).with(parse_settings(arguments.settings)).validate();
   apply_run_options(arguments, spec.run);
   report_warnings(arguments, spec);
   CaseRun run(spec);

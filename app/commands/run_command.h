@@ -2,12 +2,14 @@
 // `linkrise run CASE.yaml`: simulate one case, write waveforms.csv and summary.json, print a summary.
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace linkrise::app {
 
 struct RunArguments {
   std::string case_file;
   std::string output_directory = "out";
+  std::vector<std::string> settings;  // --set path=value, applied to the case before anything else
   std::optional<std::string> sample;  // a time such as "1 ms"
   std::optional<double> relative_tolerance;
   std::optional<double> absolute_tolerance;

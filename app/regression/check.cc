@@ -10,6 +10,7 @@
 #include "app/regression/golden.h"
 #include "app/regression/junit_xml.h"
 #include "app/studies/study_pool.h"
+#include "netlist/case_document.h"
 #include "netlist/input_error.h"
 
 namespace linkrise::app {
@@ -38,8 +39,21 @@ std::vector<std::string> find_case_files(const std::vector<std::string>& paths) 
 
 namespace {
 
-void check_one(CaseCheck& check) {
-  check.evaluation = evaluate_case_file(check.file);
+// The case with the overrides, or the input error that stops it, as an evaluation.
+CaseEvaluation evaluate_with(const std::string& file, const std::vector<netlist::Override>& settings) {
+  if (settings.empty()) return evaluate_case_file(file);
+  try {
+    return evaluate_case_document(netlist::CaseDocument::load(file).with(settings));
+  } catch (const netlist::InputError& error) {
+    CaseEvaluation evaluation;
+    evaluation.status = CaseEvaluation::Status::InputError;
+    evaluation.message = error.what();
+    return evaluation;
+  }
+}
+
+void check_one(CaseCheck& check, const std::vector<netlist::Override>& settings) {
+  check.evaluation = evaluate_with(check.file, settings);
   fs::path golden_file = golden_path(check.file);
   if (fs::exists(golden_file)) {
     try {
@@ -67,11 +81,12 @@ std::string case_name(const std::string& file) { return fs::path(file).filename(
 
 }  // namespace
 
-std::vector<CaseCheck> check_cases(const std::vector<std::string>& files, int jobs) {
+std::vector<CaseCheck> check_cases(const std::vector<std::string>& files, int jobs,
+                                   const std::vector<netlist::Override>& settings) {
   std::vector<CaseCheck> checks(files.size());
   for (std::size_t i = 0; i < files.size(); ++i) checks[i].file = files[i];
   // Each case writes its own slot, so the table does not depend on the thread count.
-  for_each_index(checks.size(), jobs, [&](std::size_t i) { check_one(checks[i]); });
+  for_each_index(checks.size(), jobs, [&](std::size_t i) { check_one(checks[i], settings); });
   return checks;
 }
 

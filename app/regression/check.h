@@ -10,6 +10,7 @@
 #include "app/evaluation/case_evaluation.h"
 #include "app/regression/golden.h"
 #include "app/regression/junit_xml.h"
+#include "netlist/overrides.h"
 
 namespace linkrise::app {
 
@@ -29,7 +30,10 @@ struct CaseCheck {
 };
 
 /// Checks every file on `jobs` threads (0: one per core); in file order, whatever the thread count.
-std::vector<CaseCheck> check_cases(const std::vector<std::string>& files, int jobs);
+/// `settings` (--set) are applied to every case before it runs; a case without the overridden path is an input
+/// error of that case.
+std::vector<CaseCheck> check_cases(const std::vector<std::string>& files, int jobs,
+                                   const std::vector<netlist::Override>& settings = {});
 
 struct CheckSummary {
   std::string table;  // the table of changes (every item with show_all); empty when there is nothing to list

@@ -8,6 +8,7 @@
 
 #include "analysis/metrics.h"
 #include "app/output/json_fields.h"
+#include "app/studies/faults_json.h"
 #include "app/studies/study_parameters.h"
 #include "netlist/case_document.h"
 
@@ -38,7 +39,12 @@ std::vector<std::size_t> VariantComparison::best(std::size_t column) const {
   return best;
 }
 
-VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs) {
+bool VariantComparison::faults_failed() const {
+  return std::any_of(matrices.begin(), matrices.end(), [](const DetectionMatrix& matrix) { return !matrix.pass(); });
+}
+
+VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs,
+                                   bool faults) {
   const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
   const netlist::Case nominal = base.validate();
   const std::vector<netlist::VariantSpec>& variants = nominal.variants;
@@ -60,8 +66,44 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
   comparison.results = run_study(documents.size(), [&](std::size_t i) { return documents[i]; }, jobs);
   reject_input_errors(comparison.results, case_file,
                       [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
+  if (faults) {
+    // Each matrix runs its scenarios on the worker pool; the variants go one after the other.
+    for (std::size_t i = 0; i < documents.size(); ++i) {
+      comparison.matrices.push_back(
+          detection_matrix(documents[i], jobs, i == 0 ? ScenarioFit::MustFit : ScenarioFit::MayNotFit));
+    }
+  }
   return comparison;
 }
+
+namespace {
+// The fault scenarios table: one row per scenario (in the nominal matrix's order), one column per variant.
+std::string faults_table(const VariantComparison& comparison) {
+  if (comparison.matrices.empty()) return "";
+  std::vector<std::string> header{"scenario (expected)"};
+  for (const auto& name : comparison.names) header.push_back(name);
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& nominal_row : comparison.matrices.front().rows) {
+    std::vector<std::string> row{fmt::format("{} ({})", nominal_row.scenario, nominal_row.expected_word())};
+    for (const auto& matrix : comparison.matrices) {
+      const DetectionRow* found = matrix.find(nominal_row.scenario);
+      if (!found) {
+        row.push_back("-");
+        continue;
+      }
+      // A row whose expectation follows from the variant's own data (constant power from the start) says so.
+      std::string expected = found->expected != nominal_row.expected ? " (expected " + found->expected_word() + ")" : "";
+      row.push_back(found->actual_word() + expected + (found->pass ? "" : " FAIL"));
+    }
+    rows.push_back(std::move(row));
+  }
+  std::vector<std::string> verdict{"matrix"};
+  for (const auto& matrix : comparison.matrices) verdict.push_back(matrix.pass() ? "pass" : "fail");
+  rows.push_back(verdict);
+  return "fault scenarios (outcome per variant; FAIL: not the expected outcome, or the resistor's rating broken)\n" +
+         text_table(header, rows);
+}
+}  // namespace
 
 std::string comparison_text(const VariantComparison& comparison) {
   std::string out = fmt::format("linkrise compare — {}\n", comparison.title);
@@ -92,6 +134,18 @@ std::string comparison_text(const VariantComparison& comparison) {
   for (std::size_t i = 0; i < results.points.size(); ++i) {
     if (!results.points[i].evaluated()) {
       out += fmt::format("  {}: {}\n", comparison.names[i], results.points[i].message);
+    }
+  }
+  return out + faults_table(comparison);
+}
+
+std::string comparison_faults_csv(const VariantComparison& comparison) {
+  std::string out = "variant,scenario,expected,actual,attempts,detection_time [s],energy [J],peak_temperature [degC],pass\n";
+  for (std::size_t i = 0; i < comparison.matrices.size(); ++i) {
+    for (const auto& row : comparison.matrices[i].rows) {
+      out += fmt::format("{},{},{},{},{},{},{},{},{}\n", csv_text(comparison.names[i]), csv_text(row.scenario),
+                         row.expected_word(), row.actual_word(), row.attempts, csv_number(row.detection_time),
+                         csv_number(row.energy), csv_number(row.peak_temperature), row.pass ? "yes" : "no");
     }
   }
   return out;
@@ -135,6 +189,7 @@ nlohmann::json comparison_json_value(const VariantComparison& comparison) {
                         {"outcome", point.outcome},
                         {"verdict", analysis::verdict_word(point.verdict)},
                         {"metrics", metrics}});
+    if (i < comparison.matrices.size()) variants.back()["faults"] = detection_matrix_json(comparison.matrices[i]);
   }
   nlohmann::json best = nlohmann::json::object();
   for (std::size_t c = 0; c < results.columns.size(); ++c) {

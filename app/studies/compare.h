@@ -12,9 +12,15 @@
 // rows, and the best value per row marked '*' (smaller is better except for minimum_* metrics and the stall
 // equilibrium, see larger_is_better; a row where every value ties is not marked). Writes compare.csv and
 // compare.json. Exit 0 when every variant was evaluated, 2 for bad input, 3 when the solver failed somewhere.
+//
+// With --faults every variant also runs the fault scenarios of `linkrise faults` (app/studies/faults.h): a second
+// table, one row per scenario and one column per variant, shows each row's outcome and whether it passed;
+// compare_faults.csv lists every row, compare.json holds each variant's detection matrix; the exit code is 1 when
+// an applicable row of some variant failed.
 #include <string>
 #include <vector>
 
+#include "app/studies/faults.h"
 #include "app/studies/study_run.h"
 #include "netlist/overrides.h"
 
@@ -26,15 +32,21 @@ struct VariantComparison {
   std::vector<std::string> names;  // "nominal", then the variants
   std::vector<std::string> notes;  // the variants' notes, in the same order (empty for the nominal case)
   StudyResults results;            // one point per name
+  std::vector<DetectionMatrix> matrices;  // with faults: one per name, in the same order; else empty
+  bool faults_failed() const;
   /// Indices of the best entries of a metric column (empty when all tie or fewer than two are reached).
   std::vector<std::size_t> best(std::size_t column) const;
 };
 
 /// Runs the comparison. Throws InputError for bad input (also a variant whose values are out of range).
-VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs);
+/// With `faults`, every variant's detection matrix too.
+VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs,
+                                   bool faults = false);
 
 std::string comparison_text(const VariantComparison& comparison);
 std::string comparison_csv(const VariantComparison& comparison);
+/// compare_faults.csv: one line per variant and scenario.
+std::string comparison_faults_csv(const VariantComparison& comparison);
 /// compare.json as text.
 std::string comparison_json(const VariantComparison& comparison);
 

@@ -54,6 +54,7 @@ struct Planned {
   DetectionRow row;
   netlist::CaseDocument document;
   bool expect_from_stall = false;  // the expectation follows from the run's own stall diagnostic
+  bool from_case = false;          // a row of the case's `scenarios:` block
   std::optional<netlist::Case> spec;
 };
 
@@ -81,8 +82,9 @@ netlist::SequenceOutcome caught_outcome(const netlist::SequenceSpec& sequence) {
 // The plan under construction: the rows in order, each with its own copy of the case document.
 class Plan {
  public:
-  Plan(const netlist::CaseDocument& document, const netlist::Case& nominal, const solver::Circuit& circuit)
-      : document_(document), nominal_(nominal), circuit_(circuit), sequence_(*nominal.sequence),
+  Plan(const netlist::CaseDocument& document, const netlist::Case& nominal, const solver::Circuit& circuit,
+       ScenarioFit fit)
+      : document_(document), nominal_(nominal), circuit_(circuit), fit_(fit), sequence_(*nominal.sequence),
         at_(sequence_.mark), caught_(caught_outcome(sequence_)) {}
 
   std::vector<Planned> built_in_and_case_scenarios() {
@@ -187,13 +189,21 @@ class Plan {
                                   "add e.g. 'expect: no_rise' (closed, timeout, no_rise, too_fast)");
       }
       Planned& p = is_new ? add(scenario.name, "defined by the case", *scenario.expected) : *existing;
+      p.from_case = true;
       if (scenario.expected) {
         p.row.expected = *scenario.expected;
         p.expect_from_stall = false;
       }
       if (!scenario.note.empty()) p.row.note = scenario.note;
       if (scenario.overrides.empty()) continue;
-      p.document.apply(scenario.overrides);
+      try {
+        p.document.apply(scenario.overrides);
+      } catch (const netlist::InputError& error) {
+        if (fit_ == ScenarioFit::MustFit) throw;
+        // A scenario written for the case's own parts may name a parameter a variant's part does not have.
+        not_applicable(p, fmt::format("the scenario does not fit this design: {}", error.problem()));
+        continue;
+      }
       if (is_new || p.row.description == "defined by the case") {
         std::string list;
         for (const auto& change : scenario.overrides) list += (list.empty() ? "" : ", ") + change.path + " = " + change.value;
@@ -205,6 +215,7 @@ class Plan {
   const netlist::CaseDocument& document_;
   const netlist::Case& nominal_;
   const solver::Circuit& circuit_;
+  const ScenarioFit fit_;
   const netlist::SequenceSpec& sequence_;
   const netlist::SourceMark at_;  // built-in edits point at the sequence block
   const netlist::SequenceOutcome caught_;  // the outcome a fault that stops the rise ends in
@@ -301,7 +312,7 @@ DetectionMatrix detection_matrix(const std::string& case_file, int jobs) {
 
 // Also used by `linkrise window` (app/studies/fault_window.cc), which re-runs the scenarios on a case document
 // that carries the recommended minimum time and timeout as overrides.
-DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs) {
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, ScenarioFit fit) {
   const std::string case_file = document.file();
   netlist::Case nominal = document.validate();
   const auto& sequence = nominal.sequence;
@@ -320,12 +331,20 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs) {
     nominal = document.validate();
   }
   const solver::Circuit circuit(nominal);
-  std::vector<Planned> planned = Plan(document, nominal, circuit).built_in_and_case_scenarios();
+  std::vector<Planned> planned = Plan(document, nominal, circuit, fit).built_in_and_case_scenarios();
   // Every scenario is validated before any is simulated, so bad input costs no run and writes nothing.
   for (auto& p : planned) {
     if (!p.row.applicable) continue;
-    p.spec = p.document.validate();
-    solver::Circuit check(*p.spec);
+    try {
+      p.spec = p.document.validate();
+      solver::Circuit check(*p.spec);
+    } catch (const netlist::InputError& error) {
+      if (fit == ScenarioFit::MustFit || !p.from_case) throw;
+      // A scenario written for the case's own parts may name a parameter a variant's part does not have.
+      p.row.applicable = false;
+      p.row.note = fmt::format("the scenario does not fit this design: {}", error.problem());
+      continue;
+    }
     if (!p.spec->sequence) throw std::logic_error("scenario lost its sequence block");
   }
   // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread count.

@@ -83,8 +83,12 @@ void keep_link_trace(DetectionRow& row, const solver::Result& result, const netl
 /// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
 /// netlist::InputError for a bad case or scenario.
 DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
+/// Whether the case's own scenarios must fit the document: they must for the case as written; on a design
+/// alternative (a compare variant, a sizing candidate of another kind) a scenario that overrides a parameter the
+/// new part lacks becomes a not-applicable row with the reason.
+enum class ScenarioFit { MustFit, MayNotFit };
 /// The same on a case document (e.g. with overrides applied).
-DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs = 1);
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs = 1, ScenarioFit fit = ScenarioFit::MustFit);
 
 /// Why an applicable row failed, one phrase per reason (empty for a passing row).
 std::vector<std::string> failure_reasons(const DetectionRow& row);
