@@ -358,3 +358,23 @@ TEST_F(Cli, CompareWithFaultsRunsTheScenariosPerVariant) {
   const auto json = nlohmann::json::parse(in);
   EXPECT_EQ(json["variants"][1]["faults"]["rows"].size(), 9u);
 }
+
+TEST_F(Cli, SweepExitsOneWhenNoPointPassesAndWindowHintsItsOwnName) {
+  // The first power of a 10 V step into R and an empty capacitor is V²/R (Joule, docs/references.md
+  // [R-Ohm-Joule]): 10 W at 10 Ohm, 5 W at 20 Ohm, 0.5 W at 200 Ohm, against a 1 W limit.
+  fs::path file = write_case("sweep.yaml",
+                             "ground: gnd\n"
+                             "parts:\n"
+                             "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 10 V}\n"
+                             "  - {name: r1, kind: resistor, nodes: [plus, mid], resistance: 10 Ohm}\n"
+                             "  - {name: c1, kind: capacitor, nodes: [mid, gnd], capacitance: 1 uF}\n"
+                             "limits:\n"
+                             "  r1.peak_power: {max: 1 W}\n"
+                             "run: {duration: 20 us}\n");
+  const std::string output = " -q -o \"" + (directory_ / "sweep_out").string() + "\"";
+  EXPECT_EQ(run("sweep \"" + file.string() + "\" --vary r1.resistance=10Ohm,20Ohm" + output).exit_code, 1);
+  EXPECT_EQ(run("sweep \"" + file.string() + "\" --vary r1.resistance=10Ohm,200Ohm" + output).exit_code, 0);
+  Outcome window = run("window \"" + file.string() + "\"" + output);
+  EXPECT_EQ(window.exit_code, 2);
+  EXPECT_NE(window.err.find("'linkrise window case.yaml --corners'"), std::string::npos) << window.err;
+}

@@ -1,5 +1,7 @@
 #include "app/commands/sweep_command.h"
 
+#include <algorithm>
+
 #include "app/commands/command_steps.h"
 #include "app/report/study_report.h"
 #include "app/studies/study_parameters.h"
@@ -23,7 +25,12 @@ int sweep_command(const SweepArguments& arguments) {
     output.report_file = arguments.report;
     if (!arguments.report.empty()) output.report = sweep_report_html(sweep, metrics);
     output.text = sweep_text(sweep, metrics);
-    output.exit_code = sweep.results.any_solver_failure() ? kExitSolverFailure : kExitOk;
+    // A sweep looks for a value that works: when none does, say so in the exit code too.
+    const bool any_passed = std::any_of(sweep.results.points.begin(), sweep.results.points.end(),
+                                        [](const PointResult& point) { return point.passed(); });
+    output.exit_code = sweep.results.any_solver_failure() ? kExitSolverFailure
+                       : any_passed                      ? kExitOk
+                                                         : kExitLimitFailed;
     return output;
   });
 }

@@ -26,7 +26,7 @@ CommandOutput window_output(const WindowArguments& arguments) {
   const SpreadArguments& a = arguments.spread;
   std::vector<netlist::Override> settings = parse_settings(a.settings);
   double margin = margin_fraction(arguments.margin);
-  SpreadPlan plan = spread_plan(a.corners, a.samples, a.seed, a.shard);
+  SpreadPlan plan = spread_plan(a.corners, a.samples, a.seed, a.shard, "window");
   if (plan.shards > 1) {
     throw netlist::InputError(option_mark("--shard", 1), "a fault window needs the whole population, not a shard",
                               "run without --shard (shard `linkrise spread` instead)");

@@ -45,11 +45,13 @@ void parse_shard(const std::string& text, SpreadPlan& plan) {
   std::tie(plan.shard, plan.shards) = *shard;
 }
 
-SpreadPlan spread_plan(bool corners, std::size_t samples, std::uint64_t seed, const std::string& shard) {
+SpreadPlan spread_plan(bool corners, std::size_t samples, std::uint64_t seed, const std::string& shard,
+                       const std::string& command) {
   SpreadPlan plan;
   if (corners == (samples > 0)) {
     throw InputError(netlist::SourceMark{"command line", 0, 0}, "choose one study: --corners or --samples N",
-                     "e.g. 'linkrise spread case.yaml --samples 1000 --seed 7'");
+                     fmt::format("e.g. 'linkrise {} case.yaml --corners' or 'linkrise {} case.yaml --samples 1000 "
+                                 "--seed 7'", command, command));
   }
   plan.corners = corners;
   plan.samples = samples;

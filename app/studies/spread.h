@@ -85,6 +85,8 @@ std::string spread_json(const Spread& spread);
 std::string sample_parameters(const Spread& spread, std::size_t point);
 
 /// The plan from the command line (exactly one of --corners and --samples). Throws InputError.
-SpreadPlan spread_plan(bool corners, std::size_t samples, std::uint64_t seed, const std::string& shard);
+/// `command` names the subcommand in the hint ("spread", "window").
+SpreadPlan spread_plan(bool corners, std::size_t samples, std::uint64_t seed, const std::string& shard,
+                       const std::string& command = "spread");
 
 }  // namespace linkrise::app
