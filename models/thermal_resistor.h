@@ -30,7 +30,7 @@
 //     max_temperature: 220 degC   -> metric "peak_temperature" (degC)
 //     pulse_energy: 150 J         -> metric "energy" (J); pulse_length (s) goes into the note
 //     pulse_length: 100 ms
-//     continuous_power: 10 W      -> metric "peak_power" (W), noted as a continuous rating
+//     continuous_power: 10 W      -> metric "average_power" (W): the mean heat over the run
 //     max_voltage: 1000 V         -> metric "peak_voltage" (V)
 #include <memory>
 #include <optional>

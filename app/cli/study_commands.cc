@@ -55,6 +55,19 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   add_population(window_cli_, window_.spread);
   window_cli_->add_option("--margin", window_.margin, "margin below the fastest and above the slowest charge, e.g. 20%")
       ->capture_default_str();
+
+  size_cli_ = cli.add_subcommand(
+      "size", "find the window of resistance values that passes every limit, rating and outcome at every corner");
+  size_cli_->add_option("case", size_.case_file, "case file (YAML)")->required();
+  size_cli_->add_option("--part", size_.part, "the part to size, e.g. r_pre")->required();
+  size_cli_->add_option("--range", size_.range, "the values to search, e.g. 10Ohm..200Ohm")->required();
+  size_cli_->add_option("--parameter", size_.parameter, "the resistance parameter (default resistance)");
+  size_cli_->add_flag("--nominal", size_.nominal, "judge the nominal point only, without the tolerance corners");
+  size_cli_->add_option("--tolerance", size_.tolerance, "relative tolerance of the boundaries")->capture_default_str();
+  size_cli_->add_option("--set", size_.settings, kSetHelp);
+  size_cli_->add_option("-o,--output", size_.output_directory, "output directory")->capture_default_str();
+  size_cli_->add_option("-j,--jobs", size_.jobs, "parallel evaluations (default: one per core)");
+  size_cli_->add_flag("-q,--quiet", size_.quiet, "print nothing on success");
 }
 
 std::optional<int> StudyCommands::dispatch() const {
@@ -62,6 +75,7 @@ std::optional<int> StudyCommands::dispatch() const {
   if (sweep_cli_->parsed()) return sweep_command(sweep_);
   if (spread_cli_->parsed()) return spread_command(spread_);
   if (window_cli_->parsed()) return window_command(window_);
+  if (size_cli_->parsed()) return size_command(size_);
   return std::nullopt;
 }
 

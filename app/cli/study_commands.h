@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include "app/commands/compare_command.h"
+#include "app/commands/size_command.h"
 #include "app/commands/spread_command.h"
 #include "app/commands/sweep_command.h"
 #include "app/commands/window_command.h"
@@ -26,10 +27,12 @@ class StudyCommands {
   SweepArguments sweep_;
   SpreadArguments spread_;
   WindowArguments window_;
+  SizeArguments size_;
   CLI::App* compare_cli_ = nullptr;
   CLI::App* sweep_cli_ = nullptr;
   CLI::App* spread_cli_ = nullptr;
   CLI::App* window_cli_ = nullptr;
+  CLI::App* size_cli_ = nullptr;
 };
 
 }  // namespace linkrise::app

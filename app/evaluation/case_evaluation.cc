@@ -1,6 +1,7 @@
 #include "app/evaluation/case_evaluation.h"
 
 #include <chrono>
+#include <cmath>
 
 #include "app/evaluation/case_run.h"
 #include "netlist/case.h"
@@ -30,6 +31,14 @@ CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, sol
       evaluation.verdict = run.evaluation().verdict();
       for (const auto& metric : run.evaluation().metrics.list()) {
         evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
+      }
+      for (const auto& limit : run.evaluation().limits) {
+        evaluation.margins.push_back({limit.metric + " " + analysis::bound_word(limit.bound),
+                                      limit.judged ? limit.relative_margin - limit.required_margin : std::nan("")});
+      }
+      if (run.report()) {
+        evaluation.margins.push_back(
+            {"sequence outcome", run.report()->outcome == spec.sequence->expected_outcome ? 1.0 : -1.0});
       }
     }
     if (row_store) *row_store = run.release_steps();

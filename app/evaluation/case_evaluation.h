@@ -18,6 +18,13 @@ struct MetricValue {
   std::string unit;
 };
 
+/// One judged bound of an evaluation: its margin beyond the required one, as a fraction of the bound (>= 0
+/// passes), or the sequence outcome as a bound of its own (+1 when the expected outcome was reached, −1 not).
+struct LimitMargin {
+  std::string constraint;  // "<metric> max", "<metric> min" or "sequence outcome"
+  double margin = 0.0;     // NaN when the metric was not reached (not judged)
+};
+
 struct CaseEvaluation {
   enum class Status { Evaluated, InputError, SolverFailure };
   Status status = Status::Evaluated;
@@ -25,6 +32,7 @@ struct CaseEvaluation {
   std::string outcome;  // sequence outcome ("closed", "timeout"...) or run outcome ("completed")
   analysis::Verdict verdict = analysis::Verdict::Fail;
   std::vector<MetricValue> metrics;
+  std::vector<LimitMargin> margins;  // every judged bound (case limits and part ratings), then the outcome
   double seconds = 0.0;  // wall time of the evaluation
 };
 
