@@ -23,7 +23,8 @@ class CellString final : public Part {
     auto constant = reader.optional("cell_voltage", Dimension::voltage(), Bound::Positive);
     auto table = reader.table("cell_voltage_table", {Dimension::none(), Dimension::voltage()});
     if (constant && !table.empty()) {
-      reader.fail("cell_voltage_table", "give either cell_voltage or cell_voltage_table, not both");
+      reader.fail("cell_voltage_table", "give either cell_voltage or cell_voltage_table, not both",
+                  "keep the table for a voltage that follows the state of charge, or the single cell_voltage");
     }
     if (!constant && table.empty()) {
       reader.required("cell_voltage", Dimension::voltage(), Bound::Positive);

@@ -29,6 +29,7 @@ double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::stri
   if (!reader.has(key)) {
     reader.accept(key);
     if (!required) return std::numeric_limits<double>::infinity();
+    reader.reject_misspelling(key);
     reader.fail(key, "is missing", fmt::format("add '{}: 8 K/W', or '{}: adiabatic' for no cooling", key, key));
   }
   if (reader.is_word(key, "adiabatic")) {

@@ -21,20 +21,22 @@ static std::string compose(const SourceMark& mark, const std::string& problem, c
 InputError::InputError(SourceMark mark, const std::string& problem, const std::string& fix)
     : std::runtime_error(compose(mark, problem, fix)), mark_(std::move(mark)), problem_(problem), fix_(fix) {}
 
+// Edits between two words, case ignored; swapping two neighbouring letters ("stpes") counts as one edit, as
+// typing slips do (the optimal-string-alignment distance).
 static std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  const auto same = [](char x, char y) { return std::tolower(x) == std::tolower(y); };
+  std::vector<std::vector<std::size_t>> d(a.size() + 1, std::vector<std::size_t>(b.size() + 1));
+  for (std::size_t i = 0; i <= a.size(); ++i) d[i][0] = i;
+  for (std::size_t j = 0; j <= b.size(); ++j) d[0][j] = j;
   for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
     for (std::size_t j = 1; j <= b.size(); ++j) {
-      std::size_t above = row[j];
-      std::size_t cost = (std::tolower(a[i - 1]) == std::tolower(b[j - 1])) ? 0 : 1;
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + cost});
-      diagonal = above;
+      d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + (same(a[i - 1], b[j - 1]) ? 0 : 1)});
+      if (i > 1 && j > 1 && same(a[i - 1], b[j - 2]) && same(a[i - 2], b[j - 1])) {
+        d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
+      }
     }
   }
-  return row[b.size()];
+  return d[a.size()][b.size()];
 }
 
 std::string closest_match(const std::string& word, const std::vector<std::string>& candidates) {

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <cstdlib>
+#include <limits>
 #include <stdexcept>
 
 #include <fmt/format.h>
@@ -28,6 +30,13 @@ std::string example_for(const Dimension& dimension) {
   if (dimension == Dimension::length()) return "'2.5 m' or '20 mm'";
   if (dimension == Dimension::area()) return "'35 mm²' or '35 mm^2'";
   return "a number with a unit of " + dimension.describe();
+}
+// The first example alone, without its quotes ("800 V"), for a line to add.
+std::string first_example(const Dimension& dimension) {
+  std::string examples = example_for(dimension);
+  std::size_t open = examples.find('\'');
+  std::size_t close = open == std::string::npos ? open : examples.find('\'', open + 1);
+  return close == std::string::npos ? "<value>" : examples.substr(open + 1, close - open - 1);
 }
 }  // namespace
 
@@ -86,7 +95,8 @@ double ParameterReader::read_value(const Tree& node, const Dimension& dimension,
     case Bound::Positive:
       if (!(value > 0.0)) {
         throw InputError(node.mark, fmt::format("{}: '{}' must be greater than zero", what, node.text),
-                         fmt::format("write a positive value such as {}", example_for(dimension)));
+                         dimension.symbol().empty() ? std::string("write a value greater than zero")
+                                                    : fmt::format("write a value greater than zero, in {}", dimension.symbol()));
       }
       break;
     case Bound::NonNegative:
@@ -110,18 +120,23 @@ double ParameterReader::required(const std::string& key, const Dimension& dimens
   known_.push_back(key);
   const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) {
-    // A misspelt key ("resistence") is the likelier cause: name it, with the did-you-mean, at its own place.
-    for (std::size_t i = 0; i < block_->entries.size(); ++i) {
-      const std::string& given = block_->entries[i].first;
-      if (std::find(known_.begin(), known_.end(), given) != known_.end()) continue;
-      if (closest_match(given, {key}) != key) continue;
-      throw InputError(i < block_->key_marks.size() ? block_->key_marks[i] : block_->mark,
-                       fmt::format("{} has no parameter '{}'", owner_, given), fmt::format("did you mean '{}'?", key));
-    }
+    reject_misspelling(key);
     throw InputError(block_->mark, fmt::format("{} needs the parameter '{}' ({})", owner_, key, dimension.describe()),
-                     fmt::format("add a line '{}: {}'", key, example_for(dimension)));
+                     fmt::format("add a line such as '{}: {}'", key, first_example(dimension)));
   }
   return read_value(*node, dimension, bound, fmt::format("{} parameter '{}'", owner_, key));
+}
+
+void ParameterReader::reject_misspelling(const std::string& key) const {
+  // A misspelt key ("resistence") is the likelier cause of a missing one: name it, with the did-you-mean, at
+  // its own place.
+  for (std::size_t i = 0; i < block_->entries.size(); ++i) {
+    const std::string& given = block_->entries[i].first;
+    if (std::find(known_.begin(), known_.end(), given) != known_.end()) continue;
+    if (closest_match(given, {key}) != key) continue;
+    throw InputError(i < block_->key_marks.size() ? block_->key_marks[i] : block_->mark,
+                     fmt::format("{} has no parameter '{}'", owner_, given), fmt::format("did you mean '{}'?", key));
+  }
 }
 
 double ParameterReader::quantity(const std::string& key, const Dimension& dimension, Bound bound, double fallback) {
@@ -161,7 +176,21 @@ int ParameterReader::count(const std::string& key, int fallback, int minimum) {
   int value = 0;
   const std::string& text = node->text;
   auto result = std::from_chars(text.data(), text.data() + text.size(), value);
+  if (result.ec == std::errc::result_out_of_range) {
+    throw InputError(node->mark,
+                     fmt::format("{} parameter '{}': '{}' is too large for a count (at most {})", owner_, key, text,
+                                 std::numeric_limits<int>::max()),
+                     "write a smaller whole number");
+  }
   if (!node->is_scalar() || result.ec != std::errc() || result.ptr != text.data() + text.size() || value < minimum) {
+    char* end = nullptr;
+    double number = node->is_scalar() ? std::strtod(text.c_str(), &end) : 0.0;
+    if (node->is_scalar() && end == text.c_str() + text.size() && number > std::numeric_limits<int>::max()) {
+      throw InputError(node->mark,
+                       fmt::format("{} parameter '{}': '{}' is too large for a count (at most {})", owner_, key,
+                                   text, std::numeric_limits<int>::max()),
+                       "write a smaller whole number");
+    }
     throw InputError(node->mark,
                      fmt::format("{} parameter '{}': '{}' must be a whole number of at least {}", owner_, key,
                                  text, minimum),
@@ -175,7 +204,8 @@ std::optional<std::string> ParameterReader::text(const std::string& key) {
   const Tree* node = block_->find(key);
   if (node == nullptr || node->kind == Tree::Kind::Null) return std::nullopt;
   if (!node->is_scalar()) {
-    throw InputError(node->mark, fmt::format("{} parameter '{}' must be a single text value", owner_, key));
+    throw InputError(node->mark, fmt::format("{} parameter '{}' must be a single text value", owner_, key),
+                     fmt::format("write it on one line, e.g. '{}: <text>'", key));
   }
   return node->text;
 }

@@ -58,6 +58,9 @@ class ParameterReader {
 
   SourceMark mark(const std::string& key) const;
   const std::string& owner() const { return owner_; }
+  /// Throws InputError at a key not asked about that looks like a misspelling of `key` (call when `key` is
+  /// missing: the misspelt key is the likelier cause).
+  void reject_misspelling(const std::string& key) const;
   [[noreturn]] void fail(const std::string& key, const std::string& problem, const std::string& fix = "") const;
   /// Throws InputError for the first key nobody asked about, suggesting the closest known key.
   void finish() const;

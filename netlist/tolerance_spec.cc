@@ -33,6 +33,10 @@ double offset(const Tree& node, const std::string& what, const std::optional<Qua
     throw InputError(node.mark, fmt::format("'{}' has no nominal value in the case to take {} from", path, what),
                      "give the parameter a value in the case, or write 'range: [low, high]'");
   }
+  if (amount.value < 0.0) {
+    throw InputError(node.mark, fmt::format("{} '{}' of tolerance '{}' must not be negative", what, node.text, path),
+                     "give the size of the deviation; 'minus' and 'plus' set the two sides");
+  }
   bool relative = amount.dimension == Dimension::none() && !amount.absolute_temperature;
   bool same_unit = amount.dimension == nominal->dimension && !amount.absolute_temperature;
   if (relative && !(nominal->dimension == Dimension::none())) {
@@ -82,7 +86,8 @@ void read_range(const Tree& range, const std::string& path, const std::optional<
                                  low.dimension.describe(), nominal->dimension.describe()));
   }
   if (!(low.value < high.value)) {
-    throw InputError(range.mark, fmt::format("tolerance '{}': the range must run from low to high", path));
+    throw InputError(range.mark, fmt::format("tolerance '{}': the range must run from low to high", path),
+                     "write the lower end first, e.g. 'range: [-20 degC, 45 degC]'");
   }
   t.lower = low.value;
   t.upper = high.value;
@@ -143,6 +148,24 @@ void read_distribution(const ToleranceKeys& keys, const Tree& entry, const std::
   }
 }
 
+// "did you mean 'r_pre.resistance'?" when the part of `path` is in the case and one of its keys is close to the
+// parameter (a misspelt parameter, not a default, is then the likelier reason it has no value).
+std::string no_value_fix(const Tree& root, const std::string& path) {
+  const std::string otherwise = "give the parameter a value in the case, or write 'range: [low, high]'";
+  const std::size_t dot = path.find('.');
+  const Tree* parts = root.find("parts");
+  if (dot == std::string::npos || parts == nullptr || !parts->is_list()) return otherwise;
+  for (const Tree& part : parts->items) {
+    const Tree* name = part.find("name");
+    if (name == nullptr || !name->is_scalar() || name->text != path.substr(0, dot)) continue;
+    std::vector<std::string> keys;
+    for (const auto& [key, value] : part.entries) keys.push_back(key);
+    std::string closest = closest_match(path.substr(dot + 1), keys);
+    if (!closest.empty()) return fmt::format("did you mean '{}.{}'?", path.substr(0, dot), closest);
+  }
+  return otherwise;
+}
+
 // One entry of the block, `path: {...}`, written at `mark`.
 ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tree& entry, const SourceMark& mark) {
   ParameterReader reader(entry, fmt::format("tolerance '{}'", path));
@@ -174,7 +197,7 @@ ToleranceSpec read_tolerance(const Tree& root, const std::string& path, const Tr
   } else if (!nominal) {
     // Reported when a study draws it: a variant may have replaced the part that carried the value.
     t.unresolved = InputError(mark, fmt::format("tolerance '{}': the case gives no value for it", path),
-                              "give the parameter a value in the case, or write 'range: [low, high]'");
+                              no_value_fix(root, path));
     return t;
   } else {
     read_offsets(keys, path, mark, nominal, t);

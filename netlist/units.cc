@@ -292,6 +292,10 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
   }
   if (unit == "degC" || unit == "°C") {
     quantity.value = *number + kelvin_offset;
+    if (!std::isfinite(quantity.value)) {
+      problem = fmt::format("'{}' is out of range", text);
+      return std::nullopt;
+    }
     quantity.dimension = Dimension::temperature();
     quantity.absolute_temperature = true;
     return quantity;
@@ -309,6 +313,11 @@ std::optional<Quantity> parse_quantity(std::string_view raw, std::string& proble
   if (!parse_compound_unit(unit, scale, dimension, problem)) return std::nullopt;
   quantity.value = *number * scale;
   quantity.dimension = dimension;
+  if (!std::isfinite(quantity.value) || (*number != 0.0 && quantity.value == 0.0)) {
+    // 1e308 kF overflows to infinity and 1e-320 pF underflows to zero once the prefix is applied.
+    problem = fmt::format("'{}' is out of range once its prefix is applied", text);
+    return std::nullopt;
+  }
   return quantity;
 }
 

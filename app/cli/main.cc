@@ -8,6 +8,7 @@
 #include "app/commands/faults_command.h"
 #include "app/commands/run_command.h"
 #include "linkrise/version.h"
+#include "app/cli/parse_errors.h"
 #include "app/cli/study_commands.h"
 
 int main(int argc, char** argv) {
@@ -36,7 +37,8 @@ int main(int argc, char** argv) {
   check_cli->add_flag("--update", check.update, "rewrite the golden results, listing every value that changed");
   check_cli->add_option("--set", check.settings, "override a parameter in every case, e.g. run.rtol=1e-8 (repeatable)");
   check_cli->add_flag("--all", check.show_all, "list unchanged items too");
-  check_cli->add_option("-j,--jobs", check.jobs, "parallel cases (default: one per core)");
+  check_cli->add_option("-j,--jobs", check.jobs, "parallel cases (default: one per core)")
+      ->check(whole_number(0));
 
   FaultsArguments faults;
   auto* faults_cli =
@@ -44,7 +46,8 @@ int main(int argc, char** argv) {
   faults_cli->add_option("case", faults.case_file, "case file (YAML) with a sequence block")->required();
   faults_cli->add_option("-o,--output", faults.output_directory, "output directory")->capture_default_str();
   faults_cli->add_option("--set", faults.settings, kSetHelp);
-  faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)");
+  faults_cli->add_option("-j,--jobs", faults.jobs, "parallel scenarios (default: one per core)")
+      ->check(whole_number(0));
   faults_cli->add_option("--report", faults.report, "also write a self-contained HTML report to this file");
   faults_cli->add_flag("-q,--quiet", faults.quiet, "print nothing on success");
 
@@ -53,8 +56,9 @@ int main(int argc, char** argv) {
   try {
     cli.parse(argc, argv);
   } catch (const CLI::ParseError& error) {
-    int code = cli.exit(error);
-    return code == 0 ? kExitOk : kExitInputError;
+    if (error.get_exit_code() == 0) return cli.exit(error);  // --help, --version
+    std::cerr << parse_error_text(cli, error, argc, argv);
+    return kExitInputError;
   }
   try {
     if (run_cli->parsed()) return run_command(run);

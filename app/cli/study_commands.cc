@@ -1,5 +1,7 @@
 #include "app/cli/study_commands.h"
 
+#include "app/cli/parse_errors.h"
+
 namespace linkrise::app {
 namespace {
 
@@ -8,7 +10,8 @@ template <class Arguments>
 void add_output_options(CLI::App* command, Arguments& arguments) {
   command->add_option("-o,--output", arguments.output_directory, "output directory")->capture_default_str();
   command->add_option("-j,--jobs", arguments.jobs,
-                      "parallel evaluations (default: one per core; results do not depend on it)");
+                      "parallel evaluations (default: one per core; results do not depend on it)")
+      ->check(whole_number(0));
   command->add_flag("-q,--quiet", arguments.quiet, "print nothing on success");
   command->add_option("--report", arguments.report, "also write a self-contained HTML report to this file");
 }
@@ -36,7 +39,9 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   auto add_population = [&shard_form](CLI::App* command, SpreadArguments& arguments) {
     auto* corners =
         command->add_flag("--corners", arguments.corners, "every combination of the tolerance bounds (2^k runs)");
-    command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples")->excludes(corners);
+    command->add_option("--samples", arguments.samples, "Monte Carlo: number of samples")
+        ->check(whole_number(1))
+        ->excludes(corners);
     command->add_option("--seed", arguments.seed, "Monte Carlo seed")->capture_default_str();
     command->add_option("--shard", arguments.shard, "run the k-th of n blocks of the samples, e.g. 2/4")
         ->check(shard_form);
@@ -66,7 +71,8 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   size_cli_->add_option("--tolerance", size_.tolerance, "relative tolerance of the boundaries")->capture_default_str();
   size_cli_->add_option("--set", size_.settings, kSetHelp);
   size_cli_->add_option("-o,--output", size_.output_directory, "output directory")->capture_default_str();
-  size_cli_->add_option("-j,--jobs", size_.jobs, "parallel evaluations (default: one per core)");
+  size_cli_->add_option("-j,--jobs", size_.jobs, "parallel evaluations (default: one per core)")
+      ->check(whole_number(0));
   size_cli_->add_flag("-q,--quiet", size_.quiet, "print nothing on success");
 }
 

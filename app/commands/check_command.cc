@@ -1,5 +1,10 @@
 #include "app/commands/check_command.h"
 
+#include <filesystem>
+#include <system_error>
+
+#include <fmt/format.h>
+
 #include "app/commands/command_steps.h"
 #include "app/regression/check.h"
 #include "app/regression/junit_xml.h"
@@ -9,6 +14,13 @@ namespace linkrise::app {
 namespace {
 
 CommandOutput check_output(const CheckArguments& arguments) {
+  for (const auto& path : arguments.paths) {
+    std::error_code ignored;
+    if (!std::filesystem::exists(path, ignored)) {
+      throw CommandFailure(kExitInputError, fmt::format("linkrise check: '{}' does not exist (give case files or "
+                                                        "directories of them, e.g. cases)", path));
+    }
+  }
   std::vector<std::string> files = find_case_files(arguments.paths);
   if (files.empty()) {
     throw CommandFailure(kExitInputError, "linkrise check: no case files found under the given paths");

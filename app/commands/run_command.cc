@@ -23,7 +23,7 @@ void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   if (arguments.sample) {
     netlist::SourceMark mark{"option --sample", 0, 0};
     run.sample = netlist::ParameterReader::read_text(*arguments.sample, mark, netlist::Dimension::time(),
-                                                     netlist::Bound::Any, "option --sample");
+                                                     netlist::Bound::Any, "the grid spacing");
     run.marks.sample = mark;
   }
   if (arguments.relative_tolerance) {
