@@ -54,9 +54,9 @@ CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, sol
   return evaluation;
 }
 
-CaseEvaluation evaluate_case_file(const std::string& path) {
+CaseEvaluation evaluate_case_file(const std::string& path, const std::vector<netlist::Override>& settings) {
   try {
-    return evaluate_case_document(netlist::CaseDocument::load(path));
+    return evaluate_case_document(netlist::CaseDocument::load(path).with(settings));
   } catch (const netlist::InputError& error) {
     CaseEvaluation evaluation;
     evaluation.status = CaseEvaluation::Status::InputError;

@@ -36,8 +36,8 @@ struct CaseEvaluation {
   double seconds = 0.0;  // wall time of the evaluation
 };
 
-/// Evaluates a case file.
-CaseEvaluation evaluate_case_file(const std::string& path);
+/// Evaluates a case file, with `settings` (--set) applied first.
+CaseEvaluation evaluate_case_file(const std::string& path, const std::vector<netlist::Override>& settings = {});
 /// Evaluates a case document (after its overrides). With `row_store`, the run records its step rows in that
 /// storage and gives it back afterwards (a study's worker reuses one).
 CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, solver::Waveform* row_store = nullptr);

@@ -10,7 +10,6 @@
 #include "app/regression/golden.h"
 #include "app/regression/junit_xml.h"
 #include "app/studies/study_pool.h"
-#include "netlist/case_document.h"
 #include "netlist/input_error.h"
 
 namespace linkrise::app {
@@ -39,21 +38,8 @@ std::vector<std::string> find_case_files(const std::vector<std::string>& paths) 
 
 namespace {
 
-// The case with the overrides, or the input error that stops it, as an evaluation.
-CaseEvaluation evaluate_with(const std::string& file, const std::vector<netlist::Override>& settings) {
-  if (settings.empty()) return evaluate_case_file(file);
-  try {
-    return evaluate_case_document(netlist::CaseDocument::load(file).with(settings));
-  } catch (const netlist::InputError& error) {
-    CaseEvaluation evaluation;
-    evaluation.status = CaseEvaluation::Status::InputError;
-    evaluation.message = error.what();
-    return evaluation;
-  }
-}
-
 void check_one(CaseCheck& check, const std::vector<netlist::Override>& settings) {
-  check.evaluation = evaluate_with(check.file, settings);
+  check.evaluation = evaluate_case_file(check.file, settings);
   fs::path golden_file = golden_path(check.file);
   if (fs::exists(golden_file)) {
     try {

@@ -74,6 +74,14 @@ std::vector<const models::Part*> parts_where(const solver::Circuit& circuit, con
   return found;
 }
 
+// A scenario of the case's own may set a parameter a design alternative's part lacks: on such a design the row is
+// not applicable, with the reason; on the case itself (or for a built-in row) it is bad input.
+void mark_unfit(Planned& p, const netlist::InputError& error, ScenarioFit fit) {
+  if (fit == ScenarioFit::MustFit || !p.from_case) throw error;
+  p.row.applicable = false;
+  p.row.note = fmt::format("the scenario does not fit this design: {}", error.problem());
+}
+
 // What a caught fault ends as: no_rise with a rise check, timeout without.
 netlist::SequenceOutcome caught_outcome(const netlist::SequenceSpec& sequence) {
   return sequence.rise_fraction ? netlist::SequenceOutcome::NoRise : netlist::SequenceOutcome::Timeout;
@@ -199,9 +207,7 @@ class Plan {
       try {
         p.document.apply(scenario.overrides);
       } catch (const netlist::InputError& error) {
-        if (fit_ == ScenarioFit::MustFit) throw;
-        // A scenario written for the case's own parts may name a parameter a variant's part does not have.
-        not_applicable(p, fmt::format("the scenario does not fit this design: {}", error.problem()));
+        mark_unfit(p, error, fit_);
         continue;
       }
       if (is_new || p.row.description == "defined by the case") {
@@ -339,10 +345,7 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
       p.spec = p.document.validate();
       solver::Circuit check(*p.spec);
     } catch (const netlist::InputError& error) {
-      if (fit == ScenarioFit::MustFit || !p.from_case) throw;
-      // A scenario written for the case's own parts may name a parameter a variant's part does not have.
-      p.row.applicable = false;
-      p.row.note = fmt::format("the scenario does not fit this design: {}", error.problem());
+      mark_unfit(p, error, fit);
       continue;
     }
     if (!p.spec->sequence) throw std::logic_error("scenario lost its sequence block");

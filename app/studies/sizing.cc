@@ -31,8 +31,7 @@ class MarginTable {
     const netlist::Case nominal = base_.validate();
     sizing_.title = nominal.title;
     mark_ = netlist::SourceMark{"option --part", 0, 0};
-    const netlist::Quantity written = require_quantity(nominal);
-    dimension_ = written.dimension;
+    dimension_ = written_quantity().dimension;
     if (!(dimension_ == netlist::Dimension::resistance())) {
       throw InputError(mark_, fmt::format("'{}' is not a resistance; linkrise sizes resistances", sizing_.path),
                        "name a resistance: a fixed resistor's resistance, a thermistor's resistance_at_25degC or "
@@ -43,11 +42,9 @@ class MarginTable {
       for (const auto& tolerance : nominal.tolerances) {
         if (tolerance.unresolved) throw *tolerance.unresolved;
       }
-      if (nominal.tolerances.size() > 12) {
-        throw InputError(nominal.tolerances.front().mark, "more than 12 tolerances make too many corners to size on",
-                         "size on the nominal point (--nominal) or shorten the tolerances block");
-      }
-      sizing_.corners = nominal.tolerances.empty() ? 0 : std::size_t{1} << nominal.tolerances.size();
+      SpreadPlan plan;
+      plan.corners = true;
+      sizing_.corners = nominal.tolerances.empty() ? 0 : population_size(nominal.tolerances, plan);
     }
   }
 
@@ -63,7 +60,7 @@ class MarginTable {
   }
 
  private:
-  netlist::Quantity require_quantity(const netlist::Case&) {
+  netlist::Quantity written_quantity() const {
     auto written = base_.quantity_at(sizing_.path, mark_);
     if (!written) {
       throw InputError(mark_, fmt::format("the case writes no value at '{}' to size", sizing_.path),
@@ -99,18 +96,14 @@ class MarginTable {
   // Folds one evaluation (point i: 0 nominal, then corner i − 1) into the worst margins.
   void take(SizingPoint& point, const CaseEvaluation& evaluation, std::size_t i) {
     const std::string where = i == 0 ? "nominal" : fmt::format("corner {}", i - 1);
+    const std::string label = fmt::format("{} = {} ({}): {}", sizing_.path,
+                                          netlist::format_si(point.value, sizing_.unit), where, evaluation.message);
     if (evaluation.status == CaseEvaluation::Status::SolverFailure) {
-      // Not an input error: listed, and the point's margins stay unjudged.
-      const std::string failure = fmt::format("{} = {} ({}): {}", sizing_.path, netlist::format_si(point.value, sizing_.unit), where,
-                      evaluation.message);
-      auto& list = sizing_.solver_failures;
-      if (std::find(list.begin(), list.end(), failure) == list.end()) list.push_back(failure);
+      sizing_.solver_failures.push_back(label);  // not an input error: listed, its margins stay unjudged
       return;
     }
     if (evaluation.status != CaseEvaluation::Status::Evaluated) {
-      throw InputError(mark_, fmt::format("{} = {} ({}): {}", sizing_.path, netlist::format_si(point.value, sizing_.unit),
-                                          where, evaluation.message),
-                       "narrow the range to values the case can run with");
+      throw InputError(mark_, label, "narrow the range to values the case can run with");
     }
     for (const auto& margin : evaluation.margins) {
       std::size_t c = constraint_index(margin.constraint);
@@ -148,20 +141,24 @@ double margin_of(const SizingPoint& point, std::size_t constraint) {
 
 // Brent's method on log x between two bracket values whose margins differ in sign.
 double boundary_between(MarginTable& table, std::size_t constraint, double low, double high, double tolerance) {
+  // The ends map back to the bracket values themselves, so the cache answers for them (exp(log x) may differ
+  // from x in the last bit, which would cost two more full evaluations per boundary).
   struct Context {
     MarginTable* table;
     std::size_t constraint;
-  } context{&table, constraint};
+    double low, high, log_low, log_high;
+  } context{&table, constraint, low, high, std::log(low), std::log(high)};
   gsl_function f;
   f.function = [](double log_value, void* data) {
     auto* c = static_cast<Context*>(data);
-    double m = margin_of(c->table->at(std::exp(log_value)), c->constraint);
+    const double value = log_value == c->log_low ? c->low : log_value == c->log_high ? c->high : std::exp(log_value);
+    double m = margin_of(c->table->at(value), c->constraint);
     return std::isnan(m) ? -1.0 : m;
   };
   f.params = &context;
   gsl_root_fsolver* solver = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-  gsl_root_fsolver_set(solver, &f, std::log(low), std::log(high));
-  double root = 0.5 * (std::log(low) + std::log(high));
+  gsl_root_fsolver_set(solver, &f, context.log_low, context.log_high);
+  double root = 0.5 * (context.log_low + context.log_high);
   for (int iteration = 0; iteration < 100; ++iteration) {
     if (gsl_root_fsolver_iterate(solver) != GSL_SUCCESS) break;
     root = gsl_root_fsolver_root(solver);
@@ -257,9 +254,6 @@ Sizing size_part(const SizingRequest& request) {
   return sizing;
 }
 
-}  // namespace linkrise::app
-
-namespace linkrise::app {
 namespace {
 std::string shown(const Sizing& sizing, double value) { return netlist::format_si(value, sizing.unit); }
 

@@ -91,8 +91,6 @@ std::size_t Spread::failed() const {
   }));
 }
 
-namespace {
-// Corners or samples of the whole study (all shards). Throws InputError for more corners than a study runs.
 std::size_t population_size(const std::vector<Tolerance>& tolerances, const SpreadPlan& plan) {
   if (!plan.corners) return plan.samples;
   std::size_t k = tolerances.size();
@@ -110,6 +108,7 @@ std::size_t population_size(const std::vector<Tolerance>& tolerances, const Spre
   return corners;
 }
 
+namespace {
 // Statistics of metric column c over the points that reached it.
 MetricSpread metric_spread(const StudyResults& results, std::size_t c) {
   MetricSpread s;

@@ -47,6 +47,10 @@ double spread_value(const std::vector<Tolerance>& tolerances, const SpreadPlan& 
 std::vector<netlist::Override> spread_overrides(const std::vector<Tolerance>& tolerances, const SpreadPlan& plan,
                                                 std::size_t index);
 
+/// Corners or samples of the whole study (all shards); warns above 256 corners. Throws InputError for more
+/// corners than a study runs.
+std::size_t population_size(const std::vector<Tolerance>& tolerances, const SpreadPlan& plan);
+
 /// Quantile of ascending `sorted` values at probability p (Hyndman & Fan type 7); NaN when empty.
 double quantile(const std::vector<double>& sorted, double p);
 
