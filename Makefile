@@ -4,6 +4,9 @@ JOBS ?= $(shell nproc)
 # Warnings are errors (one configuration for demo and test, so neither rebuilds the other's objects);
 # `make test WERROR=OFF` builds anyway.
 WERROR ?= ON
+# ccache, when installed, makes rebuilds and work trees of the same commit cheap (paths taken relative to the tree).
+LAUNCHER := $(if $(shell command -v ccache),-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
+export CCACHE_BASEDIR ?= $(CURDIR)
 
 .PHONY: all deps build demo test bench clean
 
@@ -13,7 +16,7 @@ deps:
 	@bash scripts/install-deps.sh
 
 build: deps
-	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release -DLINKRISE_WERROR=$(WERROR) > /dev/null
+	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release -DLINKRISE_WERROR=$(WERROR) $(LAUNCHER) > /dev/null
 	@cmake --build $(BUILD) -j $(JOBS)
 
 demo: build
