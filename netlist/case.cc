@@ -41,8 +41,8 @@ ParameterReader PartSpec::parameters() const {
 const std::vector<std::string>& case_sections() {
   static const std::vector<std::string> sections = {"title",    "ground",    "ambient",   "parts",
                                                     "events",   "run",       "sequence",  "limits",
-                                                    "scenarios", "variants", "tolerances", "expect",
-                                                    "notes"};
+                                                    "scenarios", "variants", "tolerances", "sizing",
+                                                    "expect",    "notes"};
   return sections;
 }
 
@@ -275,6 +275,7 @@ Case read_case(const Tree& root, const std::string& file) {
   result.scenarios = read_scenarios(root);
   result.variants = read_variants(root);
   result.tolerances = read_tolerances(root);
+  result.sizing = read_sizing(root, file);
   result.warnings = plausibility_warnings(result);
   return result;
 }

@@ -13,6 +13,7 @@
 #include "netlist/run_spec.h"
 #include "netlist/scenario_spec.h"
 #include "netlist/sequence_spec.h"
+#include "netlist/sizing_spec.h"
 #include "netlist/tolerance_spec.h"
 #include "netlist/tree.h"
 #include "netlist/variant_spec.h"
@@ -70,6 +71,7 @@ struct Case : CaseSettings {
   std::vector<ScenarioSpec> scenarios;    // fault and what-if scenarios (`linkrise faults`)
   std::vector<VariantSpec> variants;      // design alternatives (`linkrise compare`)
   std::vector<ToleranceSpec> tolerances;  // the tolerance spread (`linkrise spread`, `linkrise window`)
+  std::optional<SizingSpec> sizing;       // what `linkrise size` searches
 
   const PartSpec* find_part(const std::string& name) const;
   /// Names of the parts, in file order.

@@ -1,5 +1,7 @@
 #include "netlist/case_document.h"
 
+#include <algorithm>
+
 #include <fmt/format.h>
 
 namespace linkrise::netlist {
@@ -22,24 +24,66 @@ CaseDocument CaseDocument::with(const std::vector<Override>& changes) const {
   return changed;
 }
 
+namespace {
+// A swap of technology changes the part's kind and its whole parameter set, which a path override cannot
+// express (the old kind's parameters would remain); only name and nodes carry over.
+void swap_part_block(Tree& root, const std::string& part, Tree fresh, const SourceMark& mark) {
+  Tree& block = part_block(root, part, mark);
+  Tree name = *block.find("name");
+  const Tree* nodes = block.find("nodes");
+  fresh.entries.insert(fresh.entries.begin(), {"name", name});
+  fresh.key_marks.insert(fresh.key_marks.begin(), name.mark);
+  if (nodes != nullptr) {
+    fresh.entries.insert(fresh.entries.begin() + 1, {"nodes", *nodes});
+    fresh.key_marks.insert(fresh.key_marks.begin() + 1, nodes->mark);
+  }
+  block = std::move(fresh);
+}
+}  // namespace
+
 CaseDocument CaseDocument::with_variant(const VariantSpec& variant) const {
   CaseDocument changed = *this;
-  // A swap of technology changes the part's kind and its whole parameter set, which a path override cannot
-  // express (the old kind's parameters would remain); only name and nodes carry over.
   for (std::size_t i = 0; i < variant.replaced_parts.size(); ++i) {
-    Tree& block = part_block(changed.root_, variant.replaced_parts[i], variant.mark);
-    Tree fresh = variant.replacement_blocks_[i];
-    Tree name = *block.find("name");
-    const Tree* nodes = block.find("nodes");
-    fresh.entries.insert(fresh.entries.begin(), {"name", name});
-    fresh.key_marks.insert(fresh.key_marks.begin(), name.mark);
-    if (nodes != nullptr) {
-      fresh.entries.insert(fresh.entries.begin() + 1, {"nodes", *nodes});
-      fresh.key_marks.insert(fresh.key_marks.begin() + 1, nodes->mark);
-    }
-    block = std::move(fresh);
+    swap_part_block(changed.root_, variant.replaced_parts[i], variant.replacement_blocks_[i], variant.mark);
   }
   changed.apply(variant.overrides);
+  return changed;
+}
+
+CaseDocument CaseDocument::with_candidate(const std::string& part, const CandidateSpec& candidate) const {
+  CaseDocument changed = *this;
+  swap_part_block(changed.root_, part, candidate.part_, candidate.mark);
+  if (candidate.tolerances_.empty()) return changed;
+  Tree* tolerances = changed.root_.find("tolerances");
+  if (tolerances == nullptr || !tolerances->is_map()) {
+    changed.root_.set("tolerances", Tree{Tree::Kind::Map, "", candidate.mark, {}, {}, {}});
+    tolerances = changed.root_.find("tolerances");
+  }
+  // The candidate's own tolerances replace the case's for that part: one of the same parameter in place (a
+  // study's random slots follow the block's order), the others are dropped; new ones go at the end.
+  const std::string prefix = part + ".";
+  auto given = candidate.tolerances_;
+  std::vector<std::pair<std::string, Tree>> kept;
+  std::vector<SourceMark> kept_marks;
+  for (std::size_t i = 0; i < tolerances->entries.size(); ++i) {
+    auto& [path, entry] = tolerances->entries[i];
+    SourceMark mark = i < tolerances->key_marks.size() ? tolerances->key_marks[i] : tolerances->mark;
+    if (path.rfind(prefix, 0) == 0) {
+      auto same = std::find_if(given.begin(), given.end(), [&](const auto& g) { return prefix + g.first == path; });
+      if (same == given.end()) continue;
+      entry = same->second;
+      mark = same->second.mark;
+      given.erase(same);
+    }
+    kept.emplace_back(path, entry);
+    kept_marks.push_back(mark);
+  }
+  for (const auto& [parameter, entry] : given) {
+    kept.emplace_back(prefix + parameter, entry);
+    kept_marks.push_back(entry.mark);
+  }
+  tolerances->entries = std::move(kept);
+  tolerances->key_marks = std::move(kept_marks);
   return changed;
 }
 

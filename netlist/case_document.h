@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "netlist/case.h"
+#include "netlist/catalogue_spec.h"
 #include "netlist/overrides.h"
 #include "netlist/tree.h"
 #include "netlist/units.h"
@@ -34,6 +35,9 @@ class CaseDocument {
   CaseDocument with(const std::vector<Override>& changes) const;
   /// The document with a variant's replacements and overrides applied.
   CaseDocument with_variant(const VariantSpec& variant) const;
+  /// The document with `part` replaced by a catalogue candidate (name and nodes kept) and the candidate's
+  /// tolerances in place of the case's tolerances of that part.
+  CaseDocument with_candidate(const std::string& part, const CandidateSpec& candidate) const;
 
   /// The quantity written at `path`; std::nullopt when nothing is written there (a default applies).
   /// Throws InputError (at `mark`) for a path through an unknown part, or a value that is no quantity.

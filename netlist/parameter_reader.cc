@@ -41,7 +41,7 @@ std::string first_example(const Dimension& dimension) {
 }  // namespace
 
 bool is_percent_key(std::string_view key) {
-  return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin";
+  return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin" || key == "quantile";
 }
 
 bool is_percent_path(std::string_view path) {

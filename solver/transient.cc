@@ -445,6 +445,14 @@ void Driver::integrate(double t0) {
 
 // One CVODE step towards the next known-time command (or the end); returns the time the run stands at.
 double Driver::advance(double t) {
+  // After a root return that changed no mode, CVODE's own step already reaches past t; samples there may have
+  // scheduled a command inside it, which must be met from the dense output (a stop time behind CVODE's time is
+  // refused), as any command inside a step is.
+  double internal = t;
+  check(CVodeGetCurrentTime(handles_.memory, &internal), "CVodeGetCurrentTime", t);
+  if (internal > t) {
+    if (auto switched = visit_step(internal)) return *switched;
+  }
   double stop = pending_.empty() ? options_.duration : std::min(options_.duration, pending_.front().time);
   check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
   double reached = t;

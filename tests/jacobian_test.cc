@@ -17,6 +17,7 @@
 #include <string>
 #include <vector>
 
+#include "app/regression/check.h"
 #include "models/registry.h"
 #include "solver/equations.h"
 #include "tests/circuit_fixture.h"
@@ -173,10 +174,9 @@ Comparison compare_circuit(const Circuit& circuit, const std::string& label) {
 
 std::vector<fs::path> stored_cases() {
   std::vector<fs::path> files;
-  for (const auto& entry : fs::directory_iterator(fs::path(LINKRISE_SOURCE_DIR) / "cases")) {
-    // Golden results (<case>.golden.yaml) sit beside the cases and are not cases themselves.
-    if (entry.path().extension() == ".yaml" && !entry.path().string().ends_with(".golden.yaml"))
-      files.push_back(entry.path());
+  // The stored-case check's own rule: golden results and catalogues beside the cases are not cases themselves.
+  for (const auto& name : linkrise::app::find_case_files({(fs::path(LINKRISE_SOURCE_DIR) / "cases").string()})) {
+    files.push_back(name);
   }
   std::sort(files.begin(), files.end());
   return files;

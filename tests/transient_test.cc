@@ -9,6 +9,7 @@
 #include <string>
 
 #include "analysis/energy_audit.h"
+#include "app/evaluation/case_evaluation.h"
 #include "tests/circuit_fixture.h"
 
 namespace {
@@ -486,4 +487,18 @@ TEST(Transient, IllegalToleranceIsReportedByNameAndSundialsPrintsNothing) {
   EXPECT_EQ(result.outcome, Outcome::SolverFailure);
   EXPECT_NE(result.message.find("tolerances failed with CV_ILL_INPUT"), std::string::npos) << result.message;
   EXPECT_TRUE(printed.empty()) << printed;
+}
+
+// A root that changes no mode (the constant-power load's threshold crossed again while it is already on) leaves
+// CVODE's own step reaching past the returned root time; a BMS sample there scheduled the pre-charge contactor's
+// opening inside that step, and the driver once asked CVODE for a stop time behind its own time (CV_ILL_INPUT).
+// The stored sizing case with a doubled link and a slow resistor ran into it at t ≈ 2.94 s.
+TEST(Transient, ACommandDueInsideTheStepPastARootIsMet) {
+  const std::string file = std::string(LINKRISE_SOURCE_DIR) + "/cases/boat_104s_sizing.yaml";
+  for (const char* resistance : {"110.8 Ohm", "110.79 Ohm", "110.75 Ohm"}) {
+    const auto evaluation = linkrise::app::evaluate_case_file(
+        file, {{"r_pre.resistance", resistance, {}}, {"link.capacitance", "2.2 mF", {}}, {"run.duration", "4.04 s", {}}});
+    EXPECT_EQ(evaluation.status, linkrise::app::CaseEvaluation::Status::Evaluated) << resistance << ": " << evaluation.message;
+    EXPECT_EQ(evaluation.outcome, "timeout") << resistance;  // the doubled link times out twice at this resistance
+  }
 }

@@ -62,18 +62,32 @@ StudyCommands::StudyCommands(CLI::App& cli) {
       ->capture_default_str();
 
   size_cli_ = cli.add_subcommand(
-      "size", "find the window of resistance values that passes every limit, rating and outcome at every corner");
-  size_cli_->add_option("case", size_.case_file, "case file (YAML)")->required();
-  size_cli_->add_option("--part", size_.part, "the part to size, e.g. r_pre")->required();
-  size_cli_->add_option("--range", size_.range, "the values to search, e.g. 10Ohm..200Ohm")->required();
+      "size", "find the resistor: the window of values and the catalogue part that pass every limit, rating, "
+              "tolerance point and fault scenario, verified with the BMS window");
+  size_cli_->add_option("case", size_.case_file, "case file (YAML), usually with a sizing block")->required();
+  size_cli_->add_option("--part", size_.part, "the part to size, e.g. r_pre (default: the sizing block's)");
+  size_cli_->add_option("--range", size_.range, "the values to search, e.g. 10Ohm..200Ohm (default: the block's)");
   size_cli_->add_option("--parameter", size_.parameter, "the resistance parameter (default resistance)");
-  size_cli_->add_flag("--nominal", size_.nominal, "judge the nominal point only, without the tolerance corners");
-  size_cli_->add_option("--tolerance", size_.tolerance, "relative tolerance of the boundaries")->capture_default_str();
+  auto* nominal = size_cli_->add_flag("--nominal", size_.nominal, "judge the nominal point only");
+  auto* corners = size_cli_->add_flag("--corners", size_.corners, "judge the nominal point and every tolerance corner")
+                      ->excludes(nominal);
+  size_cli_->add_option("--samples", size_.samples, "Monte Carlo: judge N samples at a quantile")
+      ->check(whole_number(1))
+      ->excludes(nominal)
+      ->excludes(corners);
+  size_cli_->add_option("--seed", size_.seed, "Monte Carlo seed (default 1)")->check(whole_number(1));
+  size_cli_->add_option("--quantile", size_.quantile, "the share of samples that must pass, e.g. 99%");
+  size_cli_->add_flag("--no-faults", size_.no_faults, "leave the fault scenarios out of the constraints");
+  size_cli_->add_option("--attempts", size_.attempts, "attempts each fault scenario runs with (its retries)")
+      ->check(whole_number(1));
+  size_cli_->add_option("--faults-at", size_.faults_at, "run the fault scenarios at the nominal point or the whole spread")
+      ->check(CLI::IsMember({"nominal", "spread"}));
+  size_cli_->add_option("--tolerance", size_.tolerance, "relative tolerance of the boundaries (default 0.5%)");
+  size_cli_->add_option("--catalogue", size_.catalogue, "candidate parts (YAML) to rank over the same spread and faults");
+  size_cli_->add_flag("--no-verify", size_.no_verify, "skip the fault matrix and BMS window of the chosen design");
+  size_cli_->add_option("--margin", size_.margin, "margin of the verified BMS window, e.g. 20%")->capture_default_str();
   size_cli_->add_option("--set", size_.settings, kSetHelp);
-  size_cli_->add_option("-o,--output", size_.output_directory, "output directory")->capture_default_str();
-  size_cli_->add_option("-j,--jobs", size_.jobs, "parallel evaluations (default: one per core)")
-      ->check(whole_number(0));
-  size_cli_->add_flag("-q,--quiet", size_.quiet, "print nothing on success");
+  add_output_options(size_cli_, size_);
 }
 
 std::optional<int> StudyCommands::dispatch() const {

@@ -17,6 +17,14 @@ const char* status_word(CaseEvaluation::Status status) {
   return "unknown";
 }
 
+std::string constraint_name(const analysis::JudgedLimit& limit) {
+  return limit.metric + " " + analysis::bound_word(limit.bound) + (limit.rated_part.empty() ? "" : " (rating)");
+}
+
+double constraint_margin(const analysis::JudgedLimit& limit) {
+  return limit.judged ? limit.relative_margin - limit.required_margin : std::nan("");
+}
+
 CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, solver::Waveform* row_store) {
   auto started = std::chrono::steady_clock::now();
   CaseEvaluation evaluation;
@@ -33,8 +41,7 @@ CaseEvaluation evaluate_case_document(const netlist::CaseDocument& document, sol
         evaluation.metrics.push_back(MetricValue{metric.name, metric.value, metric.unit});
       }
       for (const auto& limit : run.evaluation().limits) {
-        evaluation.margins.push_back({limit.metric + " " + analysis::bound_word(limit.bound),
-                                      limit.judged ? limit.relative_margin - limit.required_margin : std::nan("")});
+        evaluation.margins.push_back({constraint_name(limit), constraint_margin(limit)});
       }
       if (run.report()) {
         evaluation.margins.push_back(

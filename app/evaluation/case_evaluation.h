@@ -21,9 +21,15 @@ struct MetricValue {
 /// One judged bound of an evaluation: its margin beyond the required one, as a fraction of the bound (>= 0
 /// passes), or the sequence outcome as a bound of its own (+1 when the expected outcome was reached, −1 not).
 struct LimitMargin {
-  std::string constraint;  // "<metric> max", "<metric> min" or "sequence outcome"
+  std::string constraint;  // constraint_name(), or "sequence outcome"
   double margin = 0.0;     // NaN when the metric was not reached (not judged)
 };
+
+/// The name of a judged bound as the studies show it: "<metric> max" or "<metric> min" for the case's limits,
+/// "<metric> max (rating)" for a part's rating, so a limit and a rating on one metric stay apart.
+std::string constraint_name(const analysis::JudgedLimit& limit);
+/// Its margin beyond the required one, as a fraction of the bound; NaN when not judged.
+double constraint_margin(const analysis::JudgedLimit& limit);
 
 struct CaseEvaluation {
   enum class Status { Evaluated, InputError, SolverFailure };

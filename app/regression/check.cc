@@ -20,7 +20,7 @@ std::vector<std::string> find_case_files(const std::vector<std::string>& paths) 
   std::vector<std::string> files;
   auto is_case = [](const fs::path& path) {
     std::string name = path.filename().string();
-    return path.extension() == ".yaml" && !name.ends_with(".golden.yaml");
+    return path.extension() == ".yaml" && !name.ends_with(".golden.yaml") && !name.ends_with(".catalogue.yaml");
   };
   for (const auto& path : paths) {
     if (fs::is_directory(path)) {

@@ -794,6 +794,7 @@ std::string render_line_plot(const PlotSpec& spec) {
   open_svg(out, id, width, height, spec.title);
   clip_definition(out, id, area);
   plot_background(out, area);
+  shaded_bands(out, area, x_map, spec.bands);
   gridlines(out, area, x_axis, x_map, y_axis, y_map, true);
   clipped_content(out, id, spec, area, x_map, y_map);
   reference_labels(out, spec, area, y_map);

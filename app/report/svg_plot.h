@@ -71,13 +71,13 @@ struct Marker {
   std::string label;
 };
 
+
 /// Shaded x interval, e.g. a recommended resistor window.
 struct Band {
   double low = 0.0;
   double high = 0.0;
   std::string label;
 };
-
 struct PlotSpec {
   /// Prefix for element ids (clip path, title); must be unique within one
   /// HTML page. Empty derives one from a hash of the title.
@@ -92,6 +92,8 @@ struct PlotSpec {
   std::vector<Series> series;
   std::vector<ReferenceLine> reference_lines;
   std::vector<Marker> markers;
+  /// Shaded x intervals behind the series, e.g. a feasible window of values.
+  std::vector<Band> bands;
   /// Zoom; absent means the data extent (x) or rounded data extent (y).
   std::optional<Range> x_range;
   std::optional<Range> y_range;

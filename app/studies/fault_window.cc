@@ -82,22 +82,27 @@ FaultWindow recommend_window(const Spread& spread, double margin, double sample_
 FaultWindow fault_window(const std::string& case_file, const std::vector<netlist::Override>& settings,
                          const SpreadPlan& plan, double margin, int jobs, Spread* spread_out,
                          const std::string& progress_label) {
+  return fault_window(netlist::CaseDocument::load(case_file).with(settings), plan, margin, jobs, spread_out,
+                      progress_label);
+}
+
+FaultWindow fault_window(const netlist::CaseDocument& base, const SpreadPlan& plan, double margin, int jobs,
+                         Spread* spread_out, const std::string& progress_label) {
+  const std::string& case_file = base.file();
   if (!(margin >= 0.0 && margin < 1.0)) {
     throw InputError(option_mark("--margin", 1), fmt::format("a margin of {} is outside 0 … 100 %", margin),
                      "write e.g. '--margin 20%'");
   }
-  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
   const netlist::Case nominal = base.validate();
   const auto& sequence = nominal.sequence;
   if (!sequence) {
     throw InputError(netlist::SourceMark{case_file, 1, 1}, "a fault window needs the case's 'sequence:' block",
                      "add a sequence block (see docs/sequence-and-limits.md)");
   }
-  std::vector<netlist::Override> wide = settings;
   netlist::SourceMark mark{"fault window (opened wide for the spread)", 0, 0};
-  wide.push_back(netlist::Override{"sequence.minimum_time", "0 s", mark});
-  wide.push_back(netlist::Override{"sequence.timeout", kWideTimeout, mark});
-  Spread spread = run_spread(case_file, wide, plan, jobs, progress_label);
+  const std::vector<netlist::Override> wide{{"sequence.minimum_time", "0 s", mark},
+                                            {"sequence.timeout", kWideTimeout, mark}};
+  Spread spread = run_spread(base.with(wide), plan, jobs, progress_label);
 
   FaultWindow window = recommend_window(spread, margin, sequence->sample_period);
   window.case_minimum_time = sequence->minimum_time;

@@ -54,6 +54,9 @@ std::vector<netlist::Override> window_overrides(double minimum_time, double time
 FaultWindow fault_window(const std::string& case_file, const std::vector<netlist::Override>& settings,
                          const SpreadPlan& plan, double margin, int jobs, Spread* spread_out = nullptr,
                          const std::string& progress_label = "");
+/// The same on a case document (a design alternative, overrides applied).
+FaultWindow fault_window(const netlist::CaseDocument& base, const SpreadPlan& plan, double margin, int jobs,
+                         Spread* spread_out = nullptr, const std::string& progress_label = "");
 
 std::string window_text(const FaultWindow& window, const Spread& spread);
 /// window.json as text.

@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "analysis/metrics.h"
+#include "app/evaluation/case_evaluation.h"
 #include "app/evaluation/case_run.h"
 #include "app/output/decimation.h"
 #include "app/output/json_fields.h"
@@ -154,6 +155,10 @@ class Plan {
         not_applicable(p, "no capacitor is connected across the sensed link nodes");
         continue;
       }
+      if (expected == netlist::SequenceOutcome::TooFast && !(sequence_.minimum_time > 0.0)) {
+        not_applicable(p, "the too-fast check is off (sequence.minimum_time is 0 s), so nothing can catch it");
+        continue;
+      }
       for (const auto& path : paths) p.document.scale(path, factor, at_);
     }
   }
@@ -275,6 +280,10 @@ void run_row(Planned& p) {
   row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
   row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
   for (const auto& limit : evaluation.limits) {
+    if (limit.rated_part.empty()) continue;
+    row.rating_margins.emplace_back(constraint_name(limit), constraint_margin(limit));
+  }
+  for (const auto& limit : evaluation.limits) {
     if (limit.rated_part != sequence.resistor) continue;  // only the resistor's own ratings
     bool temperature = limit.metric == sequence.resistor + ".peak_temperature";
     bool energy = limit.metric == sequence.resistor + ".energy";
@@ -318,7 +327,27 @@ DetectionMatrix detection_matrix(const std::string& case_file, int jobs) {
 
 // Also used by `linkrise window` (app/studies/fault_window.cc), which re-runs the scenarios on a case document
 // that carries the recommended minimum time and timeout as overrides.
-DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, ScenarioFit fit) {
+namespace {
+// Drops the rows a selection leaves out (the nominal row stays); a name no row has is bad input.
+void select_rows(std::vector<Planned>& planned, const ScenarioSelection& selection) {
+  if (selection.all) return;
+  std::vector<std::string> known;
+  for (const auto& p : planned) known.push_back(p.row.scenario);
+  for (const auto& name : selection.names) {
+    if (std::find(known.begin(), known.end(), name) == known.end()) {
+      throw netlist::InputError(selection.mark, fmt::format("there is no fault scenario '{}'", name),
+                                netlist::did_you_mean(name, known, "name a built-in scenario or one of the case's"));
+    }
+  }
+  std::erase_if(planned, [&](const Planned& p) {
+    return p.row.scenario != "nominal" &&
+           std::find(selection.names.begin(), selection.names.end(), p.row.scenario) == selection.names.end();
+  });
+}
+}  // namespace
+
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, ScenarioFit fit,
+                                 const ScenarioSelection& selection) {
   const std::string case_file = document.file();
   netlist::Case nominal = document.validate();
   const auto& sequence = nominal.sequence;
@@ -338,6 +367,7 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
   }
   const solver::Circuit circuit(nominal);
   std::vector<Planned> planned = Plan(document, nominal, circuit, fit).built_in_and_case_scenarios();
+  select_rows(planned, selection);
   // Every scenario is validated before any is simulated, so bad input costs no run and writes nothing.
   for (auto& p : planned) {
     if (!p.row.applicable) continue;

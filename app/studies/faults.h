@@ -23,6 +23,7 @@
 #include <limits>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "netlist/sequence_spec.h"
@@ -51,6 +52,9 @@ struct DetectionRow {
   double energy_rating = std::numeric_limits<double>::quiet_NaN();
   bool resistor_survived = true;
   bool pass = true;
+  /// Every part rating judged in the scenario's run (retries included): "<part>.<metric> max" and its relative
+  /// margin beyond the required one (NaN when not judged). The design search reads these.
+  std::vector<std::pair<std::string, double>> rating_margins;
   // For the HTML report only (app/report/faults_report.h): the sensed link voltage over the scenario's run, reduced
   // to a few samples per drawing column (at most 2400 points), so a matrix stays small in memory.
   std::vector<double> link_time;     // s
@@ -87,8 +91,16 @@ DetectionMatrix detection_matrix(const std::string& case_file, int jobs = 1);
 /// alternative (a compare variant, a sizing candidate of another kind) a scenario that overrides a parameter the
 /// new part lacks becomes a not-applicable row with the reason.
 enum class ScenarioFit { MustFit, MayNotFit };
+/// Which scenarios a matrix runs: every one, or only those named (plus the nominal row). A name the matrix does
+/// not have is bad input at `mark`.
+struct ScenarioSelection {
+  bool all = true;
+  std::vector<std::string> names;
+  netlist::SourceMark mark;
+};
 /// The same on a case document (e.g. with overrides applied).
-DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs = 1, ScenarioFit fit = ScenarioFit::MustFit);
+DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs = 1, ScenarioFit fit = ScenarioFit::MustFit,
+                                 const ScenarioSelection& selection = {});
 
 /// Why an applicable row failed, one phrase per reason (empty for a passing row).
 std::vector<std::string> failure_reasons(const DetectionRow& row);

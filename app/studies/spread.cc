@@ -140,10 +140,15 @@ MetricSpread metric_spread(const StudyResults& results, std::size_t c) {
 
 Spread run_spread(const std::string& case_file, const std::vector<netlist::Override>& settings,
                   const SpreadPlan& plan, int jobs, const std::string& progress_label) {
+  return run_spread(netlist::CaseDocument::load(case_file).with(settings), plan, jobs, progress_label);
+}
+
+Spread run_spread(const netlist::CaseDocument& base, const SpreadPlan& plan, int jobs,
+                  const std::string& progress_label) {
+  const std::string& case_file = base.file();
   Spread spread;
   spread.case_file = case_file;
   spread.plan = plan;
-  const netlist::CaseDocument base = netlist::CaseDocument::load(case_file).with(settings);
   const netlist::Case nominal = base.validate();
   spread.title = nominal.title;
   spread.tolerances = nominal.tolerances;

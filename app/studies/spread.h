@@ -80,6 +80,9 @@ struct Spread {
 /// corners, a sample out of a parameter's range).
 Spread run_spread(const std::string& case_file, const std::vector<netlist::Override>& settings,
                   const SpreadPlan& plan, int jobs, const std::string& progress_label = "");
+/// The same on a case document (a design alternative, overrides applied).
+Spread run_spread(const netlist::CaseDocument& base, const SpreadPlan& plan, int jobs,
+                  const std::string& progress_label = "");
 
 std::string spread_text(const Spread& spread, const std::vector<std::string>& metrics);
 std::string spread_csv(const Spread& spread);
