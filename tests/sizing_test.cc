@@ -242,5 +242,25 @@ TEST(Sizing, TheSizingBlockIsValidated) {
   EXPECT_EQ(spec.sizing->catalogue, "/cases/parts.catalogue.yaml");
 }
 
+
+// A catalogue is read like a case: a bad entry is an input error at its own file, line and column.
+TEST(Sizing, ABadCatalogueIsAnInputErrorAtItsPlace) {
+  const std::string catalogue = write_case("sizing_bad.catalogue.yaml",
+                                           "candidates:\n  - name: r56\n    part: {resistance: 56 Ohm}\n");
+  SizingRequest request = rc_request("sizing_bad_catalogue.yaml", "  r_pre.peak_power: {max: 200 W}\n");
+  request.catalogue = catalogue;
+  try {
+    size_part(request);
+    FAIL() << "a candidate without a kind was accepted";
+  } catch (const netlist::InputError& error) {
+    EXPECT_NE(std::string(error.what()).find("sizing_bad.catalogue.yaml:3:11"), std::string::npos) << error.what();
+    EXPECT_NE(std::string(error.what()).find("needs a 'kind'"), std::string::npos) << error.what();
+  }
+  request.catalogue = write_case("sizing_twice.catalogue.yaml",
+                                 "candidates:\n  - {name: a, part: {kind: resistor, resistance: 1 Ohm}}\n"
+                                 "  - {name: a, part: {kind: resistor, resistance: 2 Ohm}}\n");
+  EXPECT_THROW(size_part(request), netlist::InputError);
+}
+
 }  // namespace
 }  // namespace linkrise::app
