@@ -262,5 +262,32 @@ TEST(Sizing, ABadCatalogueIsAnInputErrorAtItsPlace) {
   EXPECT_THROW(size_part(request), netlist::InputError);
 }
 
+
+// The stored boat case (cases/boat_104s_sizing.yaml) at 50 % state of charge, where its cells' open-circuit voltage
+// is a row of the table (3.70 V, so 384.8 V for 104 cells): the shorted link with the BMS's retry bounds the
+// resistance from below. Each of the 2 attempts drives I = V/(R + Rs) through R from the second contact's touch
+// (k_neg, 12 ms) to the pre-charge contact parting (the rise check's sample at 40 ms plus its 3 ms opening delay),
+// t = 31 ms; Rs = 104 × 1.1 mOhm cells + 40 mOhm pre-charge and 0.3 mOhm negative contacts + 3 mOhm cable + 1 mOhm
+// short. The heat 2·V²·R·t/(R + Rs)² meets the 400 J pulse-energy rating at the larger root (Ohm's and Joule's
+// laws, docs/references.md [R-Ohm-Joule]).
+TEST(Sizing, TheStoredBoatCaseLowerEndIsItsShortedLinkRetryBound) {
+  SizingRequest request;
+  request.case_file = std::string(LINKRISE_SOURCE_DIR) + "/cases/boat_104s_sizing.yaml";
+  request.settings = {{"pack.initial_soc", "50 %", {}}};
+  request.spread = netlist::SizingSpread::Nominal;
+  request.catalogue = "";
+  request.verify = false;
+  request.tolerance = 0.001;
+  request.jobs = 2;
+  Sizing sizing = size_part(request);
+  ASSERT_TRUE(sizing.lower_binding) << sizing_text(sizing);
+  EXPECT_EQ(sizing.boundaries[*sizing.lower_binding].where, "scenario shorted_link");
+  const double v = 104 * 3.70, t = 0.031, series = 104 * 1.1e-3 + 40e-3 + 0.3e-3 + 3e-3 + 1e-3;
+  // 2·v²·t·R = 400·(R + Rs)²: 400 R² + (800 Rs − 2 v² t) R + 400 Rs² = 0.
+  const double b = 800 * series - 2 * v * v * t, c = 400 * series * series;
+  const double bound = (-b + std::sqrt(b * b - 4 * 400 * c)) / (2 * 400);
+  EXPECT_NEAR(sizing.lower, bound, 0.003 * bound) << sizing_text(sizing);
+}
+
 }  // namespace
 }  // namespace linkrise::app
