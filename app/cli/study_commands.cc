@@ -23,6 +23,7 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   compare_cli_->add_option("case", compare_.case_file, "case file (YAML) with a variants block")->required();
   compare_cli_->add_option("--set", compare_.settings, kSetHelp);
   compare_cli_->add_flag("--faults", compare_.faults, "also run the fault scenarios for every variant");
+  compare_cli_->add_flag("--all", compare_.all, "show every metric in the table (default: the headline metrics)");
   add_output_options(compare_cli_, compare_);
 
   sweep_cli_ = cli.add_subcommand("sweep", "vary one or two parameters over lists or ranges");

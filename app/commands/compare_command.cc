@@ -19,7 +19,7 @@ int compare_command(const CompareArguments& arguments) {
     if (arguments.faults) output.files.push_back({"compare_faults.csv", comparison_faults_csv(comparison)});
     output.report_file = arguments.report;
     if (!arguments.report.empty()) output.report = compare_report_html(comparison);
-    output.text = comparison_text(comparison);
+    output.text = comparison_text(comparison, arguments.all);
     const bool solver_failure = comparison.results.any_solver_failure() ||
                                 std::any_of(comparison.matrices.begin(), comparison.matrices.end(),
                                             [](const DetectionMatrix& matrix) { return matrix.solver_failure(); });

@@ -14,6 +14,7 @@ struct CompareArguments {
   std::string report;  // optional HTML report file
   bool quiet = false;
   bool faults = false;  // also run the fault scenarios per variant
+  bool all = false;     // every metric in the terminal table, not only the headline ones
 };
 
 int compare_command(const CompareArguments& arguments);

@@ -27,13 +27,13 @@ std::vector<std::size_t> VariantComparison::best(std::size_t column) const {
   auto value = [&](std::size_t i) { return results.points[i].values[column]; };
   double best_value = value(reached.front());
   for (std::size_t i : reached) best_value = larger ? std::max(best_value, value(i)) : std::min(best_value, value(i));
-  // Ties within 1e-9 of the row's largest magnitude (far below any engineering difference) share the mark.
-  double scale = 0.0;
-  for (std::size_t i : reached) scale = std::max(scale, std::fabs(value(i)));
-  double band = 1e-9 * scale;
+  // Values that print the same (the terminal's and the report's precision) tie and share the mark: a difference
+  // nobody can read is no reason to prefer a variant.
+  const std::string& unit = results.columns.at(column).unit;
+  const std::string best_text = analysis::format_metric(best_value, unit);
   std::vector<std::size_t> best;
   for (std::size_t i : reached) {
-    if (std::fabs(value(i) - best_value) <= band) best.push_back(i);
+    if (analysis::format_metric(value(i), unit) == best_text) best.push_back(i);
   }
   if (best.size() == reached.size()) return {};
   return best;
@@ -64,6 +64,7 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
     comparison.notes.push_back(variant.note);
   }
   comparison.results = run_study(documents.size(), [&](std::size_t i) { return documents[i]; }, jobs);
+  comparison.headline = headline_metrics(nominal, comparison.results.columns);
   reject_input_errors(comparison.results, case_file,
                       [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
   if (faults) {
@@ -105,13 +106,19 @@ std::string faults_table(const VariantComparison& comparison) {
 }
 }  // namespace
 
-std::string comparison_text(const VariantComparison& comparison) {
+std::string comparison_text(const VariantComparison& comparison, bool all_metrics) {
   std::string out = fmt::format("linkrise compare — {}\n", comparison.title);
   std::vector<std::string> header{"metric"};
   for (const auto& name : comparison.names) header.push_back(name);
   std::vector<std::vector<std::string>> rows;
   const StudyResults& results = comparison.results;
+  std::size_t hidden = 0;
   for (std::size_t c = 0; c < results.columns.size(); ++c) {
+    const auto& headline = comparison.headline;
+    if (!all_metrics && std::find(headline.begin(), headline.end(), results.columns[c].name) == headline.end()) {
+      ++hidden;
+      continue;
+    }
     std::vector<std::string> row{results.columns[c].name};
     auto best = comparison.best(c);
     for (std::size_t i = 0; i < results.points.size(); ++i) {
@@ -130,7 +137,8 @@ std::string comparison_text(const VariantComparison& comparison) {
   rows.push_back(verdict);
   out += text_table(header, rows);
   out += "  * best in the row: smaller is better, except minimum_* metrics and sequence.stall_equilibrium (larger is\n"
-         "    better); rows where every reached value ties are not marked; '-' is not reached\n";
+         "    better); values that print the same tie, and a row where all tie is not marked; '-' is not reached\n";
+  if (hidden > 0) out += fmt::format("  {} more metrics in compare.csv and compare.json (--all shows them here)\n", hidden);
   for (std::size_t i = 0; i < results.points.size(); ++i) {
     if (!results.points[i].evaluated()) {
       out += fmt::format("  {}: {}\n", comparison.names[i], results.points[i].message);

@@ -10,7 +10,8 @@
 //
 // Output: a table with one row per metric and one column per variant (nominal first), the outcome and verdict
 // rows, and the best value per row marked '*' (smaller is better except for minimum_* metrics and the stall
-// equilibrium, see larger_is_better; a row where every value ties is not marked). Writes compare.csv and
+// equilibrium, see larger_is_better; values that print the same tie, and a row where every value ties is not
+// marked). The terminal shows the headline metrics unless asked for all; the files always hold every metric. Writes compare.csv and
 // compare.json. Exit 0 when every variant was evaluated, 2 for bad input, 3 when the solver failed somewhere.
 //
 // With --faults every variant also runs the fault scenarios of `linkrise faults` (app/studies/faults.h): a second
@@ -33,6 +34,7 @@ struct VariantComparison {
   std::vector<std::string> notes;  // the variants' notes, in the same order (empty for the nominal case)
   StudyResults results;            // one point per name
   std::vector<DetectionMatrix> matrices;  // with faults: one per name, in the same order; else empty
+  std::vector<std::string> headline;      // the metrics the terminal table shows by default (headline_metrics)
   bool faults_failed() const;
   /// Indices of the best entries of a metric column (empty when all tie or fewer than two are reached).
   std::vector<std::size_t> best(std::size_t column) const;
@@ -43,7 +45,9 @@ struct VariantComparison {
 VariantComparison compare_variants(const std::string& case_file, const std::vector<netlist::Override>& settings, int jobs,
                                    bool faults = false);
 
-std::string comparison_text(const VariantComparison& comparison);
+/// The terminal table: the headline metrics (the case's limits, the sequence resistor's temperature and energy),
+/// or every metric with `all_metrics`.
+std::string comparison_text(const VariantComparison& comparison, bool all_metrics = false);
 std::string comparison_csv(const VariantComparison& comparison);
 /// compare_faults.csv: one line per variant and scenario.
 std::string comparison_faults_csv(const VariantComparison& comparison);
