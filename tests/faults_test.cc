@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -139,4 +140,26 @@ TEST(Faults, CommandExitCodesAndFiles) {
   EXPECT_EQ(WEXITSTATUS(bad), 1);
   int run_bad = std::system((binary + " run -q -o " + out.string() + " " + stored("sequence_stall.yaml")).c_str());
   EXPECT_EQ(WEXITSTATUS(run_bad), 0);  // the stall is the expected outcome of that case
+}
+
+// A row's outcome, attempt and detection time belong to one attempt: under a tight timeout a doubled link times
+// out on attempt 1 and closes on attempt 2 (the link kept its charge), so the row says closed on attempt 2 with no
+// fault time, and names the earlier timeout; a short is caught by the rise check on attempt 1 at its sample
+// (25 ms after the attempt's start, docs/sequence-and-limits.md).
+TEST(Faults, ARowsOutcomeAttemptAndTimeBelongTogether) {
+  auto document = linkrise::netlist::CaseDocument::load(stored("study_precharge_window.yaml"))
+                      .with({{"sequence.timeout", "165 ms", {}}, {"sequence.minimum_time", "20 ms", {}}});
+  DetectionMatrix matrix = linkrise::app::detection_matrix(document, 2);
+  const auto& oversize = row(matrix, "oversize_capacitance");
+  EXPECT_EQ(oversize.actual_word(), "closed");
+  EXPECT_EQ(oversize.attempt, 2);
+  EXPECT_EQ(oversize.attempts, 2);
+  EXPECT_TRUE(std::isnan(oversize.detection_time));
+  EXPECT_TRUE(contains(oversize.note, "attempt 1 ended timeout at 165 ms")) << oversize.note;
+  const auto& shorted = row(matrix, "shorted_link");
+  EXPECT_EQ(shorted.actual_word(), "no_rise");
+  EXPECT_EQ(shorted.attempt, 1);
+  EXPECT_NEAR(shorted.detection_time, 0.025, 1e-9);
+  const std::string text = linkrise::app::matrix_text(matrix);
+  EXPECT_TRUE(contains(text, "2/2")) << text;
 }

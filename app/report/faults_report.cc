@@ -98,13 +98,13 @@ void add_matrix_table(HtmlReport& report, const DetectionMatrix& matrix) {
   ReportTable table;
   table.id = "matrix";
   table.caption = "Outcome of every scenario against its expectation";
-  table.columns = {"scenario", "expected", "actual", "attempts", "first fault at",
+  table.columns = {"scenario", "expected", "actual", "attempt", "fault at",
                    "peak temperature / rating", "energy / rating", "result"};
   // Only the short columns are numeric (kept on one line); value / rating pairs may wrap to fit the page.
   table.numeric_columns = {3, 4};
   for (const auto& row : matrix.rows) {
     table.rows.push_back({row.scenario, row.expected_word(), row.applicable ? row.actual_word() : "-",
-                          row.applicable ? fmt::format("{}", row.attempts) : "-",
+                          row.applicable ? fmt::format("{} of {}", row.attempt, row.attempts) : "-",
                           display_metric(row.detection_time, "s"),
                           against(row.peak_temperature, row.temperature_rating, "degC"),
                           against(row.energy, row.energy_rating, "J"), result_word(row)});

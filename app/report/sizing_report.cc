@@ -107,12 +107,12 @@ void add_matrix(HtmlReport& report, const DetectionMatrix& matrix, const std::st
   ReportTable table;
   table.id = id;
   table.caption = caption;
-  table.columns = {"scenario", "expected", "actual", "attempts", "first fault at", "result"};
+  table.columns = {"scenario", "expected", "actual", "attempt", "fault at", "result"};
   table.numeric_columns = {3, 4};
   for (const auto& row : matrix.rows) {
     const std::string result = !row.applicable ? "not applicable" : row.pass ? "pass" : "FAIL";
     table.rows.push_back({row.scenario, row.expected_word(), row.actual_word(),
-                          row.applicable ? std::to_string(row.attempts) : "-",
+                          row.applicable ? fmt::format("{} of {}", row.attempt, row.attempts) : "-",
                           std::isnan(row.detection_time) ? "-" : display_seconds(row.detection_time), result});
     table.row_tones.push_back(!row.applicable ? Tone::Plain : row.pass ? Tone::Pass : Tone::Fail);
   }

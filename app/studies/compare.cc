@@ -148,11 +148,13 @@ std::string comparison_text(const VariantComparison& comparison, bool all_metric
 }
 
 std::string comparison_faults_csv(const VariantComparison& comparison) {
-  std::string out = "variant,scenario,expected,actual,attempts,detection_time [s],energy [J],peak_temperature [degC],pass\n";
+  std::string out =
+      "variant,scenario,expected,actual,attempt [1],attempts [1],detection_time [s],energy [J],peak_temperature [degC],"
+      "pass\n";
   for (std::size_t i = 0; i < comparison.matrices.size(); ++i) {
     for (const auto& row : comparison.matrices[i].rows) {
-      out += fmt::format("{},{},{},{},{},{},{},{},{}\n", csv_text(comparison.names[i]), csv_text(row.scenario),
-                         row.expected_word(), row.actual_word(), row.attempts, csv_number(row.detection_time),
+      out += fmt::format("{},{},{},{},{},{},{},{},{},{}\n", csv_text(comparison.names[i]), csv_text(row.scenario),
+                         row.expected_word(), row.actual_word(), row.attempt, row.attempts, csv_number(row.detection_time),
                          csv_number(row.energy), csv_number(row.peak_temperature), row.pass ? "yes" : "no");
     }
   }

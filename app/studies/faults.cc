@@ -258,6 +258,29 @@ netlist::SequenceOutcome outcome_from_stall(const analysis::StallDiagnostic& sta
   return SequenceOutcome::Timeout;
 }
 
+// The row shows the run's outcome with the first attempt that ended in it, and that attempt's fault time, so
+// outcome, time and attempt always belong together; earlier attempts that ended otherwise (a timeout before a
+// retry closed) are named in the note.
+void take_attempt(DetectionRow& row, const solver::SequenceReport& report) {
+  row.attempts = report.attempts;
+  row.actual = report.outcome;
+  row.attempt = report.attempts;
+  std::string earlier;
+  for (const auto& attempt : report.history) {
+    const bool last = attempt.number == report.attempts;
+    if (attempt.fault ? *attempt.fault == report.outcome : last) {
+      row.attempt = attempt.number;
+      row.detection_time = attempt.fault ? attempt.fault_time : std::nan("");
+      break;
+    }
+    if (attempt.fault) {
+      earlier += fmt::format("{}attempt {} ended {} at {}", earlier.empty() ? "" : ", ", attempt.number,
+                             netlist::outcome_word(*attempt.fault), analysis::format_metric(attempt.fault_time, "s"));
+    }
+  }
+  if (!earlier.empty()) row.note += (row.note.empty() ? "" : "; ") + earlier;
+}
+
 void run_row(Planned& p) {
   DetectionRow& row = p.row;
   CaseRun run(*p.spec);
@@ -270,9 +293,7 @@ void run_row(Planned& p) {
   const solver::SequenceReport& report = *run.report();
   const netlist::SequenceSpec& sequence = report.spec;
   const analysis::Evaluation& evaluation = run.evaluation();
-  row.actual = report.outcome;
-  row.attempts = report.attempts;
-  row.detection_time = report.first_fault_time;
+  take_attempt(row, report);
   keep_link_trace(row, run.result(), sequence, report.ground);  // for the HTML report's plots
   if (p.expect_from_stall && evaluation.stall) {
     row.expected = outcome_from_stall(*evaluation.stall, sequence, row.note);
@@ -403,12 +424,12 @@ std::vector<std::string> failure_reasons(const DetectionRow& row) {
 std::string matrix_text(const DetectionMatrix& matrix) {
   std::string out = fmt::format("linkrise faults — {}\n", matrix.title);
   out += fmt::format("  pre-charge resistor: {} (peak temperature and energy / rating)\n", matrix.resistor);
-  out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", "scenario", "expected", "actual", "n",
+  out += fmt::format("  {:<26} {:<14} {:<14} {:>7} {:>11} {:>24} {:>22}  {}\n", "scenario", "expected", "actual", "attempt",
                      "detected", "peak temperature", "energy", "result");
   for (const auto& row : matrix.rows) {
     std::string result = !row.applicable ? "n/a" : row.pass ? "pass" : "FAIL";
-    out += fmt::format("  {:<26} {:<14} {:<14} {:>3} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected_word(),
-                       row.actual_word(), row.applicable ? std::to_string(row.attempts) : "-",
+    out += fmt::format("  {:<26} {:<14} {:<14} {:>7} {:>11} {:>24} {:>22}  {}\n", row.scenario, row.expected_word(),
+                       row.actual_word(), row.applicable ? fmt::format("{}/{}", row.attempt, row.attempts) : "-",
                        analysis::format_metric(row.detection_time, "s"), against(row.peak_temperature, row.temperature_rating, "degC"),
                        against(row.energy, row.energy_rating, "J"), result);
     if (!row.applicable || !row.note.empty() || (row.applicable && !row.pass)) {
@@ -425,11 +446,12 @@ std::string matrix_text(const DetectionMatrix& matrix) {
 std::string matrix_csv(const DetectionMatrix& matrix) {
   auto number = [](double value) { return csv_number(value); };
   std::string out =
-      "scenario,expected,actual,applicable,attempts [1],detection_time [s],peak_temperature [degC],"
+      "scenario,expected,actual,applicable,attempt [1],attempts [1],detection_time [s],peak_temperature [degC],"
       "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
   for (const auto& row : matrix.rows) {
-    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(), row.actual_word(),
-                       row.applicable ? "yes" : "no", row.attempts, number(row.detection_time),
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(),
+                       row.actual_word(), row.applicable ? "yes" : "no", row.attempt, row.attempts,
+                       number(row.detection_time),
                        number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
                        number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
                        csv_quoted(row.note));
@@ -445,6 +467,7 @@ nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
                     {"expected", row.expected_word()},
                     {"actual", row.actual_word()},
                     {"applicable", row.applicable},
+                    {"attempt", row.attempt},
                     {"attempts", row.attempts},
                     {"detection_time", quantity(row.detection_time, "s")},
                     {"peak_temperature", quantity(row.peak_temperature, "degC")},

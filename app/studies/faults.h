@@ -44,8 +44,9 @@ struct DetectionRow {
   bool applicable = true;
   bool solver_failed = false;
   std::string note;  // why not applicable, the solver's message, or the scenario's note
-  int attempts = 0;
-  double detection_time = std::numeric_limits<double>::quiet_NaN();   // s, first fault
+  int attempt = 0;   // the first attempt that ended in `actual`; the detection time is that attempt's fault
+  int attempts = 0;  // attempts the run used
+  double detection_time = std::numeric_limits<double>::quiet_NaN();   // s, the fault of `attempt`
   double peak_temperature = std::numeric_limits<double>::quiet_NaN();  // degC, pre-charge resistor
   double temperature_rating = std::numeric_limits<double>::quiet_NaN();
   double energy = std::numeric_limits<double>::quiet_NaN();  // J, pre-charge resistor over the run
