@@ -142,7 +142,7 @@ void expect_covered(const FitResult& fit, const std::string& path, double truth)
 // offset. Each 95 % interval covers the true value and is narrow (under 0.2 % of R and C, 0.1 ms of offset), so a
 // wide interval cannot pass for a recovery.
 TEST(Fit, RcChargeRecoversResistanceCapacitanceAndTimeOffset) {
-  const FitResult fit = fit_rc("rc", 1.0, 0.01, 7);
+  const FitResult fit = fit_rc("fit_rc", 1.0, 0.01, 7);
   ASSERT_TRUE(fit.solver_failure.empty()) << fit.solver_failure;
   EXPECT_EQ(fit.stop_reason.rfind("converged", 0), 0u) << fit.stop_reason;
   expect_covered(fit, "link.capacitance", kC);
@@ -163,8 +163,8 @@ TEST(Fit, RcChargeRecoversResistanceCapacitanceAndTimeOffset) {
 // With noise from one seed scaled by two the residuals double and the Jacobian stays, so every interval's
 // width, s·√((JᵀJ)⁻¹) [R-nls-covariance], doubles; allowed: 5 % (the solution moves a little with the noise).
 TEST(Fit, IntervalWidthScalesWithTheNoiseLevel) {
-  const FitResult single = fit_rc("rc_noise1", 1.0, 0.01, 11);
-  const FitResult twice = fit_rc("rc_noise2", 2.0, 0.02, 11);
+  const FitResult single = fit_rc("fit_rc_noise1", 1.0, 0.01, 11);
+  const FitResult twice = fit_rc("fit_rc_noise2", 2.0, 0.02, 11);
   for (std::size_t k = 0; k < single.parameters.size(); ++k) {
     const double ratio = twice.parameters[k].standard_error / single.parameters[k].standard_error;
     EXPECT_NEAR(ratio, 2.0, 0.1) << single.parameters[k].path;
@@ -178,7 +178,7 @@ TEST(Fit, IntervalsCoverTheTruthAtTheirStatedRate) {
   const std::vector<std::pair<std::string, double>> truths{
       {"link.capacitance", kC}, {"r_pre.resistance", kR}, {"time_offset", kOffset}};
   for (unsigned long seed = 100; seed < 120; ++seed) {
-    const FitResult fit = fit_rc("rc_cover", 1.0, 0.01, seed);
+    const FitResult fit = fit_rc("fit_rc_cover", 1.0, 0.01, seed);
     for (std::size_t k = 0; k < truths.size(); ++k) {
       const auto& p = parameter(fit, truths[k].first);
       hits[k] += p.low95 <= truths[k].second && truths[k].second <= p.high95;
@@ -190,7 +190,7 @@ TEST(Fit, IntervalsCoverTheTruthAtTheirStatedRate) {
 // A voltage alone fixes only τ = R·C [R-RC-charge]: the estimates of R and C are correlated beyond the stated
 // threshold and the fit says so, while their product is still recovered (to 0.2 %).
 TEST(Fit, AVoltageOnlyCaptureReportsRAndCAsNotToldApart) {
-  const FitResult fit = fit_rc("rc_voltage", 1.0, 0.0, 5, false);
+  const FitResult fit = fit_rc("fit_rc_voltage", 1.0, 0.0, 5, false);
   ASSERT_EQ(fit.parameters.size(), 3u);
   EXPECT_GT(std::fabs(fit.correlation[0][1]), linkrise::app::kConfoundedCorrelation);
   bool warned = false;
@@ -206,10 +206,10 @@ TEST(Fit, AVoltageOnlyCaptureReportsRAndCAsNotToldApart) {
 // ∂/∂offset = d/dt: V·e^(−x)/(RC) and −V·e^(−x)/(R²C). Truncation h² ≈ 1e-6 and solver noise rtol/h ≈ 1e-6
 // relative [R-central-differences]: compared to 1e-4 of each column's largest value.
 TEST(Fit, CentralDifferencesMatchTheClosedFormDerivatives) {
-  const std::string capture = temp_path("rc_jacobian.csv");
+  const std::string capture = temp_path("fit_rc_jacobian.csv");
   write_capture(capture, rc_channels(1.0, 0.01), -2e-3, 0.7, 3e-4, 3);
   FitRequest request;
-  request.case_file = write_rc_case("rc_jacobian.yaml", capture, true,
+  request.case_file = write_rc_case("fit_rc_jacobian.yaml", capture, true,
                                     "  noise: {link_plus: 1 V, r_pre.current: 10 mA}\n");
   FitProblem problem(request);
   const std::size_t n = problem.residual_count(), m = problem.parameter_count(), rows = n / 2;
@@ -254,10 +254,10 @@ double rlc_current(double t) {
 
 // [R-RLC-step]: the ringing fixes L, C and R separately (its frequency, its decay and the current's size).
 TEST(Fit, SeriesRlcStepRecoversInductanceCapacitanceAndResistance) {
-  const std::string capture = temp_path("rlc.csv");
+  const std::string capture = temp_path("fit_rlc.csv");
   write_capture(capture, {{"V(link) [V]", rlc_voltage, 0.2}, {"I(L1) [A]", rlc_current, 0.05}}, -1e-3, 12e-3, 4e-6,
                 25);
-  const std::string case_file = temp_path("rlc.yaml");
+  const std::string case_file = temp_path("fit_rlc.yaml");
   std::ofstream(case_file) << R"(# Invented test scenario: a series RLC step measured on a bench.
 title: RLC bench capture
 ground: gnd
@@ -309,15 +309,15 @@ std::string fit_error(const std::string& name, const std::string& capture_text, 
 }  // namespace
 
 TEST(Fit, TooFewValuesForTheParametersAreRefused) {
-  EXPECT_NE(fit_error("few", "Time (s),CH2 [V]\n0.1,200\n", "", false).find("too few to fit 3 parameters"),
+  EXPECT_NE(fit_error("fit_few", "Time (s),CH2 [V]\n0.1,200\n", "", false).find("too few to fit 3 parameters"),
             std::string::npos);
 }
 
 TEST(Fit, AColumnWhoseUnitDiffersFromItsSignalIsRefusedAtItsHeader) {
-  const std::string capture = temp_path("unit.csv");
+  const std::string capture = temp_path("fit_unit.csv");
   std::ofstream(capture) << "Time (s),CH2 [V]\n0.1,200\n0.2,300\n0.3,350\n";
   FitRequest request;
-  request.case_file = write_rc_case("unit.yaml", capture, false);
+  request.case_file = write_rc_case("fit_unit.yaml", capture, false);
   request.capture.columns = {{"r_pre.current", "CH2 [V]", {"command line (--column #1)", 0, 0}}};
   try {
     run_fit(request);
@@ -332,16 +332,16 @@ TEST(Fit, AColumnWhoseUnitDiffersFromItsSignalIsRefusedAtItsHeader) {
 TEST(Fit, ARunShorterThanTheCaptureIsRefused) {
   std::string rows = "Time (s),CH2 [V],CH3 [mA]\n";
   for (int r = 0; r < 10; ++r) rows += fmt::format("{},1,1\n", 0.1 * r);
-  const std::string message = fit_error("short", rows, "");
+  const std::string message = fit_error("fit_short", rows, "");
   EXPECT_NE(message.find("lengthen 'run: duration'"), std::string::npos) << message;
 }
 
 TEST(Fit, ANoiseEntryForAnUnknownSignalOrInTheWrongUnitIsRefused) {
   std::string rows = "Time (s),CH2 [V],CH3 [mA]\n";
   for (int r = 0; r < 10; ++r) rows += fmt::format("{},1,1\n", 0.01 * r);
-  EXPECT_NE(fit_error("noise_name", rows, "  noise: {link_minus: 1 V}\n").find("names no fitted signal"),
+  EXPECT_NE(fit_error("fit_noise_name", rows, "  noise: {link_minus: 1 V}\n").find("names no fitted signal"),
             std::string::npos);
-  EXPECT_NE(fit_error("noise_unit", rows, "  noise: {link_plus: 1 A}\n").find("the noise of 'link_plus'"),
+  EXPECT_NE(fit_error("fit_noise_unit", rows, "  noise: {link_plus: 1 A}\n").find("the noise of 'link_plus'"),
             std::string::npos);
 }
 
@@ -354,14 +354,14 @@ TEST(Fit, ANoiseEntryForAnUnknownSignalOrInTheWrongUnitIsRefused) {
 // B + 12·N = 248 MB; reading the file whole, keeping every simulated column (20 here) or a copy per iteration
 // would exceed it.
 TEST(FitMemory, AMillionRowCaptureFitsWithinItsStatedBudget) {
-  const std::string capture = temp_path("million.csv");
+  const std::string capture = temp_path("fit_million.csv");
   write_capture(capture, rc_channels(1.0, 0.01), -2e-3, 0.7, 0.702e-6, 9);  // about a million rows
-  const std::string case_file = write_rc_case("million.yaml", capture, true, "", R"(  time_offset: 0.2 ms
+  const std::string case_file = write_rc_case("fit_million.yaml", capture, true, "", R"(  time_offset: 0.2 ms
 fit:
   parameters:
     link.capacitance: {start: 1.5 mF, min: 0.3 mF, max: 5 mF}
 )");
-  const std::string output = temp_path("million_out");
+  const std::string output = temp_path("fit_million_out");
   std::vector<std::string> words{LINKRISE_BINARY, "fit", case_file, "-o", output, "-q"};
   std::vector<char*> argv;
   for (auto& word : words) argv.push_back(word.data());
