@@ -386,64 +386,61 @@ std::string fitted_case_text(const FitResult& fit, const FitProblem::Impl& impl)
   return netlist::rewrite_case_values(impl.case_file, changes, heading);
 }
 
-FitResult run_fit(const FitRequest& request) {
-  FitProblem problem(request);
-  FitProblem::Impl& impl = problem.impl();
-  const std::size_t n = problem.residual_count(), m = problem.parameter_count();
-  FitResult fit;
-  fit.case_file = request.case_file;
-  fit.title = impl.base.title;
-  fit.parameters = problem.parameters();
-  fit.rows = impl.rows;
-  fit.residual_count = n;
+namespace {
 
-  Callbacks callbacks{&problem, nullptr};
-  gsl_multifit_nlinear_fdf fdf{};
-  fdf.f = residual_callback;
-  fdf.df = jacobian_callback;
-  fdf.fvv = nullptr;
-  fdf.n = n;
-  fdf.p = m;
-  fdf.params = &callbacks;
-  gsl_multifit_nlinear_parameters settings = gsl_multifit_nlinear_default_parameters();
-  settings.trs = gsl_multifit_nlinear_trs_lm;
-  settings.solver = gsl_multifit_nlinear_solver_qr;
-  gsl_multifit_nlinear_workspace* work = gsl_multifit_nlinear_alloc(gsl_multifit_nlinear_trust, &settings, n, m);
-  gsl_vector* u = gsl_vector_alloc(m);
-  for (std::size_t k = 0; k < m; ++k) {
-    const auto& p = fit.parameters[k];
-    const double s = (p.start - p.lower) / (p.upper - p.lower);
-    gsl_vector_set(u, k, std::log(s / (1.0 - s)));
-  }
-  gsl_error_handler_t* previous = gsl_set_error_handler_off();
-  int status = gsl_multifit_nlinear_init(u, &fdf, work);
-  int info = 0;
-  if (status == GSL_SUCCESS) {
-    status = gsl_multifit_nlinear_driver(static_cast<std::size_t>(impl.spec.iterations), kStepTolerance,
-                                         kGradientTolerance, 0.0, nullptr, nullptr, &info, work);
-  }
-  gsl_set_error_handler(previous);
-  auto release = [&] {
-    gsl_vector_free(u);
-    gsl_multifit_nlinear_free(work);
-  };
-  if (callbacks.failure) {
-    release();
-    try {
-      std::rethrow_exception(callbacks.failure);
-    } catch (const InputError&) {
-      throw;
-    } catch (const std::exception& error) {
-      fit.solver_failure = error.what();
-      fit.simulations = impl.simulations;
-      return fit;
+// GSL's trust-region solver (Levenberg–Marquardt, QR) over the problem in the internal variables; the
+// workspace is freed on every path.
+class TrustRegion {
+ public:
+  TrustRegion(Callbacks& callbacks, std::size_t n, std::size_t m) : u_(gsl_vector_alloc(m)) {
+    fdf_.f = residual_callback;
+    fdf_.df = jacobian_callback;
+    fdf_.fvv = nullptr;
+    fdf_.n = n;
+    fdf_.p = m;
+    fdf_.params = &callbacks;
+    gsl_multifit_nlinear_parameters settings = gsl_multifit_nlinear_default_parameters();
+    settings.trs = gsl_multifit_nlinear_trs_lm;
+    settings.solver = gsl_multifit_nlinear_solver_qr;
+    work_ = gsl_multifit_nlinear_alloc(gsl_multifit_nlinear_trust, &settings, n, m);
+    for (std::size_t k = 0; k < m; ++k) {
+      const auto& p = callbacks.problem->parameters()[k];
+      const double s = (p.start - p.lower) / (p.upper - p.lower);
+      gsl_vector_set(u_, k, std::log(s / (1.0 - s)));
     }
   }
-  fit.iterations = static_cast<int>(gsl_multifit_nlinear_niter(work));
-  fit.stop_reason = stop_reason(status, info);
-  if (status == GSL_EMAXITER) fit.warnings.push_back("the fit " + fit.stop_reason + "; raise fit: iterations");
-  const gsl_vector* position = gsl_multifit_nlinear_position(work);
-  const gsl_vector* residual = gsl_multifit_nlinear_residual(work);
+  ~TrustRegion() {
+    gsl_vector_free(u_);
+    gsl_multifit_nlinear_free(work_);
+  }
+  TrustRegion(const TrustRegion&) = delete;
+  TrustRegion& operator=(const TrustRegion&) = delete;
+
+  /// GSL's status; `info` says which test stopped a converged run (1 step, 2 gradient).
+  int solve(std::size_t iterations, int& info) {
+    gsl_error_handler_t* previous = gsl_set_error_handler_off();
+    int status = gsl_multifit_nlinear_init(u_, &fdf_, work_);
+    if (status == GSL_SUCCESS) {
+      status = gsl_multifit_nlinear_driver(iterations, kStepTolerance, kGradientTolerance, 0.0, nullptr, nullptr,
+                                           &info, work_);
+    }
+    gsl_set_error_handler(previous);
+    return status;
+  }
+  const gsl_multifit_nlinear_workspace* work() const { return work_; }
+  gsl_multifit_nlinear_workspace* work() { return work_; }
+
+ private:
+  gsl_multifit_nlinear_fdf fdf_{};
+  gsl_vector* u_;
+  gsl_multifit_nlinear_workspace* work_ = nullptr;
+};
+
+// Fitted values, rows left out, residual variance, t quantile, covariance and correlation at the solution.
+void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& callbacks, TrustRegion& region) {
+  const gsl_vector* position = gsl_multifit_nlinear_position(region.work());
+  const gsl_vector* residual = gsl_multifit_nlinear_residual(region.work());
+  const std::size_t n = residual->size, m = fit.parameters.size();
   const std::vector<double> p = callbacks.parameters_of(position);
   std::vector<double> slopes(m);
   for (std::size_t k = 0; k < m; ++k) {
@@ -452,16 +449,25 @@ FitResult run_fit(const FitRequest& request) {
   }
   impl.residuals(p, impl.lower_residuals.data());  // which rows are left out at the solution itself
   fit.left_out_rows = impl.left_out;
+  fit.time_offset = impl.offset_at(p);
   double sum = 0.0;
   for (std::size_t i = 0; i < n; ++i) sum += gsl_vector_get(residual, i) * gsl_vector_get(residual, i);
   const std::size_t used = n - impl.left_out * impl.columns.size();
-  if (used <= m) throw InputError(netlist::SourceMark{impl.measured.capture.file, impl.measured.capture.first_data_line, 1},
-                                  "too few values remain beside the switching instants to fit the parameters",
-                                  "capture more samples");
+  if (used <= m) {
+    throw InputError(netlist::SourceMark{impl.measured.capture.file, impl.measured.capture.first_data_line, 1},
+                     "too few values remain beside the switching instants to fit the parameters",
+                     "capture more samples");
+  }
   fit.degrees_of_freedom = used - m;
   fit.residual_variance = sum / static_cast<double>(used - m);
   fit.t_quantile = gsl_cdf_tdist_Pinv(0.975, static_cast<double>(used - m));
-  summarise(fit, covariance(gsl_multifit_nlinear_jac(work), slopes, fit.residual_variance));
+  summarise(fit, covariance(gsl_multifit_nlinear_jac(region.work()), slopes, fit.residual_variance));
+}
+
+// Per signal: the simulated values at the solution (measured + σ·residual) and the residual RMS over the rows
+// used.
+void take_signals(FitResult& fit, const FitProblem::Impl& impl, const gsl_vector* residual) {
+  const double used_rows = static_cast<double>(impl.rows - fit.left_out_rows);
   for (std::size_t s = 0; s < impl.columns.size(); ++s) {
     FittedSignal signal;
     signal.name = impl.measured.signals[s].name;
@@ -476,13 +482,45 @@ FitResult run_fit(const FitRequest& request) {
       signal.simulated[r] = values[r] + scaled * signal.sigma;
       squares += scaled * scaled;
     }
-    signal.residual_rms = signal.sigma * std::sqrt(squares / static_cast<double>(impl.rows));
+    signal.residual_rms = signal.sigma * std::sqrt(squares / used_rows);
     fit.signals.push_back(std::move(signal));
   }
-  release();
-  fit.time_offset = impl.offset_at(p);
-  fit.simulations = impl.simulations;
+}
+
+}  // namespace
+
+FitResult run_fit(const FitRequest& request) {
+  FitProblem problem(request);
+  FitProblem::Impl& impl = problem.impl();
+  FitResult fit;
+  fit.case_file = request.case_file;
+  fit.title = impl.base.title;
+  fit.parameters = problem.parameters();
+  fit.rows = impl.rows;
+  fit.residual_count = problem.residual_count();
   fit.capture_file = impl.measured.capture.file;
+
+  Callbacks callbacks{&problem, nullptr};
+  TrustRegion region(callbacks, problem.residual_count(), problem.parameter_count());
+  int info = 0;
+  const int status = region.solve(static_cast<std::size_t>(impl.spec.iterations), info);
+  fit.simulations = impl.simulations;
+  if (callbacks.failure) {
+    try {
+      std::rethrow_exception(callbacks.failure);
+    } catch (const InputError&) {
+      throw;
+    } catch (const std::exception& error) {
+      fit.solver_failure = error.what();
+      return fit;
+    }
+  }
+  fit.iterations = static_cast<int>(gsl_multifit_nlinear_niter(region.work()));
+  fit.stop_reason = stop_reason(status, info);
+  if (status == GSL_EMAXITER) fit.warnings.push_back("the fit " + fit.stop_reason + "; raise fit: iterations");
+  take_solution(fit, impl, callbacks, region);
+  take_signals(fit, impl, gsl_multifit_nlinear_residual(region.work()));
+  fit.simulations = impl.simulations;
   fit.fitted_case = fitted_case_text(fit, impl);
   fit.measured = std::move(impl.measured);
   return fit;
