@@ -19,6 +19,7 @@ int fit_command(const FitArguments& arguments) {
     request.settings = parse_settings(arguments.settings);
     request.capture.file = arguments.capture;
     request.capture.columns = netlist::read_column_options(arguments.columns);
+    request.fitted_case_folder = arguments.output_directory;
     FitResult fit = run_fit(request);
     if (!fit.solver_failure.empty()) {
       throw CommandFailure(kExitSolverFailure, fmt::format("linkrise: solver failure while fitting '{}': {}",

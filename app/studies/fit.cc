@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <exception>
+#include <filesystem>
 #include <stdexcept>
 
 #include <Eigen/Dense>
@@ -33,6 +34,8 @@ double logistic(double u) { return 1.0 / (1.0 + std::exp(-u)); }
 
 struct FitProblem::Impl {
   std::string case_file;
+  std::string fitted_case_folder;
+  bool capture_from_case = false;  // the measured block names the capture (not the command line)
   netlist::CaseDocument document;
   netlist::Case base;
   netlist::FitSpec spec;
@@ -66,7 +69,8 @@ struct FitProblem::Impl {
   void choose_weights();
 };
 
-FitProblem::Impl::Impl(const FitRequest& request) : case_file(request.case_file) {
+FitProblem::Impl::Impl(const FitRequest& request)
+    : case_file(request.case_file), fitted_case_folder(request.fitted_case_folder) {
   document = netlist::CaseDocument::load(request.case_file).with(request.settings);
   base = document.validate();
   if (!base.fit) {
@@ -75,6 +79,7 @@ FitProblem::Impl::Impl(const FitRequest& request) : case_file(request.case_file)
                      "(docs/fit.md)");
   }
   spec = *base.fit;
+  capture_from_case = base.measured.has_value() && !request.capture.file;
   const CaseRun probe(base);  // the simulated columns, and a case that runs at its start values
   measured = load_measured(base, solver::waveform_headers(probe.circuit()), request.capture);
   rows = measured.capture.row_count();
@@ -370,6 +375,12 @@ std::string fitted_case_text(const FitResult& fit, const FitProblem::Impl& impl)
   if (impl.offset_fitted && impl.document.quantity_at("measured.time_offset", mark)) {
     changes.push_back({"measured.time_offset", netlist::quantity_text(fit.time_offset, netlist::Dimension::time(),
                                                                        false), mark});
+  }
+  if (impl.capture_from_case && !impl.fitted_case_folder.empty()) {
+    const auto capture = std::filesystem::absolute(impl.measured.capture.file);
+    const auto folder = std::filesystem::absolute(impl.fitted_case_folder);
+    changes.push_back({"measured.file", fmt::format("\"{}\"", capture.lexically_relative(folder).generic_string()),
+                       mark});
   }
   std::string heading = fmt::format("# Fitted by linkrise fit from {} and the capture {} ({} rows).\n", fit.case_file,
                                     impl.measured.capture.file, fit.rows);

@@ -32,6 +32,9 @@ struct FitRequest {
   std::string case_file;
   std::vector<netlist::Override> settings;
   CaptureChoice capture;
+  /// Where the fitted case will be written: its measured block then names the capture relative to that folder,
+  /// so the fitted case finds it; empty: the path is kept as written.
+  std::string fitted_case_folder;
 };
 
 struct FittedParameter {
