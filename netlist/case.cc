@@ -42,7 +42,7 @@ const std::vector<std::string>& case_sections() {
   static const std::vector<std::string> sections = {"title",    "ground",    "ambient",   "parts",
                                                     "events",   "run",       "sequence",  "limits",
                                                     "scenarios", "variants", "tolerances", "sizing",
-                                                    "expect",    "notes"};
+                                                    "expect",    "notes",    "measured",  "fit"};
   return sections;
 }
 
@@ -276,6 +276,8 @@ Case read_case(const Tree& root, const std::string& file) {
   result.variants = read_variants(root);
   result.tolerances = read_tolerances(root);
   result.sizing = read_sizing(root, file);
+  result.measured = read_measured(root, file);
+  result.fit = read_fit(root);
   result.warnings = plausibility_warnings(result);
   return result;
 }

@@ -7,7 +7,9 @@
 #include <string>
 #include <vector>
 
+#include "netlist/fit_spec.h"
 #include "netlist/limit_spec.h"
+#include "netlist/measured_spec.h"
 #include "netlist/parameter_reader.h"
 #include "netlist/plausibility.h"
 #include "netlist/run_spec.h"
@@ -72,6 +74,8 @@ struct Case : CaseSettings {
   std::vector<VariantSpec> variants;      // design alternatives (`linkrise compare`)
   std::vector<ToleranceSpec> tolerances;  // the tolerance spread (`linkrise spread`, `linkrise window`)
   std::optional<SizingSpec> sizing;       // what `linkrise size` searches
+  std::optional<MeasuredSpec> measured;   // a capture to compare with (`linkrise fit`, `run --measured`)
+  std::optional<FitSpec> fit;             // the parameters `linkrise fit` estimates
 
   const PartSpec* find_part(const std::string& name) const;
   /// Names of the parts, in file order.

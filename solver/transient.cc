@@ -4,6 +4,7 @@
 #include <chrono>
 #include <cmath>
 #include <memory>
+#include <stdexcept>
 
 #include <cvodes/cvodes.h>
 #include <fmt/format.h>
@@ -29,6 +30,27 @@ double Probe::signal(int part, int index) const {
   model.signal_values(point, circuit->layout(part), values.data());
   return values.at(index);
 }
+
+namespace {
+
+// Requested outputs the driver could not honour; the caller builds them, so these are programming errors.
+void check_outputs(const Circuit& circuit, const Options& options) {
+  const auto& times = options.output_times;
+  for (std::size_t i = 0; i < times.size(); ++i) {
+    if (!(times[i] >= 0.0 && times[i] <= options.duration) || (i > 0 && times[i] < times[i - 1])) {
+      throw std::invalid_argument(fmt::format("output time #{} ({} s) is out of order or outside [0, {} s]", i,
+                                              times[i], options.duration));
+    }
+  }
+  const int columns = static_cast<int>(circuit.node_names().size() + circuit.signal_columns().size());
+  for (int column : options.output_columns) {
+    if (column < 0 || column >= columns) {
+      throw std::invalid_argument(fmt::format("output column {} does not exist ({} columns)", column, columns));
+    }
+  }
+}
+
+}  // namespace
 
 Options options_from(const Circuit& circuit) {
   const auto& spec = circuit.spec();
@@ -99,7 +121,15 @@ class Driver {
     } else {
       result_.steps = Waveform(headers);
     }
-    result_.samples = Waveform(std::move(headers));
+    if (!options.output_columns.empty()) {
+      std::vector<std::string> chosen;
+      for (int column : options.output_columns) chosen.push_back(headers.at(static_cast<std::size_t>(column)));
+      result_.samples = Waveform(std::move(chosen));
+      chosen_row_.resize(options.output_columns.size());
+    } else {
+      result_.samples = Waveform(std::move(headers));
+    }
+    if (!options.output_times.empty()) result_.samples.reserve(options.output_times.size());
     // Growing the row store step by step would copy it a dozen times per run; a sequence run takes about a
     // thousand steps.
     if (options.record_steps) result_.steps.reserve(2048);
@@ -197,25 +227,39 @@ class Driver {
     fill_row(t, states);
     result_.steps.add_row(t, row_);
   }
-  // Grid rows in (recorded_until_, t] from dense output, then a step row at t (states at t given).
+  // The next output time: the uniform grid's or the listed one's; +infinity past the last.
+  double output_time(long index) const {
+    if (!options_.output_times.empty()) {
+      return index < static_cast<long>(options_.output_times.size()) ? options_.output_times[index]
+                                                                      : std::numeric_limits<double>::infinity();
+    }
+    if (options_.sample) return static_cast<double>(index) * *options_.sample;
+    return std::numeric_limits<double>::infinity();
+  }
+  void add_sample_row(double time) {
+    if (options_.output_columns.empty()) {
+      result_.samples.add_row(time, row_);
+      return;
+    }
+    for (std::size_t c = 0; c < chosen_row_.size(); ++c) chosen_row_[c] = row_[options_.output_columns[c]];
+    result_.samples.add_row(time, chosen_row_);
+  }
+  // Output rows in (recorded_until_, t] from dense output, then a step row at t (states at t given).
   void record_until(double t, const double* states) {
-    if (options_.sample) {
-      double step = *options_.sample;
-      double* dense = N_VGetArrayPointer(handles_.scratch);
-      while (true) {
-        double grid = static_cast<double>(next_grid_index_) * step;
-        if (grid > t * (1.0 + 1e-14) || grid > options_.duration * (1.0 + 1e-14)) break;
-        if (grid < t) {
-          check(CVodeGetDky(handles_.memory, grid, 0, handles_.scratch), "CVodeGetDky", grid);
-          solve_at(grid, dense);
-          fill_row(grid, dense);
-        } else {
-          solve_at(t, states);
-          fill_row(t, states);
-        }
-        result_.samples.add_row(grid, row_);
-        ++next_grid_index_;
+    double* dense = N_VGetArrayPointer(handles_.scratch);
+    while (true) {
+      double when = output_time(next_grid_index_);
+      if (when > t * (1.0 + 1e-14) || when > options_.duration * (1.0 + 1e-14)) break;
+      if (when < t) {
+        check(CVodeGetDky(handles_.memory, when, 0, handles_.scratch), "CVodeGetDky", when);
+        solve_at(when, dense);
+        fill_row(when, dense);
+      } else {
+        solve_at(t, states);
+        fill_row(t, states);
       }
+      add_sample_row(when);
+      ++next_grid_index_;
     }
     record_step_row(t, states);
     recorded_until_ = t;
@@ -272,6 +316,7 @@ class Driver {
   std::vector<int> modes_;
   std::vector<double> unknowns_;
   std::vector<double> row_;
+  std::vector<double> chosen_row_;  // the output columns of row_
   std::vector<Command> pending_;
   CvodeHandles handles_;
   Result result_;
@@ -598,6 +643,7 @@ Result Driver::run() {
 }  // namespace
 
 Result simulate(const Circuit& circuit, const Options& options) {
+  check_outputs(circuit, options);
   Driver driver(circuit, options);
   return driver.run();
 }

@@ -77,6 +77,12 @@ struct Options {
   double absolute_tolerance = 1e-8;
   double max_step = 0.0;
   std::optional<double> sample;  // uniform output grid
+  // Output at given times instead of the uniform grid: Result::samples gets one row per entry, from CVODE's
+  // dense output (not interpolated rows). Non-decreasing, inside [0, duration]; checked by simulate().
+  std::vector<double> output_times;
+  // Columns of Result::samples (indices into waveform_headers()); empty: all. A fit against a capture of
+  // millions of rows keeps only the signals it compares.
+  std::vector<int> output_columns;
   bool record_steps = true;      // one row per solver step (plus event rows)
   long max_steps = 2'000'000;
   std::vector<Command> commands;  // scheduled actions (the case's events)
@@ -111,7 +117,7 @@ struct Result {
   std::string message;  // solver failure reason
   double end_time = 0.0;
   Waveform steps;    // one row per step and two per event (before/after)
-  Waveform samples;  // uniform grid when Options::sample is set
+  Waveform samples;  // uniform grid when Options::sample is set, or the rows at Options::output_times
   std::vector<double> initial_states, final_states;  // ODE vector: part states, then energy accounts (J)
   std::vector<int> final_modes;
   std::vector<double> initial_stored, final_stored;  // per part, J
@@ -124,7 +130,8 @@ struct Result {
 /// node voltages "<node> [V]", then every part's signals.
 std::vector<std::string> waveform_headers(const Circuit& circuit);
 
-/// Runs the transient. Solver trouble is reported in Result::outcome/message, never thrown.
+/// Runs the transient. Solver trouble is reported in Result::outcome/message, never thrown; output times out of
+/// order or outside the run, and unknown output columns, are programming errors (std::invalid_argument).
 Result simulate(const Circuit& circuit, const Options& options);
 
 }  // namespace linkrise::solver

@@ -5,7 +5,9 @@
 // accuracy DEVELOPERS.md sets for closed-form checks at tight tolerances.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <stdexcept>
 #include <string>
 
 #include "analysis/energy_audit.h"
@@ -501,4 +503,35 @@ TEST(Transient, ACommandDueInsideTheStepPastARootIsMet) {
     EXPECT_EQ(evaluation.status, linkrise::app::CaseEvaluation::Status::Evaluated) << resistance << ": " << evaluation.message;
     EXPECT_EQ(evaluation.outcome, "timeout") << resistance;  // the doubled link times out twice at this resistance
   }
+}
+
+// Requested output times (uneven, with a repeat and both ends) come from the dense output: the RC closed form
+// [R-RC-charge] holds there to the same accuracy as on the step rows, and only the requested columns are kept.
+TEST(Transient, OutputTimesGiveDenseOutputAtExactlyThoseTimes) {
+  Simulation sim(rc_case());
+  sim.tight();
+  sim.options.output_times = {0.0, 1e-4, 0.0123, 0.0123, 0.05, 0.1, 0.31416, 0.5};
+  const auto headers = linkrise::solver::waveform_headers(sim.circuit);
+  sim.options.output_columns = {static_cast<int>(std::find(headers.begin(), headers.end(), "link [V]") - headers.begin())};
+  Result result = sim.run();
+  ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
+  ASSERT_EQ(result.samples.row_count(), sim.options.output_times.size());
+  ASSERT_EQ(result.samples.column_count(), 1);
+  EXPECT_EQ(result.samples.headers().front(), "link [V]");
+  for (std::size_t r = 0; r < sim.options.output_times.size(); ++r) {
+    const double t = sim.options.output_times[r];
+    EXPECT_EQ(result.samples.time(r), t);
+    EXPECT_NEAR(result.samples.value(r, 0), rc_voltage(t), kWaveformTolerance * kV) << "t = " << t;
+  }
+}
+
+TEST(Transient, OutputTimesOutOfOrderOrOutsideTheRunAreRefused) {
+  Simulation sim(rc_case());
+  sim.options.output_times = {0.2, 0.1};
+  EXPECT_THROW(sim.run(), std::invalid_argument);
+  sim.options.output_times = {0.1, 0.6};  // the run lasts 500 ms
+  EXPECT_THROW(sim.run(), std::invalid_argument);
+  sim.options.output_times = {0.1};
+  sim.options.output_columns = {99};
+  EXPECT_THROW(sim.run(), std::invalid_argument);
 }

@@ -26,7 +26,10 @@ int main(int argc, char** argv) {
   run_cli->add_option("--sample", run.sample, "uniform output grid, e.g. '100 us'");
   run_cli->add_option("--rtol", run.relative_tolerance, "relative tolerance (overrides the case)");
   run_cli->add_option("--atol", run.absolute_tolerance, "absolute tolerance (overrides the case)");
-  run_cli->add_option("--report", run.report, "also write a self-contained HTML report to this file");
+  auto* run_report = run_cli->add_option("--report", run.report, "also write a self-contained HTML report to this file");
+  run_cli->add_option("--measured", run.measured, "overlay a measured capture (CSV) on the report, without fitting")
+      ->needs(run_report);
+  run_cli->add_option("--column", run.columns, "map a capture column: NAME=HEADER, e.g. 'link_plus=CH2 [V]' (repeatable)");
   run_cli->add_flag("-q,--quiet", run.quiet, "print nothing on success");
   run_cli->add_flag("--strict", run.strict, "treat values outside the usual ranges (docs/plausibility.md) as errors");
 

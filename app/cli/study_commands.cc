@@ -89,6 +89,16 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   size_cli_->add_option("--margin", size_.margin, "margin of the verified BMS window, e.g. 20%")->capture_default_str();
   size_cli_->add_option("--set", size_.settings, kSetHelp);
   add_output_options(size_cli_, size_);
+
+  fit_cli_ = cli.add_subcommand("fit", "estimate the fit block's parameters from a measured capture, with intervals");
+  fit_cli_->add_option("case", fit_.case_file, "case file (YAML) with measured and fit blocks")->required();
+  fit_cli_->add_option("--capture", fit_.capture, "the capture (CSV), replacing the measured block's file");
+  fit_cli_->add_option("--column", fit_.columns,
+                       "map a capture column: NAME=HEADER, e.g. 'link_plus=CH2 [V]' (repeatable; replaces the block's)");
+  fit_cli_->add_option("--set", fit_.settings, kSetHelp);
+  fit_cli_->add_option("-o,--output", fit_.output_directory, "output directory")->capture_default_str();
+  fit_cli_->add_flag("-q,--quiet", fit_.quiet, "print nothing on success");
+  fit_cli_->add_option("--report", fit_.report, "also write a self-contained HTML report to this file");
 }
 
 std::optional<int> StudyCommands::dispatch() const {
@@ -97,6 +107,7 @@ std::optional<int> StudyCommands::dispatch() const {
   if (spread_cli_->parsed()) return spread_command(spread_);
   if (window_cli_->parsed()) return window_command(window_);
   if (size_cli_->parsed()) return size_command(size_);
+  if (fit_cli_->parsed()) return fit_command(fit_);
   return std::nullopt;
 }
 

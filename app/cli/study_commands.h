@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include "app/commands/compare_command.h"
+#include "app/commands/fit_command.h"
 #include "app/commands/size_command.h"
 #include "app/commands/spread_command.h"
 #include "app/commands/sweep_command.h"
@@ -28,11 +29,13 @@ class StudyCommands {
   SpreadArguments spread_;
   WindowArguments window_;
   SizeArguments size_;
+  FitArguments fit_;
   CLI::App* compare_cli_ = nullptr;
   CLI::App* sweep_cli_ = nullptr;
   CLI::App* spread_cli_ = nullptr;
   CLI::App* window_cli_ = nullptr;
   CLI::App* size_cli_ = nullptr;
+  CLI::App* fit_cli_ = nullptr;
 };
 
 }  // namespace linkrise::app

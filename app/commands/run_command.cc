@@ -6,12 +6,15 @@
 
 #include "app/commands/command_steps.h"
 #include "app/evaluation/case_run.h"
+#include "app/evaluation/measured_capture.h"
 #include "app/output/run_summary.h"
 #include "app/output/verdict_summary.h"
 #include "app/output/waveform_csv.h"
+#include "app/report/measured_plots.h"
 #include "app/report/report_html.h"
 #include "app/studies/study_parameters.h"
 #include "netlist/case_document.h"
+#include "netlist/measured_spec.h"
 #include "netlist/parameter_reader.h"
 #include "netlist/run_spec.h"
 
@@ -50,6 +53,25 @@ void report_warnings(const RunArguments& arguments, const netlist::Case& spec) {
   }
 }
 
+// The capture beside the simulated columns it measures, in case time; no fit, so no residuals.
+void add_measured(const RunArguments& arguments, const netlist::Case& spec, const CaseRun& run,
+                  RunReportInput& report) {
+  CaptureChoice choice;
+  choice.file = arguments.measured;
+  choice.columns = netlist::read_column_options(arguments.columns);
+  const MeasuredCapture measured = load_measured(spec, solver::waveform_headers(run.circuit()), choice);
+  const solver::Waveform& simulated = run.options().sample ? run.result().samples : run.result().steps;
+  report.measured = measured_curves(measured, measured.time_offset);
+  for (std::size_t s = 0; s < report.measured.size(); ++s) {
+    report.measured[s].simulated_times = simulated.times();
+    report.measured[s].simulated = simulated.series(measured.signals[s].waveform_column);
+  }
+  report.measured_source = fmt::format("The capture {} ({} rows) drawn over the simulation, shifted by the time "
+                                       "offset {} (case time at the capture's zero). No fit was made.",
+                                       measured.capture.file, measured.capture.row_count(),
+                                       netlist::format_si(measured.time_offset, "s"));
+}
+
 CommandOutput run_output(const RunArguments& arguments) {
   netlist::Case spec =
       netlist::CaseDocument::load(arguments.case_file).with(parse_settings(arguments.settings)).validate();
@@ -72,6 +94,7 @@ CommandOutput run_output(const RunArguments& arguments) {
   if (arguments.report) {
     RunReportInput report_input(circuit, result, audit);
     add_evaluation(report_input, evaluation, sequence);
+    if (arguments.measured) add_measured(arguments, spec, run, report_input);
     output.report_file = *arguments.report;
     output.report = run_report_html(report_input);
   }

@@ -14,6 +14,8 @@ struct RunArguments {
   std::optional<double> relative_tolerance;
   std::optional<double> absolute_tolerance;
   std::optional<std::string> report;  // HTML report file (self-contained)
+  std::optional<std::string> measured;  // a capture overlaid on the report (needs report)
+  std::vector<std::string> columns;     // NAME=HEADER mappings of the capture's columns
   bool quiet = false;
   bool strict = false;  // values outside the trade's ranges (netlist/plausibility.h) are input errors
 };

@@ -8,6 +8,7 @@
 
 #include "analysis/metrics.h"
 #include "app/output/text_format.h"
+#include "app/report/measured_plots.h"
 #include "linkrise/version.h"
 #include "netlist/units.h"
 
@@ -785,6 +786,11 @@ std::string run_report_html(const RunReportInput& input) {
   }
   add_limits(report, input);
   add_energy(report, input);
+  if (!input.measured.empty()) {
+    report.section("Measured and simulated", "measured");
+    report.paragraph(input.measured_source);
+    add_measured_plots(report, input.measured);
+  }
   report.section("Safety", "safety");
   report.caution(safety_caution());
   return report.html();

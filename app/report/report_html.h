@@ -156,6 +156,14 @@ struct ContactorRoles {
 ContactorRoles contactor_roles(const solver::Circuit& circuit, const solver::Waveform& waveform,
                                const SequenceHints& hints = {});
 
+/// A measured signal beside its simulation, in case time (a capture shifted by its time offset).
+struct MeasuredCurve {
+  std::string name, unit;
+  std::vector<double> measured_times, measured;
+  std::vector<double> simulated_times, simulated;
+  std::vector<double> residuals;  // simulated − measured at measured_times; empty: not drawn
+};
+
 struct RunReportInput {
   RunReportInput(const solver::Circuit& circuit_, const solver::Result& result_,
                  const analysis::EnergyAudit& audit_)
@@ -170,6 +178,9 @@ struct RunReportInput {
   std::optional<double> closing_threshold;
   /// Metrics, limits and verdict when the analyser judged the run.
   std::optional<Assessment> assessment;
+  /// A measured capture overlaid on the run (`run --measured`); empty: none.
+  std::vector<MeasuredCurve> measured;
+  std::string measured_source;  // the capture file and its time offset, one sentence
 };
 
 /// Fills `input.assessment` from the analyser's evaluation and, for a sequence case (`sequence` not null),
