@@ -1,7 +1,7 @@
 // Wall time of sizing runs (app/studies/sizing.h), on 2 worker threads:
 //  - SizingBoatCase: the stored case cases/boat_104s_sizing.yaml as its sizing block says — r_pre.resistance over
 //    5 … 400 Ohm, every value at the nominal point, the 32 corners of its five tolerances and the six built-in
-//    fault scenarios with two attempts each; then its five catalogue parts over the same; then the chosen part's
+//    fault scenarios with two attempts each; then its seven catalogue parts over the same; then the chosen part's
 //    fault matrix and BMS window (a corner spread and the scenarios again).
 //  - SizingStudyCase: cases/study_precharge_window.yaml over 5 … 300 Ohm, corners only (no faults, no verification).
 // Counters: values evaluated and simulations per second.

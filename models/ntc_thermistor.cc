@@ -47,13 +47,16 @@ std::unique_ptr<Part> make_ntc_thermistor(const netlist::PartSpec& spec) {
        {"table"}},
       true, ntc_fix);
   std::optional<ResistanceLaw> law;
+  std::optional<DefiningValue> defining;  // the resistance a data sheet names the part by; the curve shapes it too
   if (form == 0) {
+    const bool at_25 = reader.has("resistance_at_25degC");
+    defining = DefiningValue{at_25 ? "resistance_at_25degC" : "reference_resistance", "Ohm", false};
     law = read_beta(reader);
   } else if (form == 1) {
     law = read_steinhart_hart(reader);
   } else {
     law = read_resistance_table(reader, "table");
   }
-  return finish_thermal_resistor(spec, reader, std::move(*law));
+  return finish_thermal_resistor(spec, reader, std::move(*law), std::move(defining));
 }
 }  // namespace linkrise::models

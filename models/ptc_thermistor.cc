@@ -39,11 +39,14 @@ std::unique_ptr<Part> make_ptc_thermistor(const netlist::PartSpec& spec) {
                           {"table"}},
                          true, ptc_fix);
   std::optional<ResistanceLaw> law;
+  std::optional<DefiningValue> defining;  // the resistance a data sheet names the part by; the curve shapes it too
   if (form == 0) {
+    const bool minimum = reader.has("minimum_resistance");
+    defining = DefiningValue{minimum ? "minimum_resistance" : "resistance_at_25degC", "Ohm", false};
     law = read_parametric(reader);
   } else {
     law = read_resistance_table(reader, "table");
   }
-  return finish_thermal_resistor(spec, reader, std::move(*law));
+  return finish_thermal_resistor(spec, reader, std::move(*law), std::move(defining));
 }
 }  // namespace linkrise::models

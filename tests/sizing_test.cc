@@ -156,13 +156,15 @@ TEST(Sizing, CatalogueCandidatesAreRankedBySmallestMargin) {
   - {name: r40, part: {kind: resistor, resistance: 40 Ohm}}
   - {name: r80_5pct, part: {kind: resistor, resistance: 80 Ohm}, tolerances: {resistance: {plus_minus: 5 %}}}
   - {name: r60_1pct, part: {kind: resistor, resistance: 60 Ohm}, tolerances: {resistance: {plus_minus: 1 %}}}
+  - {name: ntc20, part: {kind: ntc_thermistor, resistance_at_25degC: 20 Ohm, b_value: 3000 K,
+                         thermal: {heat_capacity: 50 J/K, thermal_resistance: 10 K/W}}}
 )");
   SizingRequest request = rc_request("sizing_catalogue.yaml",
                                      "  sequence.time_to_threshold: {max: 300 ms}\n  r_pre.peak_power: {max: 200 W}\n");
   request.catalogue = catalogue;
   request.verify = true;
   Sizing sizing = size_part(request);
-  ASSERT_EQ(sizing.candidates.size(), 3u);
+  ASSERT_EQ(sizing.candidates.size(), 4u);
   auto margins = [](double r_low, double r_high) {
     const double power = (200.0 - 100.0 * 100.0 / r_low) / 200.0;
     const double time = (0.3 - r_high * 1.1e-3 * std::log(20.0)) / 0.3;
@@ -177,6 +179,12 @@ TEST(Sizing, CatalogueCandidatesAreRankedBySmallestMargin) {
   EXPECT_EQ(sizing.candidates[2].name, "r40");  // 250 W into 40 Ohm: fails
   EXPECT_FALSE(sizing.candidates[2].pass());
   EXPECT_NEAR(sizing.candidates[2].smallest_margin, (200.0 - 250.0) / 200.0, 1e-4);
+  // Another technology in the same table: the NTC is named by its R25 and, cold at the first instant, takes
+  // V²/R25 = 500 W against 200 W.
+  EXPECT_EQ(sizing.candidates[3].name, "ntc20");
+  EXPECT_EQ(sizing.candidates[3].kind, "ntc_thermistor");
+  EXPECT_DOUBLE_EQ(sizing.candidates[3].point.value, 20.0);
+  EXPECT_NEAR(sizing.candidates[3].smallest_margin, (200.0 - 500.0) / 200.0, 1e-3);
   // The best candidate is the chosen design; its fault matrix and BMS window were run.
   ASSERT_TRUE(sizing.choice);
   EXPECT_EQ(sizing.choice->label, "candidate r60_1pct");

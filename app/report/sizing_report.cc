@@ -91,7 +91,7 @@ void add_candidates(HtmlReport& report, const Sizing& sizing) {
   ReportTable table;
   table.id = "candidates";
   table.caption = fmt::format("Candidates from {}, ranked by their smallest margin", sizing.spec.catalogue);
-  table.columns = {"rank", "candidate", "kind", sizing.path, "smallest margin", "constraint", "where", "result"};
+  table.columns = {"rank", "candidate", "kind", "resistance", "smallest margin", "constraint", "where", "result"};
   table.numeric_columns = {0, 3, 4};
   for (std::size_t i = 0; i < sizing.candidates.size(); ++i) {
     const CandidateResult& c = sizing.candidates[i];

@@ -20,6 +20,7 @@
 #include "netlist/case_document.h"
 #include "netlist/catalogue_spec.h"
 #include "netlist/units.h"
+#include "solver/circuit.h"
 
 namespace linkrise::app {
 namespace {
@@ -424,8 +425,13 @@ void rank_candidates(const netlist::CaseDocument& base, DesignJudge& judge, Sizi
   for (const auto& candidate : netlist::read_catalogue(sizing.spec.catalogue)) {
     CandidateResult result{candidate.name, candidate.note, candidate.kind, {}, Sizing::kNaN, std::nullopt, 0};
     const netlist::CaseDocument design = base.with_candidate(sizing.spec.part, candidate);
+    // The candidate's own defining value (a thermistor's R25 or minimum resistance), whatever its kind.
     double value = Sizing::kNaN;
-    if (auto written = design.quantity_at(sizing.path, sizing.spec.catalogue_mark)) value = written->value;
+    const solver::Circuit circuit(design.validate());
+    if (auto defining = circuit.part(circuit.find_part(sizing.spec.part)).defining_value()) {
+      const std::string path = sizing.spec.part + "." + defining->parameter;
+      if (auto written = design.quantity_at(path, candidate.mark)) value = written->value;
+    }
     result.point = judge.judge(design, value, "candidate " + candidate.name, ScenarioFit::MayNotFit);
     summarise(result);
     sizing.candidates.push_back(std::move(result));
@@ -544,7 +550,11 @@ Sizing size_part(const SizingRequest& request) {
   if (!sizing.spec.catalogue.empty()) rank_candidates(base, judge, sizing);
   if (auto chosen = choose(base, table, sizing)) {
     sizing.choice = std::move(chosen->first);
-    if (request.verify) verify(*sizing.choice, chosen->second, judge, request, sizing.spec);
+    if (request.verify) {
+      verify(*sizing.choice, chosen->second, judge, request, sizing.spec);
+    } else {
+      sizing.choice->window_skipped = "not asked for (--no-verify)";
+    }
   }
   sizing.points = table.points();
   return sizing;
@@ -591,7 +601,7 @@ std::string candidates_table(const Sizing& sizing) {
                     percent(c.smallest_margin), c.binding ? binding + " at " + where : "-",
                     c.pass() ? "pass" : fmt::format("FAIL ({} failed)", c.failed)});
   }
-  return text_table({"rank", "candidate", "kind", sizing.path, "smallest margin", "where", "result"}, rows, 3);
+  return text_table({"rank", "candidate", "kind", "resistance", "smallest margin", "where", "result"}, rows, 3);
 }
 
 std::string choice_lines(const SizingChoice& choice) {
