@@ -220,12 +220,16 @@ class Driver {
       }
     }
     if (options_.record_steps) {
+      // The step row first (the peak search compares with it), added after the peaks it finds before it;
       // `states` may be the dense-output scratch vector, which the peak search reuses.
+      solve_at(t, states);
+      fill_row(t, states);
+      step_row_ = row_;
       peak_kept_.assign(states, states + n_);
       record_peaks_inside_step(t);
       std::copy(peak_kept_.begin(), peak_kept_.end(), states);
+      result_.steps.add_row(t, step_row_);
     }
-    record_step_row(t, states);
     recorded_until_ = t;
   }
   void record_peaks_inside_step(double t);
@@ -294,6 +298,7 @@ class Driver {
   std::vector<int> modes_;
   std::vector<double> unknowns_;
   std::vector<double> row_;
+  std::vector<double> step_row_;   // the row at a step's end while the peak search fills row_
   std::vector<double> peak_kept_;  // the states of a step row while the peak search uses the scratch vector
   std::vector<Command> pending_;
   CvodeHandles handles_;
@@ -582,14 +587,11 @@ void Driver::record_peaks_inside_step(double t) {
   if (!(start < t) || start < t - step * (1.0 + 1e-9)) return;
   double* dense = N_VGetArrayPointer(handles_.scratch);
   const double middle = 0.5 * (start + t);
-  check(CVodeGetDky(handles_.memory, t, 0, handles_.scratch), "CVodeGetDky", t);
-  solve_at(t, dense);
-  fill_row(t, dense);
-  const std::vector<double> at_end = row_;
+  const std::vector<double>& at_end = step_row_;
   check(CVodeGetDky(handles_.memory, middle, 0, handles_.scratch), "CVodeGetDky", middle);
   solve_at(middle, dense);
   fill_row(middle, dense);
-  const std::vector<double> at_middle = row_;
+  const std::vector<double>& at_middle = row_;
   std::vector<double> peaks;
   for (std::size_t c = 0; c < row_.size(); ++c) {
     const double a = std::fabs(result_.steps.value(last, static_cast<int>(c))), b = std::fabs(at_middle[c]),
@@ -611,8 +613,8 @@ void Driver::record_peaks_inside_step(double t) {
 }
 
 // Rows at time t (no width in any integral) where a signal peaks inside the skipped transient: the transient on
-// a grid of a tenth of its shortest time constant, then each column's largest value and largest magnitude
-// refined by the parabola through the grid points around it.
+// a grid of a tenth of its shortest time constant (a twentieth moves no stored result, a quarter does), then each
+// column's largest value and largest magnitude refined by the parabola through the grid points around it.
 void Driver::record_skipped_peaks(double t, const SkippedTransient& transient) {
   if (!options_.record_steps) return;
   std::vector<double> grid;
