@@ -31,7 +31,8 @@ EnergyAudit audit_energy(const solver::Circuit& circuit, const solver::Result& r
     audit.to_loads += part.to_load;
     audit.stored_change += part.stored_end - part.stored_start;
   }
-  audit.residual = audit.delivered - audit.dissipated - audit.to_loads - audit.stored_change;
+  audit.settled = result.settled_energy;
+  audit.residual = audit.delivered - audit.dissipated - audit.to_loads - audit.stored_change + audit.settled;
   double scale = std::max({std::fabs(audit.delivered), std::fabs(audit.dissipated), std::fabs(audit.to_loads),
                            std::fabs(audit.stored_change), 1e-300});
   audit.relative_residual = std::fabs(audit.residual) / scale;

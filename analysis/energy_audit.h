@@ -24,7 +24,10 @@ struct EnergyAudit {
   double dissipated = 0.0;
   double to_loads = 0.0;
   double stored_change = 0.0;
-  double residual = 0.0;           // delivered - dissipated - to_loads - stored_change, J
+  // Stored energy that fast states received when they started at their quasi-steady value after a switching
+  // (solver/fast_states.h): the skipped transients' net share, which no account integrates.
+  double settled = 0.0;
+  double residual = 0.0;           // delivered - dissipated - to_loads - stored_change + settled, J
   double relative_residual = 0.0;  // |residual| / largest term
   std::vector<PartEnergy> parts;
 };

@@ -76,6 +76,7 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;
   if (result.end_time > 0.0) metrics.average_power = metrics.energy / result.end_time;
   int state = current_squared_state(circuit, part);
+  if (state < 0) state = circuit.current_squared_index(part);
   if (state >= 0 && result.final_states.size() > static_cast<std::size_t>(state) &&
       result.initial_states.size() > static_cast<std::size_t>(state)) {
     metrics.current_squared_time = result.final_states[state] - result.initial_states[state];

@@ -42,7 +42,7 @@ struct ResistiveMetrics {
   double peak_power = 0.0;                 // W
   double energy = 0.0;                     // J
   double current_squared_time = 0.0;       // A²·s
-  bool current_squared_integrated = false; // true: from the part's ∫i² dt state; false: trapezoid over rows
+  bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
   double average_power = 0.0;              // W
 

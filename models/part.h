@@ -269,6 +269,8 @@ class Part {
   /// Signal values in the order of signals(): current, voltage, power, then the kind's extras.
   void signal_values(const Point& point, const Layout& layout, double* out) const;
   Powers powers(const Point& point, const Layout& layout) const { return do_powers(point, layout); }
+  /// The current entering at the positive node (A).
+  double current(const Point& point, const Layout& layout) const { return do_current(point, layout); }
   /// Energy held in the part's states (capacitor, inductor, RC pairs), J.
   double stored_energy(const Point& point, const Layout& layout) const { return do_stored_energy(point, layout); }
 

@@ -103,6 +103,7 @@ RunSpec read_run(const Tree& block) {
   run.max_step = reader.quantity("max_step", Dimension::time(), Bound::Any, run.max_step);
   run.sample = reader.optional("sample", Dimension::time(), Bound::Any);
   run.max_steps = reader.count("max_steps", static_cast<int>(run.max_steps), 0);
+  run.settle_fast_states = reader.word("fast_states", {"settle", "resolve"}, "settle") == "settle";
   reader.finish();
   run.marks = {reader.mark("duration"), reader.mark("rtol"),   reader.mark("atol"),
                reader.mark("max_step"), reader.mark("sample"), reader.mark("max_steps")};

@@ -13,6 +13,9 @@
 //              error control)
 //   max_step   >= 0 s, finite (0: no limit)
 //   sample     > 0 s, finite, when given
+//   fast_states settle (default) or resolve: whether a mode far faster than the rest starts at its
+//              quasi-steady value after a switching (solver/fast_states.h) or is resolved step by step (the
+//              tight reference runs that judge the default accuracy resolve everything)
 //   max_steps  >= 10 (even a single RC charge takes dozens of steps: BDF starts at order 1 with a tiny first
 //              step, so a smaller limit is a slip)
 #include <optional>
@@ -30,6 +33,7 @@ struct RunSpec {
   double max_step = 0.0;               // s; 0 means no limit
   std::optional<double> sample;        // s; uniform output grid from dense output
   long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
+  bool settle_fast_states = true;      // `fast_states: settle`; false for `resolve`
 
   // Where each value was written: its place in the case file (or of an override), an option such as
   // "option --rtol" (line 0), or the run block's own place for a default.

@@ -9,10 +9,18 @@
 #include <fmt/format.h>
 
 #include "models/registry.h"
+#include "models/thermal_resistor.h"
 
 namespace linkrise::solver {
 
 namespace {
+// True when the part integrates its own ∫i² dt as a state (a resistor with a thermal model).
+bool has_current_squared_state(const models::Part& part, double ambient) {
+  for (const auto& state : part.states(ambient))
+    if (state.name == models::current_squared_state) return true;
+  return false;
+}
+
 // Union-find over node indices; ground is index node_count.
 struct Groups {
   explicit Groups(int size) : parent(size) { std::iota(parent.begin(), parent.end(), 0); }
@@ -73,6 +81,7 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
     if (channels.source) accounts_.push_back({part, models::EnergyChannel::Source});
     if (channels.heat) accounts_.push_back({part, models::EnergyChannel::Heat});
     if (channels.load) accounts_.push_back({part, models::EnergyChannel::Load});
+    if (channels.heat && !has_current_squared_state(*parts_[p], spec_.ambient)) current_squared_parts_.push_back(part);
     signal_first_.push_back(static_cast<int>(signal_columns_.size()));
     for (const auto& signal : parts_[p]->signals()) {
       signal_columns_.push_back(
@@ -109,6 +118,12 @@ void Circuit::check_sequence_parts() const {
                               switches.empty() ? "add a contactor part for the sequence to move"
                                                : "name one of the case's switching parts: " + switches);
   }
+}
+
+int Circuit::current_squared_index(int part) const {
+  auto found = std::find(current_squared_parts_.begin(), current_squared_parts_.end(), part);
+  if (found == current_squared_parts_.end()) return -1;
+  return part_state_count() + static_cast<int>(accounts_.size() + (found - current_squared_parts_.begin()));
 }
 
 int Circuit::find_part(const std::string& name) const {

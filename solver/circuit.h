@@ -46,7 +46,15 @@ class Circuit {
   int part_state_count() const { return static_cast<int>(state_info_.size()); }
   const std::vector<models::StateInfo>& state_info() const { return state_info_; }
   const std::vector<EnergyAccount>& energy_accounts() const { return accounts_; }
-  int ode_size() const { return part_state_count() + static_cast<int>(accounts_.size()); }
+  /// Parts whose ∫i² dt (A²s) the solver integrates as a quadrature after the energy accounts: every part
+  /// that takes heat and has no ∫i² dt state of its own, so I²t is as accurate as the solver, not a trapezoid
+  /// over the recorded rows.
+  const std::vector<int>& current_squared_parts() const { return current_squared_parts_; }
+  /// The ODE index of a part's ∫i² dt quadrature, or -1.
+  int current_squared_index(int part) const;
+  /// Quadratures: the energy accounts, then the ∫i² dt of current_squared_parts().
+  int quadrature_count() const { return static_cast<int>(accounts_.size() + current_squared_parts_.size()); }
+  int ode_size() const { return part_state_count() + quadrature_count(); }
   int mode_count() const { return static_cast<int>(initial_modes_.size()); }
   const std::vector<int>& initial_modes() const { return initial_modes_; }
   std::vector<double> initial_states() const;
@@ -70,6 +78,7 @@ class Circuit {
   int unknown_count_ = 0;
   std::vector<models::StateInfo> state_info_;
   std::vector<EnergyAccount> accounts_;
+  std::vector<int> current_squared_parts_;
   std::vector<int> initial_modes_;
   std::vector<int> root_owner_;
   std::vector<int> root_first_;

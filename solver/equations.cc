@@ -207,6 +207,11 @@ void Equations::account_rates(double time, const double* states, const int* mode
     }
     rates[a] = powers.of(accounts[a].channel);
   }
+  const auto& squared = circuit_.current_squared_parts();
+  for (std::size_t k = 0; k < squared.size(); ++k) {
+    const double current = circuit_.part(squared[k]).current(p, circuit_.layout(squared[k]));
+    rates[accounts.size() + k] = current * current;
+  }
 }
 
 void Equations::jacobian(double time, const double* states, const int* modes, const double* unknowns,

@@ -26,7 +26,8 @@ class Equations {
   void rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
   /// dx/dt of the part states only (part_state_count values) at a solved point.
   void state_rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
-  /// Rates of the energy accounts (W, energy_accounts().size() values) at a solved point.
+  /// Rates of the quadratures at a solved point: the energy accounts (W), then the squared currents of
+  /// current_squared_parts() (A²); quadrature_count() values.
   void account_rates(double time, const double* states, const int* modes, const double* unknowns, double* rates);
   /// Dense column-major Jacobian d(state rates)/d(part states) (part_state_count²) at a solved point.
   void jacobian(double time, const double* states, const int* modes, const double* unknowns, double* matrix);

@@ -14,6 +14,7 @@
 #include <sunmatrix/sunmatrix_dense.h>
 
 #include "solver/equations.h"
+#include "solver/fast_states.h"
 #include "solver/sundials_check.h"
 
 namespace linkrise::solver {
@@ -60,6 +61,7 @@ Options options_from(const Circuit& circuit) {
   options.absolute_tolerance = spec.run.absolute_tolerance;
   options.max_step = spec.run.max_step;
   options.max_steps = spec.run.max_steps;
+  options.settle_fast_states = spec.run.settle_fast_states;
   options.sample = spec.run.sample;
   for (const auto& event : spec.events) {
     options.commands.push_back(Command{event.at, circuit.find_part(event.target), event.action, "scheduled event"});
@@ -82,7 +84,7 @@ struct CvodeHandles {
   N_Vector states = nullptr;
   N_Vector scratch = nullptr;
   N_Vector tolerances = nullptr;
-  N_Vector accounts = nullptr;          // energy accounts, integrated as quadratures
+  N_Vector accounts = nullptr;          // energy accounts and ∫i² dt, integrated as quadratures
   SUNMatrix matrix = nullptr;
   SUNLinearSolver linear_solver = nullptr;
   void* memory = nullptr;
@@ -107,7 +109,7 @@ class Driver {
         equations_(circuit),
         states_(circuit.part_state_count()),
         n_(std::max(states_, 1)),
-        accounts_(static_cast<int>(circuit.energy_accounts().size())),
+        accounts_(circuit.quadrature_count()),
         modes_(circuit.initial_modes()),
         unknowns_(circuit.unknown_count(), 0.0),
         row_(circuit.node_names().size() + circuit.signal_columns().size(), 0.0) {
@@ -195,7 +197,7 @@ class Driver {
   }
   double* x() { return N_VGetArrayPointer(handles_.states); }
   double* accounts() { return accounts_ > 0 ? N_VGetArrayPointer(handles_.accounts) : nullptr; }
-  // Part states then energy accounts, the layout of Result::initial_states/final_states.
+  // Part states, energy accounts, then ∫i² dt, the layout of Result::initial_states/final_states.
   std::vector<double> full_state() {
     std::vector<double> full(x(), x() + states_);
     if (accounts_ > 0) full.insert(full.end(), accounts(), accounts() + accounts_);
@@ -245,7 +247,7 @@ class Driver {
     result_.samples.add_row(time, chosen_row_);
   }
   // Output rows in (recorded_until_, t] from dense output, then a step row at t (states at t given).
-  void record_until(double t, const double* states) {
+  void record_until(double t, double* states) {
     double* dense = N_VGetArrayPointer(handles_.scratch);
     while (true) {
       double when = output_time(next_grid_index_);
@@ -261,9 +263,20 @@ class Driver {
       add_sample_row(when);
       ++next_grid_index_;
     }
-    record_step_row(t, states);
+    if (options_.record_steps) {
+      // The step row first (the peak search compares with it), added after the peaks it finds before it;
+      // `states` may be the dense-output scratch vector, which the peak search reuses.
+      solve_at(t, states);
+      fill_row(t, states);
+      step_row_ = row_;
+      peak_kept_.assign(states, states + n_);
+      record_peaks_inside_step(t);
+      std::copy(peak_kept_.begin(), peak_kept_.end(), states);
+      result_.steps.add_row(t, step_row_);
+    }
     recorded_until_ = t;
   }
+  void record_peaks_inside_step(double t);
   // CVODE set up for a run from t0; the error handler is installed before any call that could report.
   void initialise_cvode(double t0);
   void create_vectors(double t0);
@@ -285,6 +298,19 @@ class Driver {
     if (accounts_ > 0) check(CVodeQuadReInit(handles_.memory, handles_.accounts), "CVodeQuadReInit", t);
     ++result_.statistics.reinitialisations;
   }
+  // After a switching: fast states to quasi-steady, then CVODE from there.
+  void restart(double t) {
+    const double slow_time = settle(t);
+    reinitialise(t);
+    // CVODE's own first-step estimate differences f along a step that leaves the slow manifold, so it sees
+    // the settled fast mode and starts a thousand times too short. On the manifold the first-order local
+    // error of a step h is about h²/2 · |x|/τ_S², within rtol for h = sqrt(2·rtol)·τ_S; a tenth of that.
+    const double first_step = slow_time > 0.0 ? 0.1 * std::sqrt(2.0 * options_.relative_tolerance) * slow_time : 0.0;
+    check(CVodeSetInitStep(handles_.memory, first_step), "CVodeSetInitStep", t);
+  }
+  // Fast states to quasi-steady; returns the slowest remaining time constant τ_S, or 0 when nothing moved.
+  double settle(double t);
+  void record_skipped_peaks(double t, const SkippedTransient& transient);
   // Adds CVODE's counters since the last (re)initialisation to harvested_ (all or none).
   void harvest_statistics(double t);
   // The run's phases: initial operating point, the integration loop, and the bookkeeping after a failure.
@@ -311,12 +337,14 @@ class Driver {
   Equations equations_;
   int states_;    // part states
   int n_;         // CVODE's state size: the part states, or one idle state for a circuit without any
-  int accounts_;  // energy accounts (CVODES quadratures)
+  int accounts_;  // quadratures: energy accounts, then ∫i² dt (Circuit::quadrature_count)
   bool accounts_stale_ = false;
   std::vector<int> modes_;
   std::vector<double> unknowns_;
   std::vector<double> row_;
   std::vector<double> chosen_row_;  // the output columns of row_
+  std::vector<double> step_row_;   // the row at a step's end while the peak search fills row_
+  std::vector<double> peak_kept_;  // the states of a step row while the peak search uses the scratch vector
   std::vector<Command> pending_;
   CvodeHandles handles_;
   Result result_;
@@ -474,7 +502,11 @@ void Driver::prepare(double t0) {
 void Driver::integrate(double t0) {
   double t = t0;
   record_until(t0, x());
-  if (apply_commands(t0)) reinitialise(t0);
+  // The initial state too may hold a fast mode away from its quasi-steady value (a cable current of zero
+  // where the open contacts pass microamperes), so the run starts with a settling whether or not a command
+  // applied at t0.
+  apply_commands(t0);
+  restart(t0);
   while (t < options_.duration) {
     if (options_.supervisor && options_.supervisor->finished()) {
       result_.outcome = Outcome::SupervisorFinished;
@@ -546,7 +578,7 @@ void Driver::switch_inside_step(double command_time, double reached) {
     record_until(reached, x());
   }
   apply_commands(command_time);
-  reinitialise(command_time);
+  restart(command_time);
 }
 
 void Driver::take_sample(double sample_time) {
@@ -563,6 +595,117 @@ void Driver::take_sample(double sample_time) {
     pending_.insert(position, command);
   }
   last_sample_ = sample_time;
+}
+
+// The rows before and just after the switching hold the fast transient's start; the row recorded here its end
+// (a monotone transient has its extremes there). The stored-energy jump goes to Result::settled_energy.
+double Driver::settle(double t) {
+  if (!options_.settle_fast_states || states_ < 2) return 0.0;
+  std::vector<double> before, after;
+  stored_energies(t, x(), before);
+  const FastSettling settings{100.0 * options_.relative_tolerance, options_.duration};
+  const auto settled = settle_fast_states(equations_, t, x(), modes_.data(), unknowns_.data(), settings);
+  if (!settled.settled) {
+    reset_guess();
+    return 0.0;
+  }
+  stored_energies(t, x(), after);
+  // The skipped transient's energy goes to the accounts that would have integrated it; what the linearised
+  // transient does not explain of the stored-energy jump stays in Result::settled_energy.
+  sync_accounts(t);
+  double booked = 0.0;
+  const auto& channels = circuit_.energy_accounts();
+  for (int a = 0; a < accounts_; ++a) accounts()[a] += settled.skipped_accounts[a];
+  for (std::size_t a = 0; a < channels.size(); ++a) {
+    booked += channels[a].channel == models::EnergyChannel::Source ? settled.skipped_accounts[a]
+                                                                   : -settled.skipped_accounts[a];
+  }
+  for (int p = 0; p < circuit_.part_count(); ++p) result_.settled_energy += after[p] - before[p];
+  result_.settled_energy -= booked;
+  ++result_.statistics.settlings;
+  record_skipped_peaks(t, settled.transient);
+  record_step_row(t, x());
+  return settled.split.slow_time;
+}
+
+// A signal that peaks inside a step would be sampled short of its peak by the rows at the step's ends. The
+// dense output at the step's middle shows such a peak (larger in magnitude than both ends); the parabola through
+// the three gives its time, and a row there holds it. Only within the step just taken, where dense output holds.
+void Driver::record_peaks_inside_step(double t) {
+  if (!options_.record_steps || result_.steps.row_count() == 0) return;
+  const std::size_t last = result_.steps.row_count() - 1;
+  const double start = result_.steps.time(last);
+  double step = 0.0;
+  check(CVodeGetLastStep(handles_.memory, &step), "CVodeGetLastStep", t);
+  if (!(start < t) || start < t - step * (1.0 + 1e-9)) return;
+  double* dense = N_VGetArrayPointer(handles_.scratch);
+  const double middle = 0.5 * (start + t);
+  const std::vector<double>& at_end = step_row_;
+  check(CVodeGetDky(handles_.memory, middle, 0, handles_.scratch), "CVodeGetDky", middle);
+  solve_at(middle, dense);
+  fill_row(middle, dense);
+  const std::vector<double>& at_middle = row_;
+  std::vector<double> peaks;
+  for (std::size_t c = 0; c < row_.size(); ++c) {
+    const double a = std::fabs(result_.steps.value(last, static_cast<int>(c))), b = std::fabs(at_middle[c]),
+                 e = std::fabs(at_end[c]);
+    if (!(b > a && b > e)) continue;
+    // Vertex of the parabola through (−1, a), (0, b), (1, e) in half-steps from the middle.
+    const double offset = 0.5 * (a - e) / (a - 2.0 * b + e);
+    peaks.push_back(middle + std::clamp(offset, -1.0, 1.0) * 0.5 * (t - start));
+  }
+  std::sort(peaks.begin(), peaks.end());
+  peaks.erase(std::unique(peaks.begin(), peaks.end()), peaks.end());
+  for (double peak : peaks) {
+    if (!(peak > start && peak < t)) continue;
+    check(CVodeGetDky(handles_.memory, peak, 0, handles_.scratch), "CVodeGetDky", peak);
+    solve_at(peak, dense);
+    fill_row(peak, dense);
+    result_.steps.add_row(peak, row_);
+  }
+}
+
+// Rows at time t (no width in any integral) where a signal peaks inside the skipped transient: the transient on
+// a grid of a tenth of its shortest time constant (a twentieth moves no stored result, a quarter does), then each
+// column's largest value and largest magnitude refined by the parabola through the grid points around it.
+void Driver::record_skipped_peaks(double t, const SkippedTransient& transient) {
+  if (!options_.record_steps) return;
+  std::vector<double> grid;
+  for (double e = 0.0; e < 3.0 * transient.shortest_time(); e += 0.1 * transient.shortest_time()) grid.push_back(e);
+  for (double e = 3.0 * transient.shortest_time(); e < 10.0 * transient.longest_time(); e *= 1.2) grid.push_back(e);
+  std::vector<double> state(states_), values;
+  const std::size_t columns = row_.size();
+  for (double elapsed : grid) {
+    transient.states_at(elapsed, state.data());
+    solve_at(t, state.data());
+    fill_row(t, state.data());
+    values.insert(values.end(), row_.begin(), row_.end());
+  }
+  std::vector<double> peaks;
+  for (std::size_t c = 0; c < columns; ++c) {
+    for (bool magnitude : {false, true}) {
+      auto value = [&](std::size_t k) { return magnitude ? std::fabs(values[k * columns + c]) : values[k * columns + c]; };
+      std::size_t best = 0;
+      for (std::size_t k = 1; k < grid.size(); ++k)
+        if (value(k) > value(best)) best = k;
+      if (best == 0 || best + 1 >= grid.size()) continue;  // at an end: the rows around the switching hold it
+      const double x0 = grid[best - 1], x1 = grid[best], x2 = grid[best + 1];
+      const double y0 = value(best - 1), y1 = value(best), y2 = value(best + 1);
+      const double denominator = (x0 - x1) * (x0 - x2) * (x1 - x2);
+      const double a = (x2 * (y1 - y0) + x1 * (y0 - y2) + x0 * (y2 - y1)) / denominator;
+      const double b = (x2 * x2 * (y0 - y1) + x1 * x1 * (y2 - y0) + x0 * x0 * (y1 - y2)) / denominator;
+      const double vertex = a < 0.0 ? -b / (2.0 * a) : x1;
+      peaks.push_back(std::clamp(vertex, x0, x2));
+    }
+  }
+  std::sort(peaks.begin(), peaks.end());
+  peaks.erase(std::unique(peaks.begin(), peaks.end()), peaks.end());
+  for (double elapsed : peaks) {
+    transient.states_at(elapsed, state.data());
+    solve_at(t, state.data());
+    fill_row(t, state.data());
+    result_.steps.add_row(t, row_);
+  }
 }
 
 // State events flip the parts' modes (then CVODE restarts); level watches record their crossings.
@@ -590,7 +733,7 @@ void Driver::handle_roots(double reached) {
   }
   if (changed) {
     record_step_row(reached, x());
-    reinitialise(reached);
+    restart(reached);
   }
 }
 

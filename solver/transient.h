@@ -88,6 +88,9 @@ struct Options {
   std::vector<Command> commands;  // scheduled actions (the case's events)
   std::vector<Watch> watches;
   Supervisor* supervisor = nullptr;
+  // Fast states start at their quasi-steady value after a switching when their time constant is below
+  // 100·rtol of every other mode's (solver/fast_states.h); false resolves every transient.
+  bool settle_fast_states = true;
   // Row storage to reuse for Result::steps (studies keep one per worker and hand it back after each sample),
   // so a run allocates no waveform; null: fresh storage.
   Waveform* step_store = nullptr;
@@ -107,6 +110,7 @@ struct Statistics {
   long events = 0;  // commands applied and state events handled
   long reinitialisations = 0;
   long step_backs = 0;
+  long settlings = 0;  // switchings after which fast states started at their quasi-steady value
   double wall_seconds = 0.0;
 };
 
@@ -118,9 +122,12 @@ struct Result {
   double end_time = 0.0;
   Waveform steps;    // one row per step and two per event (before/after)
   Waveform samples;  // uniform grid when Options::sample is set, or the rows at Options::output_times
-  std::vector<double> initial_states, final_states;  // ODE vector: part states, then energy accounts (J)
+  std::vector<double> initial_states, final_states;  // ODE vector: part states, energy accounts (J), ∫i² dt (A²s)
   std::vector<int> final_modes;
   std::vector<double> initial_stored, final_stored;  // per part, J
+  // Stored energy the fast-state settling added (negative: removed), summed over the run: the skipped
+  // transients' share of the energy balance, which no account integrates.
+  double settled_energy = 0.0;
   std::vector<TimelineEntry> timeline;
   std::vector<Crossing> crossings;
   Statistics statistics;

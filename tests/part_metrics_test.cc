@@ -75,7 +75,11 @@ TEST(PartMetrics, ResistivePartsAndMetricNames) {
   EXPECT_EQ(plain[4].name, "average_power");
   // Mean heat over the run: the integrated energy divided by the run's length.
   EXPECT_NEAR(plain[4].value, all[1].energy / result.end_time, 1e-12 * (1.0 + plain[4].value));
-  EXPECT_FALSE(all[1].current_squared_integrated);
+  // A plain resistor's ∫i² dt is a solver quadrature; the trapezoid over the rows agrees to its own error.
+  EXPECT_TRUE(all[1].current_squared_integrated);
+  const double trapezoid = linkrise::analysis::square_integral_trapezoid(
+      result.steps, static_cast<int>(circuit.node_names().size()) + circuit.signal_first(circuit.find_part("r1")));
+  EXPECT_NEAR(all[1].current_squared_time, trapezoid, 1e-3 * trapezoid);
   auto thermal = all[2].named();
   ASSERT_EQ(thermal.size(), 6u);
   EXPECT_EQ(thermal[0].name, "peak_temperature");

@@ -121,6 +121,13 @@ TEST(RunSpec, CaseFileValuesAreReadInSiUnitsWithTheirPlaces) {
   EXPECT_EQ(spec.marks.atol.line, 6);  // a default is marked at the run block (its first key)
 }
 
+TEST(RunSpec, FastStatesSettleByDefaultAndTakeOneOfTwoWords) {
+  EXPECT_TRUE(case_from(capacitor_case("run: {duration: 20 ms}\n")).run.settle_fast_states);
+  EXPECT_FALSE(case_from(capacitor_case("run: {duration: 20 ms, fast_states: resolve}\n")).run.settle_fast_states);
+  auto error = input_error([&] { case_from(capacitor_case("run: {duration: 20 ms, fast_states: skip}\n")); });
+  EXPECT_NE(std::string(error.what()).find("fast_states"), std::string::npos) << error.what();
+}
+
 TEST(RunSpec, BadCaseFileValueIsAnInputErrorAtItsPlace) {
   struct Placed {
     std::string run_lines;

@@ -75,6 +75,7 @@ nlohmann::json solver_summary(const solver::Statistics& s) {
       {"events", quantity(static_cast<double>(s.events), "1")},
       {"reinitialisations", quantity(static_cast<double>(s.reinitialisations), "1")},
       {"step_backs", quantity(static_cast<double>(s.step_backs), "1")},
+      {"fast_state_settlings", quantity(static_cast<double>(s.settlings), "1")},
       {"wall_time", quantity(s.wall_seconds, "s")},
   };
 }
@@ -101,6 +102,7 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
       {"dissipated", quantity(audit.dissipated, "J")},
       {"taken_by_loads", quantity(audit.to_loads, "J")},
       {"stored_change", quantity(audit.stored_change, "J")},
+      {"settled_at_switching", quantity(audit.settled, "J")},
       {"residual", quantity(audit.residual, "J")},
       {"relative_residual", quantity(audit.relative_residual, "1")},
   };

@@ -686,6 +686,7 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
       {"dissipated as heat", display_si(audit.dissipated, "J")},
       {"taken by loads", display_si(audit.to_loads, "J")},
       {"change of stored energy", display_si(audit.stored_change, "J")},
+      {"stored by fast states settled at a switching", display_si(audit.settled, "J")},
       {"residual", display_si(audit.residual, "J")},
       {"residual relative to the largest term", fmt::format("{:.2e}", audit.relative_residual)},
   };
