@@ -571,8 +571,10 @@ void Driver::switch_inside_step(double command_time, double reached) {
     }
     accounts_stale_ = false;
     result_.steps.truncate_after(command_time);
-    record_until(command_time, dense);
+    // The state at the command goes to its own vector first: recording the output rows before it reuses the
+    // dense-output scratch vector (it once restarted the run from the last such row's state).
     std::copy(dense, dense + n_, x());
+    record_until(command_time, x());
     ++result_.statistics.step_backs;
   } else {
     record_until(reached, x());

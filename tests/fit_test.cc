@@ -189,9 +189,21 @@ TEST(Fit, IntervalsCoverTheTruthAtTheirStatedRate) {
 
 // A voltage alone fixes only τ = R·C [R-RC-charge]: the estimates of R and C are correlated beyond the stated
 // threshold and the fit says so, while their product is still recovered (to 0.2 %).
+// The trigger's place is held at its known value here: with the offset free as well, the valley of R and C is so
+// flat that solver noise at rtol decides where Levenberg–Marquardt stops along it, and the offset can end at a
+// bound.
 TEST(Fit, AVoltageOnlyCaptureReportsRAndCAsNotToldApart) {
-  const FitResult fit = fit_rc("fit_rc_voltage", 1.0, 0.0, 5, false);
-  ASSERT_EQ(fit.parameters.size(), 3u);
+  const std::string capture = temp_path("fit_rc_voltage.csv");
+  write_capture(capture, rc_channels(1.0, 0.0, false), -2e-3, 0.7, 3e-4, 5);
+  FitRequest request;
+  request.case_file = write_rc_case("fit_rc_voltage.yaml", capture, false, "", R"(  time_offset: 0.2 ms
+fit:
+  parameters:
+    link.capacitance: {start: 1.5 mF, min: 0.3 mF, max: 5 mF}
+    r_pre.resistance: {start: 80 Ohm, min: 10 Ohm, max: 500 Ohm}
+)");
+  const FitResult fit = run_fit(request);
+  ASSERT_EQ(fit.parameters.size(), 2u);
   EXPECT_GT(std::fabs(fit.correlation[0][1]), linkrise::app::kConfoundedCorrelation);
   bool warned = false;
   for (const auto& warning : fit.warnings) warned = warned || warning.find("cannot be told apart") != std::string::npos;

@@ -84,7 +84,12 @@ TEST(Part, ThermalModelAndDefiningValue) {
   EXPECT_EQ(resistance->parameter, "resistance");
   EXPECT_TRUE(resistance->alone);
   EXPECT_EQ(part(circuit, "link").defining_value()->parameter, "capacitance");
-  EXPECT_FALSE(part(circuit, "ntc").defining_value().has_value());  // its curve has more than one parameter
+  // A thermistor is named by its R25, but its curve has more parameters: setting R25 alone does not make it a
+  // plain resistor of that value.
+  auto ntc = part(circuit, "ntc").defining_value();
+  ASSERT_TRUE(ntc.has_value());
+  EXPECT_EQ(ntc->parameter, "resistance_at_25degC");
+  EXPECT_FALSE(ntc->alone);
 }
 
 TEST(Part, ACableDerivesItsLoopResistanceAndInductanceFromGeometry) {
