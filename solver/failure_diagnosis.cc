@@ -43,7 +43,7 @@ void find_fastest_mode(const FailureEvidence& evidence, FailureDiagnosis& diagno
   if (std::fabs(lambda.imag()) > std::fabs(lambda.real())) {
     diagnosis.ringing_frequency = std::fabs(lambda.imag()) / (2.0 * std::numbers::pi);
   }
-  const auto vector = solver.eigenvectors().col(fastest);
+  const Eigen::VectorXcd vector = solver.eigenvectors().col(fastest);  // a copy: eigenvectors() is a temporary
   bool weighted = evidence.error_weights.size() == static_cast<std::size_t>(vector.size());
   double largest = -1.0;
   for (Eigen::Index i = 0; i < vector.size(); ++i) {
