@@ -8,7 +8,16 @@ WERROR ?= ON
 LAUNCHER := $(if $(shell command -v ccache),-DCMAKE_CXX_COMPILER_LAUNCHER=ccache)
 export CCACHE_BASEDIR ?= $(CURDIR)
 
-.PHONY: all deps build demo test bench clean
+# The checking build: clang with AddressSanitizer + UndefinedBehaviorSanitizer on every target and the libFuzzer
+# targets (its CTest runs the unit tests, the malformed-input catalogue, the stored cases and each fuzz target for
+# FUZZ_TEST_SECONDS). -O1 keeps sanitizer stack traces readable and the build short.
+CHECK_BUILD ?= build-check
+FUZZ_TEST_SECONDS ?= 30
+FUZZ_SECONDS ?= 600
+export ASAN_OPTIONS ?= detect_leaks=1
+export UBSAN_OPTIONS ?= print_stacktrace=1:halt_on_error=1
+
+.PHONY: all deps build check-build demo test fuzz bench clean
 
 all: build
 
@@ -19,14 +28,26 @@ build: deps
 	@cmake -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=Release -DLINKRISE_WERROR=$(WERROR) $(LAUNCHER) > /dev/null
 	@cmake --build $(BUILD) -j $(JOBS)
 
+check-build: deps
+	@cmake -S . -B $(CHECK_BUILD) -DCMAKE_CXX_COMPILER=clang++ -DCMAKE_BUILD_TYPE=Debug \
+	  -DCMAKE_CXX_FLAGS_DEBUG="-O1 -g1" -DLINKRISE_FUZZ=ON -DLINKRISE_FUZZ_SECONDS=$(FUZZ_TEST_SECONDS) \
+	  -DLINKRISE_WERROR=$(WERROR) $(LAUNCHER) > /dev/null
+	@cmake --build $(CHECK_BUILD) -j $(JOBS)
+
 demo: build
 	$(BUILD)/linkrise run cases/demo_storage_rack.yaml -o out/demo --report out/demo/report.html
 
-test: build
+test: build check-build
 	cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
+	cd $(CHECK_BUILD) && ctest --output-on-failure -j $(JOBS)
+
+# Each fuzz target for FUZZ_SECONDS (default 10 minutes) on the corpus kept in $(CHECK_BUILD)/fuzz-work.
+fuzz: check-build
+	bash scripts/fuzz.sh quantity $(CHECK_BUILD)/fuzz/quantity_fuzz $(FUZZ_SECONDS) $(CHECK_BUILD)/fuzz-work
+	bash scripts/fuzz.sh case $(CHECK_BUILD)/fuzz/case_fuzz $(FUZZ_SECONDS) $(CHECK_BUILD)/fuzz-work
 
 bench: build
 	$(BUILD)/linkrise_bench
 
 clean:
-	rm -rf $(BUILD) out
+	rm -rf $(BUILD) $(CHECK_BUILD) out

@@ -70,8 +70,9 @@ void explain(StallDiagnostic& d) {
         drawn, format_si(d.equilibrium, "V"), format_si(d.link_voltage, "V"), format_si(d.closing_level, "V"));
   } else {
     d.explanation = fmt::format(
-        "no stall: with {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {}, above the closing level {}", drawn,
-        format_si(d.equilibrium, "V"), format_si(d.closing_level, "V"));
+        "no stall: with {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {} (measured {} at the end of the attempt), "
+        "above the closing level {}",
+        drawn, format_si(d.equilibrium, "V"), format_si(d.link_voltage, "V"), format_si(d.closing_level, "V"));
   }
 }
 }  // namespace

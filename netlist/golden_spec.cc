@@ -29,6 +29,7 @@ Golden read_golden(const std::filesystem::path& path) {
     ParameterReader reader(*defaults, "the golden defaults");
     golden.relative = reader.quantity("relative", Dimension::none(), Bound::NonNegative, golden.relative);
     golden.absolute = reader.quantity("absolute", Dimension::none(), Bound::NonNegative, golden.absolute);
+    golden.floor = reader.quantity("floor", Dimension::none(), Bound::NonNegative, golden.floor);
     reader.finish();
   }
   if (const Tree* metrics = top.child("metrics")) {

@@ -32,7 +32,7 @@ std::vector<LimitSpec> read_limits(const Tree& root) {
       auto quantity = node->is_scalar() ? parse_quantity(node->text, problem) : std::nullopt;
       if (!quantity) {
         throw InputError(node->mark,
-                         fmt::format("limit '{}' {}: '{}' is not a quantity{}", metric, key, node->text,
+                         fmt::format("limit '{}' {}: '{}' is not a quantity{}", limit.metric, key, node->text,
                                      problem.empty() ? "" : " (" + problem + ")"),
                          "write a value with its unit, e.g. '150 J' or '250 ms'");
       }

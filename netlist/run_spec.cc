@@ -50,6 +50,11 @@ std::optional<FieldProblem> check_times(const RunSpec& run) {
     return problem("max_step", run.max_step, "must not be negative", "it bounds the solver's step (0: no bound)",
                    "write '0 s' for no bound or a positive time such as '1 ms'", run.marks.max_step);
   }
+  if (!(run.max_wall_time > 0.0)) {
+    return problem("max_wall_time", run.max_wall_time, "must be greater than 0 s",
+                   "it is the wall-clock time one run may take before the solver gives up",
+                   "write a positive time such as '60 s' (the default is 300 s)", run.marks.max_wall_time);
+  }
   if (run.sample && !(*run.sample > 0.0)) {
     return problem("sample", *run.sample, "must be greater than 0 s", "it is the spacing of the output grid",
                    "write a positive time such as '100 us', or leave it out for one row per step",
@@ -62,9 +67,9 @@ std::optional<FieldProblem> check_times(const RunSpec& run) {
 std::optional<FieldProblem> check_run(const RunSpec& run) {
   const std::pair<const char*, double> finite_fields[] = {
       {"duration", run.duration}, {"rtol", run.relative_tolerance}, {"atol", run.absolute_tolerance},
-      {"max_step", run.max_step}, {"sample", run.sample.value_or(1.0)}};
-  const SourceMark* marks[] = {&run.marks.duration, &run.marks.rtol, &run.marks.atol, &run.marks.max_step,
-                               &run.marks.sample};
+      {"max_step", run.max_step}, {"sample", run.sample.value_or(1.0)}, {"max_wall_time", run.max_wall_time}};
+  const SourceMark* marks[] = {&run.marks.duration, &run.marks.rtol,   &run.marks.atol,
+                               &run.marks.max_step, &run.marks.sample, &run.marks.max_wall_time};
   for (std::size_t i = 0; i < std::size(finite_fields); ++i) {
     if (auto found = not_finite(finite_fields[i].first, finite_fields[i].second, *marks[i])) return found;
   }
@@ -104,9 +109,11 @@ RunSpec read_run(const Tree& block) {
   run.sample = reader.optional("sample", Dimension::time(), Bound::Any);
   run.max_steps = reader.count("max_steps", static_cast<int>(run.max_steps), 0);
   run.settle_fast_states = reader.word("fast_states", {"settle", "resolve"}, "settle") == "settle";
+  run.max_wall_time = reader.quantity("max_wall_time", Dimension::time(), Bound::Any, run.max_wall_time);
   reader.finish();
-  run.marks = {reader.mark("duration"), reader.mark("rtol"),   reader.mark("atol"),
-               reader.mark("max_step"), reader.mark("sample"), reader.mark("max_steps")};
+  run.marks = {reader.mark("duration"), reader.mark("rtol"),      reader.mark("atol"),
+               reader.mark("max_step"), reader.mark("sample"),    reader.mark("max_steps"),
+               reader.mark("max_wall_time")};
   require_valid_run(run);
   return run;
 }

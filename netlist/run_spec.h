@@ -18,6 +18,8 @@
 //              tight reference runs that judge the default accuracy resolve everything)
 //   max_steps  >= 10 (even a single RC charge takes dozens of steps: BDF starts at order 1 with a tiny first
 //              step, so a smaller limit is a slip)
+//   max_wall_time  > 0 s, finite (the wall-clock budget of one run; a pre-charge case solves in milliseconds, so
+//              the default of 5 min only ends a run that is stuck, with the solver's reason)
 #include <optional>
 #include <string>
 
@@ -34,11 +36,12 @@ struct RunSpec {
   std::optional<double> sample;        // s; uniform output grid from dense output
   long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
   bool settle_fast_states = true;      // `fast_states: settle`; false for `resolve`
+  double max_wall_time = 300.0;        // s of wall-clock time; the solver gives up (exit 3) after it
 
   // Where each value was written: its place in the case file (or of an override), an option such as
   // "option --rtol" (line 0), or the run block's own place for a default.
   struct Marks {
-    SourceMark duration, rtol, atol, max_step, sample, max_steps;
+    SourceMark duration, rtol, atol, max_step, sample, max_steps, max_wall_time;
   } marks;
 };
 

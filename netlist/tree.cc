@@ -8,6 +8,7 @@
 #include <system_error>
 
 #include <fmt/format.h>
+#include <yaml-cpp/eventhandler.h>
 #include <yaml-cpp/yaml.h>
 
 namespace linkrise::netlist {
@@ -42,7 +43,7 @@ void Tree::set(const std::string& key, Tree value) {
   }
   if (kind == Kind::Null) kind = Kind::Map;
   key_marks.push_back(value.mark);
-  entries.emplace_back(key, std::move(value));
+  entries.push_back({key, std::move(value)});
 }
 
 Tree Tree::scalar(std::string text, SourceMark mark) {
@@ -149,7 +150,7 @@ Tree convert(const YAML::Node& node, const std::string& file, const std::vector<
                            "keep one of the two entries");
         }
         tree.key_marks.push_back(key_mark);
-        tree.entries.emplace_back(key, convert(entry.second, file, lines));
+        tree.entries.push_back({key, convert(entry.second, file, lines)});
       }
       break;
   }
@@ -173,6 +174,40 @@ std::size_t utf8_length(const std::string& text, std::size_t i) {
     return 0;
   }
   return length;
+}
+
+// Where each YAML document of the text begins, read one document at a time. yaml-cpp 0.7's LoadAll never returns
+// on a token that fits no node (a ',' in block context, as in "  - a" followed by " ,"): the parser reports the
+// same empty document again and again without moving on, so a document that starts where the last one did is a
+// syntax error at that place. Reading stops once a second document is known to exist.
+class DocumentStarts : public YAML::EventHandler {
+ public:
+  std::vector<YAML::Mark> starts;
+  void OnDocumentStart(const YAML::Mark& mark) override { starts.push_back(mark); }
+  void OnDocumentEnd() override {}
+  void OnNull(const YAML::Mark&, YAML::anchor_t) override {}
+  void OnAlias(const YAML::Mark&, YAML::anchor_t) override {}
+  void OnScalar(const YAML::Mark&, const std::string&, YAML::anchor_t, const std::string&) override {}
+  void OnSequenceStart(const YAML::Mark&, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {}
+  void OnSequenceEnd() override {}
+  void OnMapStart(const YAML::Mark&, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {}
+  void OnMapEnd() override {}
+};
+
+std::vector<YAML::Mark> document_starts(const std::string& text, const std::string& file) {
+  std::istringstream stream(text);
+  YAML::Parser parser(stream);
+  DocumentStarts handler;
+  auto& starts = handler.starts;
+  while (starts.size() < 3 && parser.HandleNextDocument(handler)) {
+    if (starts.size() >= 2 && starts[starts.size() - 1].pos == starts[starts.size() - 2].pos) {
+      const YAML::Mark& stuck = starts.back();
+      char found = stuck.pos >= 0 && static_cast<std::size_t>(stuck.pos) < text.size() ? text[stuck.pos] : ' ';
+      throw InputError(to_mark(stuck, file), fmt::format("YAML syntax: '{}' cannot stand here", found),
+                       "quote a value that holds it, or remove it (a list item starts with '- ')");
+    }
+  }
+  return starts;
 }
 
 // The case file must be UTF-8 text: yaml-cpp would replace a stray byte silently, so a Latin-1 "é" in a name
@@ -209,12 +244,14 @@ void check_text(const std::string& text, const std::string& file) {
 Tree parse_yaml(const std::string& text, const std::string& file_name) {
   check_text(text, file_name);
   try {
-    std::vector<YAML::Node> documents = YAML::LoadAll(text);
-    if (documents.size() > 1) {
+    std::vector<YAML::Mark> starts = document_starts(text, file_name);
+    if (starts.size() > 1) {
       // A second document (after ---) would be ignored without a word.
-      throw InputError(to_mark(documents[1].Mark(), file_name), "a second YAML document: a case file holds one",
+      throw InputError(to_mark(starts[1], file_name), "a second YAML document: a case file holds one",
                        "remove the '---' line and what follows, or put the second case in a file of its own");
     }
+    std::vector<YAML::Node> documents;
+    if (!starts.empty()) documents.push_back(YAML::Load(text));
     std::vector<std::string> lines;
     std::istringstream stream(text);
     for (std::string line; std::getline(stream, line);) lines.push_back(line);

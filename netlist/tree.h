@@ -10,13 +10,15 @@
 
 namespace linkrise::netlist {
 
+struct TreeEntry;
+
 struct Tree {
   enum class Kind { Null, Scalar, List, Map };
   Kind kind = Kind::Null;
   std::string text;                                 // scalars only
   SourceMark mark;                                  // where the value starts
   std::vector<Tree> items;                          // lists
-  std::vector<std::pair<std::string, Tree>> entries;  // maps, in file order
+  std::vector<TreeEntry> entries;                   // maps, in file order
   std::vector<SourceMark> key_marks;                // maps: where each key starts
 
   bool is_map() const { return kind == Kind::Map; }
@@ -30,6 +32,13 @@ struct Tree {
   /// Sets or adds a map entry.
   void set(const std::string& key, Tree value);
   static Tree scalar(std::string text, SourceMark mark = {});
+};
+
+/// A map entry. A named struct, not std::pair<std::string, Tree>: a pair of the incomplete Tree inside Tree's
+/// own definition does not compile with clang and libstdc++ (the fuzzing and sanitizer build uses clang).
+struct TreeEntry {
+  std::string first;  // the key
+  Tree second;        // the value
 };
 
 /// Reads YAML text into a tree. Throws InputError with the position of a syntax error.

@@ -84,6 +84,10 @@ bool lookup_symbol(std::string_view text, int power, double& scale, Dimension& d
   return false;
 }
 
+// No engineering unit raises a base unit beyond this power (a farad is s^4); the bound keeps the integer exponents
+// from overflowing and every accepted unit writable again by Dimension::symbol().
+constexpr int max_unit_power = 20;
+
 // One factor such as "mm²", "kOhm", "s^2". Returns false when it is not a known unit.
 bool parse_factor(std::string_view text, double& scale, Dimension& dimension, std::string& problem) {
   // As written first: symbols that carry their own power (A²s, A^2s) are in the table whole.
@@ -94,6 +98,10 @@ bool parse_factor(std::string_view text, double& scale, Dimension& dimension, st
     auto result = std::from_chars(digits.data(), digits.data() + digits.size(), power);
     if (result.ec != std::errc() || result.ptr != digits.data() + digits.size()) {
       problem = fmt::format("bad power '{}' in unit", digits);
+      return false;
+    }
+    if (std::abs(power) > max_unit_power) {  // larger powers would overflow the exponents
+      problem = fmt::format("power '{}' in unit lies outside -{} … {}", digits, max_unit_power, max_unit_power);
       return false;
     }
     text = text.substr(0, caret);
@@ -204,7 +212,16 @@ std::string Dimension::symbol() const {
   for (const auto& entry : named_dimensions()) {
     if (entry.dimension == *this) return std::string(entry.symbol);
   }
-  return describe();
+  // A dimension without a name: a product of base units that parse_quantity reads back ("kg*m^2*s^-3*A^-1").
+  static constexpr std::array<std::string_view, 5> base{"kg", "m", "s", "A", "K"};
+  std::string text;
+  for (int i = 0; i < 5; ++i) {
+    if (exponent[i] == 0) continue;
+    if (!text.empty()) text += "*";
+    text += base[i];
+    if (exponent[i] != 1) text += fmt::format("^{}", exponent[i]);
+  }
+  return text;
 }
 
 namespace {
@@ -269,6 +286,12 @@ bool parse_compound_unit(std::string_view unit, double& scale, Dimension& dimens
     }
     position = i + (is_dot ? std::string_view("·").size() : 1);
     if (is_dot) i += std::string_view("·").size() - 1;
+  }
+  for (int exponent : dimension.exponent) {
+    if (std::abs(exponent) > max_unit_power) {
+      problem = fmt::format("unit '{}' raises a base unit beyond the power {}", unit, max_unit_power);
+      return false;
+    }
   }
   return true;
 }

@@ -15,6 +15,7 @@
 
 #include "solver/equations.h"
 #include "solver/fast_states.h"
+#include "solver/failure_diagnosis.h"
 #include "solver/sundials_check.h"
 
 namespace linkrise::solver {
@@ -62,6 +63,7 @@ Options options_from(const Circuit& circuit) {
   options.max_step = spec.run.max_step;
   options.max_steps = spec.run.max_steps;
   options.settle_fast_states = spec.run.settle_fast_states;
+  options.max_wall_time = spec.run.max_wall_time;
   options.sample = spec.run.sample;
   for (const auto& event : spec.events) {
     options.commands.push_back(Command{event.at, circuit.find_part(event.target), event.action, "scheduled event"});
@@ -322,6 +324,8 @@ class Driver {
   void take_sample(double sample_time);
   void handle_roots(double reached);
   void record_failure(const SolverError& error);
+  FailureEvidence failure_evidence(const SolverError& error);
+  void check_budgets(double reached);
   void collect_statistics(std::chrono::steady_clock::time_point started);
   // Applies every pending command at time t (states in x()). Returns true when a mode changed.
   bool apply_commands(double t);
@@ -354,6 +358,8 @@ class Driver {
   Statistics harvested_;
   bool cvode_ready_ = false;  // every CVODE object attached: the statistics can be read
   long steps_taken_ = 0;      // CVODE steps of the whole run, against Options::max_steps
+  GiveUp give_up_ = GiveUp::SolverTrouble;  // why a SolverError ended the run (a budget, or CVODE's trouble)
+  std::chrono::steady_clock::time_point started_ = std::chrono::steady_clock::now();
 };
 
 // CVODE's own messages are replaced by check(), which names the call and the time.
@@ -536,9 +542,7 @@ double Driver::advance(double t) {
   int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
   check(flag, "CVode", reached);
   accounts_stale_ = true;
-  if (++steps_taken_ > options_.max_steps) {
-    throw SolverError(fmt::format("more than {} steps before t = {:.9g} s", options_.max_steps, reached), reached);
-  }
+  check_budgets(reached);
   if (auto switched = visit_step(reached)) return *switched;
   record_until(reached, x());
   if (flag == CV_ROOT_RETURN) handle_roots(reached);
@@ -739,10 +743,71 @@ void Driver::handle_roots(double reached) {
   }
 }
 
+// The step budget (run.max_steps) every step; the wall-clock budget (run.max_wall_time) every 64 steps, since
+// reading the clock costs about as much as a small step.
+void Driver::check_budgets(double reached) {
+  if (++steps_taken_ > options_.max_steps) {
+    give_up_ = GiveUp::StepBudget;
+    throw SolverError(fmt::format("more than {} steps (run.max_steps) before t = {:.9g} s", options_.max_steps,
+                                  reached),
+                      reached);
+  }
+  if (steps_taken_ % 64 != 0) return;
+  double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - started_).count();
+  if (wall > options_.max_wall_time) {
+    give_up_ = GiveUp::WallBudget;
+    throw SolverError(fmt::format("more than {:g} s of wall-clock time (run.max_wall_time) before t = {:.9g} s, "
+                                  "after {} steps",
+                                  options_.max_wall_time, reached, steps_taken_),
+                      reached);
+  }
+}
+
+// What CVODE can still tell after it stopped: the step size, the error weights and local error estimates of the
+// last step, and the Jacobian at the last accepted state. Each read is best effort.
+FailureEvidence Driver::failure_evidence(const SolverError& error) {
+  FailureEvidence evidence;
+  evidence.reason = give_up_;
+  evidence.cause = error.what();
+  evidence.time = error.time();
+  evidence.duration = options_.duration;
+  evidence.max_step = options_.max_step;
+  const auto& info = circuit_.state_info();
+  for (const auto& state : info) {
+    evidence.state_quantities.push_back(state.name);
+    evidence.state_units.push_back(state.unit);
+  }
+  evidence.state_parts.resize(info.size());
+  for (int p = 0; p < circuit_.part_count(); ++p) {
+    int first = circuit_.layout(p).state;
+    std::size_t count = first < 0 ? 0 : circuit_.part(p).states(circuit_.spec().ambient).size();
+    for (std::size_t k = 0; k < count; ++k) evidence.state_parts[first + k] = circuit_.part(p).name();
+  }
+  if (!cvode_ready_ || states_ == 0) return evidence;
+  double step = 0.0;
+  if (CVodeGetCurrentStep(handles_.memory, &step) == CV_SUCCESS && step > 0.0) evidence.step = step;
+  N_Vector vector = N_VClone(handles_.states);
+  if (vector != nullptr) {
+    const double* values = N_VGetArrayPointer(vector);
+    if (CVodeGetErrWeights(handles_.memory, vector) == CV_SUCCESS) evidence.error_weights.assign(values, values + states_);
+    if (CVodeGetEstLocalErrors(handles_.memory, vector) == CV_SUCCESS) evidence.local_errors.assign(values, values + states_);
+    N_VDestroy(vector);
+  }
+  try {
+    solve_at(error.time(), x());
+    evidence.jacobian.resize(states_, states_);
+    equations_.jacobian(error.time(), x(), modes_.data(), unknowns_.data(), evidence.jacobian.data());
+  } catch (const SolverError&) {
+    evidence.jacobian.resize(0, 0);  // no operating point at the last state: no modes to report
+  }
+  return evidence;
+}
+
 void Driver::record_failure(const SolverError& error) {
   result_.outcome = Outcome::SolverFailure;
-  result_.message = error.what();
   result_.end_time = error.time();
+  FailureEvidence evidence = failure_evidence(error);
+  result_.message = std::string(error.what()) + "\n" + failure_text(evidence, diagnose_failure(evidence));
   if (!handles_.states) return;
   // After a failure these reads are best effort: the failure's own message is what the run reports, and the
   // accounts and counters keep their last values read.
@@ -770,7 +835,7 @@ void Driver::collect_statistics(std::chrono::steady_clock::time_point started) {
 }
 
 Result Driver::run() {
-  auto started = std::chrono::steady_clock::now();
+  auto started = started_;
   const double t0 = 0.0;
   result_.initial_states = circuit_.initial_states();
   try {

@@ -85,6 +85,7 @@ struct Options {
   std::vector<int> output_columns;
   bool record_steps = true;      // one row per solver step (plus event rows)
   long max_steps = 2'000'000;
+  double max_wall_time = 300.0;   // s of wall-clock time before the run gives up (exit 3, with a reason)
   std::vector<Command> commands;  // scheduled actions (the case's events)
   std::vector<Watch> watches;
   Supervisor* supervisor = nullptr;

@@ -84,6 +84,33 @@ TEST(GoldenCompare, ToleranceEdges) {
   EXPECT_NEAR(rows[0].allowed, 0.1, 1e-12);
 }
 
+TEST(GoldenCompare, FloorScalesWithTheLargestValueOfTheSameOwnerAndUnit) {
+  // The stored values of sequence_bad_design and sequence_stall: a 3.8e-7 V overshoot beside a 400 V pack voltage
+  // (solver noise: rtol 1e-7 of 400 V is 4e-5 V) and the 5.7e-13 A²s leak of an open contact with no larger I²t of
+  // its own part.
+  Golden golden;  // the built-in defaults: relative 1e-4, absolute 0, floor 1e-6
+  golden.metrics = {{"sequence.link_overshoot", 3.84448279e-07, "V", {}, {}},
+                    {"sequence.minimum_pack_voltage", 399.8837008, "V", {}, {}},
+                    {"k_main.current_squared_time", 5.667873069e-13, "A²s", {}, {}},
+                    {"r_pre.current_squared_time", 5.568105423, "A²s", {}, {}}};
+  auto rows = compare_with_golden(golden, "", "",
+                                  {{"sequence.link_overshoot", 5e-5, "V"},
+                                   {"sequence.minimum_pack_voltage", 399.8837008, "V"},
+                                   {"k_main.current_squared_time", 5.6682e-13, "A²s"},
+                                   {"r_pre.current_squared_time", 5.568105423, "A²s"}});
+  ASSERT_EQ(rows.size(), 4u);
+  EXPECT_NEAR(rows[0].allowed, 1e-6 * 399.8837008, 1e-15);
+  EXPECT_TRUE(rows[0].pass) << "the overshoot may move within the voltage's noise";
+  EXPECT_NEAR(rows[2].allowed, 1e-4 * 5.667873069e-13, 1e-25);  // its own relative band; r_pre's I²t is another owner
+  EXPECT_TRUE(rows[2].pass);
+  rows = compare_with_golden(golden, "", "", {{"sequence.link_overshoot", 5e-4, "V"},
+                                              {"sequence.minimum_pack_voltage", 399.8837008, "V"},
+                                              {"k_main.current_squared_time", 5.7e-13, "A²s"},
+                                              {"r_pre.current_squared_time", 5.568105423, "A²s"}});
+  EXPECT_FALSE(rows[0].pass) << "0.5 mV is more than the noise of a 400 V link";
+  EXPECT_FALSE(rows[2].pass) << "a 0.6 % move of the leak is caught (a fixed 1e-9 floor let it take any value)";
+}
+
 TEST(GoldenCompare, OutcomeVerdictUnitAndMissingMetric) {
   Golden golden;
   golden.outcome = "closed";

@@ -228,8 +228,28 @@ TEST_F(Cli, SolverFailureExitsWithThreeAndItsOwnMessage) {
   Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
   EXPECT_EQ(result.exit_code, 3) << result.err;
   EXPECT_NE(result.err.find("solver failure"), std::string::npos) << result.err;
-  EXPECT_NE(result.err.find("steps before t ="), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("steps (run.max_steps) before t ="), std::string::npos) << result.err;
+  // The reason in the circuit's terms: R·C = 1 Ohm × 1 uF = 1 us ([R-RC-charge]), and the 1 ps step bound
+  // holds the step a million times below it.
+  EXPECT_NE(result.err.find("step size reached: 1 ps"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("fastest time constant of the circuit: 1 µs, mostly part 'c1' charge_voltage"),
+            std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("The step is held at run.max_step = 1 ps"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("suggestion:"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("raise run.max_steps"), std::string::npos) << result.err;
   EXPECT_EQ(result.err.find("error:"), std::string::npos) << "not reported as an input error: " << result.err;
+  EXPECT_TRUE(empty_directory(output));
+}
+
+TEST_F(Cli, WallClockBudgetEndsTheRunWithItsReason) {
+  // A budget of 1 µs is used up by the first 64 steps, whose clock check ends the run with exit 3.
+  fs::path output = directory_ / "wall_out";
+  fs::path file = write_capacitor_case("wall_limit.yaml", "run: {duration: 1 s, max_step: 1 ns, max_wall_time: 1 us}");
+  Outcome result = run("run \"" + file.string() + "\" -q -o \"" + output.string() + "\"");
+  EXPECT_EQ(result.exit_code, 3) << result.err;
+  EXPECT_NE(result.err.find("of wall-clock time (run.max_wall_time) before t ="), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("after 64 steps"), std::string::npos) << result.err;
+  EXPECT_NE(result.err.find("raise run.max_wall_time"), std::string::npos) << result.err;
   EXPECT_TRUE(empty_directory(output));
 }
 

@@ -11,6 +11,7 @@
 #include <set>
 #include <string>
 
+#include "netlist/case_document.h"
 #include "netlist/input_error.h"
 #include "tests/circuit_fixture.h"
 
@@ -83,11 +84,32 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
 // and the rise check fires; in the clean case (~409 V, 33 Ω, 100 W) it is ~8 V, below the floor, so the link
 // escapes and closes.
 TEST(Faults, ConstantPowerExpectationFollowsTheQuadratic) {
+  // The expectation from the case's own data, not from the run: source voltage and resistance, the path's
+  // contact and pre-charge resistances, the load's power and its resistive floor (10 V, the model's default).
+  auto document = linkrise::netlist::CaseDocument::load(stored("sequence_stall.yaml"));
+  const linkrise::netlist::SourceMark here{"faults_test", 0, 0};
+  auto value = [&](const std::string& path) {
+    auto quantity = document.quantity_at(path, here);
+    EXPECT_TRUE(quantity.has_value()) << path;
+    return quantity ? quantity->value : 0.0;
+  };
+  const double vs = value("pack.voltage");
+  const double r = value("pack.series_resistance") + value("k_pre.closed_resistance") + value("r_pre.resistance");
+  const double p = value("dcdc.power");
+  const double floor = 10.0;
+  ASSERT_LT(4.0 * p * r, vs * vs) << "the quadratic has real roots";
+  const double lower_root = (vs - std::sqrt(vs * vs - 4.0 * p * r)) / 2.0;  // [R-CPL-equilibrium]
+  EXPECT_NEAR(lower_root, 116.1, 0.1);  // 400 V, 47.09 Ohm, 700 W (k_neg's default 0.3 mOhm moves it by 1 mV)
+  const std::string closed_form = lower_root > floor ? "no_rise" : "closed";
   DetectionMatrix stalled = linkrise::app::detection_matrix(stored("sequence_stall.yaml"), 1);
   const auto& bottom = row(stalled, "constant_power_from_start");
+  EXPECT_EQ(bottom.expected_word(), closed_form);
   EXPECT_EQ(bottom.expected_word(), "no_rise");
   EXPECT_EQ(bottom.actual_word(), "no_rise");
   EXPECT_TRUE(contains(bottom.note, "lower root")) << bottom.note;
+  // The note states what the run measured, and it agrees with the prediction (the link stays below the root).
+  EXPECT_TRUE(contains(bottom.note, "the run measured the link at")) << bottom.note;
+  EXPECT_FALSE(contains(bottom.note, "does not hold")) << bottom.note;
   EXPECT_TRUE(stalled.pass()) << linkrise::app::matrix_text(stalled);
   EXPECT_EQ(row(stalled, "light_converter_load").actual_word(), "closed");
   DetectionMatrix clean = linkrise::app::detection_matrix(stored("sequence_clean_close.yaml"), 1);

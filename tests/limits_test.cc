@@ -92,11 +92,11 @@ TEST(Limits, WrongUnitIsAnErrorAtTheBound) {
 }
 
 TEST(Limits, MalformedEntriesAreRejectedWhileReading) {
-  auto neither = input_error([] { case_from(kParts + "  r1.energy: {margin: 5 %}\n").limits; });
+  auto neither = input_error([] { (void)case_from(kParts + "  r1.energy: {margin: 5 %}\n").limits; });
   EXPECT_TRUE(contains(neither.what(), "neither 'min' nor 'max'")) << neither.what();
-  auto typo = input_error([] { case_from(kParts + "  r1.energy: {maxi: 5 J}\n").limits; });
+  auto typo = input_error([] { (void)case_from(kParts + "  r1.energy: {maxi: 5 J}\n").limits; });
   EXPECT_TRUE(contains(typo.what(), "did you mean 'max'?")) << typo.what();
-  auto order = input_error([] { case_from(kParts + "  r1.energy: {min: 5 J, max: 1 J}\n").limits; });
+  auto order = input_error([] { (void)case_from(kParts + "  r1.energy: {min: 5 J, max: 1 J}\n").limits; });
   EXPECT_TRUE(contains(order.what(), "min must lie below max")) << order.what();
 }
 

@@ -18,7 +18,7 @@
 namespace {
 constexpr double kV = 400.0, kTau = 0.02, kR = 20.0, kAlpha = 500.0, kOmega = 2.0 * M_PI * 1000.0, kI = 300.0;
 constexpr double kH = 1e-5;
-const double kStart = 1000 * kH, kClose = 10000 * kH, kEnd = 20000 * kH;
+const double kStart = 1000 * kH, kClose = 10000 * kH;
 const double kStep = kV * std::exp(-(kClose - kStart) / kTau);  // ΔV left at closure
 
 struct Values {

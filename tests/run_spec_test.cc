@@ -36,7 +36,8 @@ RunSpec marked_run() {
   run.duration = 1.0;
   run.sample = 1e-3;
   run.marks = {SourceMark{"f", 1, 1}, SourceMark{"f", 2, 1}, SourceMark{"f", 3, 1},
-               SourceMark{"f", 4, 1}, SourceMark{"f", 5, 1}, SourceMark{"f", 6, 1}};
+               SourceMark{"f", 4, 1}, SourceMark{"f", 5, 1}, SourceMark{"f", 6, 1},
+               SourceMark{"f", 7, 1}};
   return run;
 }
 
@@ -77,6 +78,8 @@ TEST(RunSpec, EachBadFieldIsNamedWithItsValueAndRule) {
       {"max_step", 4, [](RunSpec& r) { r.max_step = -1e-3; }, -1e-3, "must not be negative"},
       {"sample", 5, [](RunSpec& r) { r.sample = 0.0; }, 0.0, "must be greater than 0 s"},
       {"max_steps", 6, [](RunSpec& r) { r.max_steps = 9; }, 9.0, "must be at least 10"},
+      {"max_wall_time", 7, [](RunSpec& r) { r.max_wall_time = 0.0; }, 0.0, "must be greater than 0 s"},
+      {"max_wall_time", 7, [&](RunSpec& r) { r.max_wall_time = infinity; }, infinity, "must be a finite number"},
   };
   for (const auto& bad : cases) {
     RunSpec run = marked_run();

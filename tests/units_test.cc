@@ -96,6 +96,16 @@ TEST(Units, RejectsBadText) {
   EXPECT_FALSE(parse_quantity("3 J//K", problem));
 }
 
+TEST(Units, RefusesPowersBeyondAnyEngineeringUnit) {
+  // Found by the quantity fuzz target: a power of 1160792651 overflowed the integer exponents.
+  std::string problem;
+  EXPECT_FALSE(parse_quantity("51 Ohm^1160792651", problem));
+  EXPECT_NE(problem.find("lies outside -20 … 20"), std::string::npos) << problem;
+  EXPECT_FALSE(parse_quantity("1 F^6*s^2", problem));  // s^26 in all, each factor allowed
+  EXPECT_NE(problem.find("beyond the power 20"), std::string::npos) << problem;
+  EXPECT_TRUE(parse_quantity("1 F^5", problem)) << problem;  // s^20: the largest accepted
+}
+
 TEST(Units, FormatsWithPrefixes) {
   EXPECT_EQ(linkrise::netlist::format_si(0.0012, "F"), "1.2 mF");
   EXPECT_EQ(linkrise::netlist::format_si(47000, "Ohm"), "47 kOhm");
@@ -197,6 +207,19 @@ TEST(QuantityText, EveryDimensionReadsBackInItsSiSymbol) {
     EXPECT_TRUE(quantity->dimension == dimension) << text;
     EXPECT_EQ(quantity->value, value) << text;
   }
+}
+
+TEST(QuantityText, ADimensionWithoutANameReadsBackAsAProductOfBaseUnits) {
+  // Found by the quantity fuzz target: "5 K/V" was written with spaces between its base units and did not read back.
+  std::string problem;
+  auto quantity = parse_quantity("5 K/V", problem);
+  ASSERT_TRUE(quantity.has_value()) << problem;
+  const std::string text = quantity_text(quantity->value, quantity->dimension, false);
+  EXPECT_EQ(text, "5 kg^-1*m^-2*s^3*A*K");  // V = kg·m²·s⁻³·A⁻¹ ([R-SI])
+  auto again = parse_quantity(text, problem);
+  ASSERT_TRUE(again.has_value()) << text << ": " << problem;
+  EXPECT_TRUE(again->dimension == quantity->dimension);
+  EXPECT_EQ(again->value, quantity->value);
 }
 
 TEST(ShownUnit, FractionsInPercentTemperaturesInDegreesCelsiusDifferencesInKelvin) {

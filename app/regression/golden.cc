@@ -1,5 +1,6 @@
 #include "app/regression/golden.h"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -16,10 +17,12 @@ std::filesystem::path golden_path(const std::filesystem::path& case_file) {
 std::string golden_text(const Golden& golden, const std::string& case_name) {
   std::string text = fmt::format(
       "# Golden results for {} — written by `linkrise check --update`.\n"
-      "# Tolerances may be edited: a metric passes when |actual - value| <= max(absolute, relative * |value|).\n",
+      "# Tolerances may be edited: a metric passes when |actual - value| <= max(absolute, relative * |value|,\n"
+      "# floor * scale), the scale being the largest |value| of the same owner (name before the first '.') and unit.\n",
       case_name);
   text += fmt::format("outcome: {}\nverdict: {}\n", golden.outcome, golden.verdict);
-  text += fmt::format("defaults: {{relative: {:g}, absolute: {:g}}}\n", golden.relative, golden.absolute);
+  text += fmt::format("defaults: {{relative: {:g}, absolute: {:g}, floor: {:g}}}\n", golden.relative, golden.absolute,
+                      golden.floor);
   text += "metrics:\n";
   for (const auto& metric : golden.metrics) {
     std::string extra;
@@ -30,6 +33,22 @@ std::string golden_text(const Golden& golden, const std::string& case_name) {
   }
   return text;
 }
+
+namespace {
+std::string owner(const std::string& metric) { return metric.substr(0, metric.find('.')); }
+
+// The largest finite |value| among the golden metrics of the same owner and unit: the scale a difference of them
+// (an overshoot, a step, a margin) is judged against.
+double owner_scale(const Golden& golden, const GoldenMetric& of) {
+  double scale = 0.0;
+  for (const auto& metric : golden.metrics) {
+    if (metric.unit == of.unit && owner(metric.name) == owner(of.name) && std::isfinite(metric.value)) {
+      scale = std::max(scale, std::fabs(metric.value));
+    }
+  }
+  return scale;
+}
+}  // namespace
 
 std::vector<Comparison> compare_with_golden(const Golden& golden, const std::string& outcome,
                                             const std::string& verdict, const std::vector<MetricValue>& metrics) {
@@ -59,7 +78,7 @@ std::vector<Comparison> compare_with_golden(const Golden& golden, const std::str
     }
     double relative = expected.relative.value_or(golden.relative);
     double absolute = expected.absolute.value_or(golden.absolute);
-    row.allowed = std::max(absolute, relative * std::fabs(expected.value));
+    row.allowed = std::max({absolute, relative * std::fabs(expected.value), golden.floor * owner_scale(golden, expected)});
     if (std::isnan(expected.value) || std::isnan(actual->value)) {
       row.pass = std::isnan(expected.value) && std::isnan(actual->value);
       row.deviation = 0.0;
@@ -80,6 +99,7 @@ Golden golden_from(const std::string& outcome, const std::string& verdict, const
   if (previous) {
     golden.relative = previous->relative;
     golden.absolute = previous->absolute;
+    golden.floor = previous->floor;
     for (const auto& old : previous->metrics) {
       for (const auto& metric : metrics) {
         if (metric.name != old.name) continue;

@@ -245,10 +245,13 @@ netlist::SequenceOutcome outcome_from_stall(const analysis::StallDiagnostic& sta
   const SequenceOutcome caught = caught_outcome(sequence);
   if (std::isnan(stall.equilibrium)) return caught;
   if (stall.lower_root >= stall.resistive_below) {
+    // The prediction, then what the run measured, so the note never contradicts the waveform beside it.
     explanation = fmt::format(
         "stall at the bottom: drawing from 0 V, the loads take more than the path delivers below the lower root "
-        "[Vs − √(Vs² − 4PR)]/2 = {}, so the link cannot climb past it",
-        netlist::format_si(stall.lower_root, "V"));
+        "[Vs − √(Vs² − 4PR)]/2 = {}, so the link cannot climb past it; the run measured the link at {} at the end "
+        "of the attempt{}",
+        netlist::format_si(stall.lower_root, "V"), netlist::format_si(stall.link_voltage, "V"),
+        stall.link_voltage < stall.lower_root ? "" : ", above that root: the prediction does not hold here");
     return caught;
   }
   if (!stall.stalls) return SequenceOutcome::Closed;
