@@ -63,10 +63,11 @@ CaseDocument CaseDocument::with_candidate(const std::string& part, const Candida
   // study's random slots follow the block's order), the others are dropped; new ones go at the end.
   const std::string prefix = part + ".";
   auto given = candidate.tolerances_;
-  std::vector<std::pair<std::string, Tree>> kept;
+  std::vector<TreeEntry> kept;
   std::vector<SourceMark> kept_marks;
   for (std::size_t i = 0; i < tolerances->entries.size(); ++i) {
-    auto& [path, entry] = tolerances->entries[i];
+    const std::string& path = tolerances->entries[i].first;
+    Tree& entry = tolerances->entries[i].second;
     SourceMark mark = i < tolerances->key_marks.size() ? tolerances->key_marks[i] : tolerances->mark;
     if (path.rfind(prefix, 0) == 0) {
       auto same = std::find_if(given.begin(), given.end(), [&](const auto& g) { return prefix + g.first == path; });
@@ -75,11 +76,11 @@ CaseDocument CaseDocument::with_candidate(const std::string& part, const Candida
       mark = same->second.mark;
       given.erase(same);
     }
-    kept.emplace_back(path, entry);
+    kept.push_back({path, entry});
     kept_marks.push_back(mark);
   }
   for (const auto& [parameter, entry] : given) {
-    kept.emplace_back(prefix + parameter, entry);
+    kept.push_back({prefix + parameter, entry});
     kept_marks.push_back(entry.mark);
   }
   tolerances->entries = std::move(kept);
