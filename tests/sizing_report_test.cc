@@ -36,7 +36,8 @@ SizingRequest catalogue_request(const std::string& name, int jobs) {
   text += "sizing: {part: r_pre, range: [10 Ohm, 300 Ohm], faults: none, catalogue: " + name + "_parts.catalogue.yaml}\n";
   SizingRequest request;
   request.case_file = study_test::write_case(name + ".yaml", text);
-  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}};
+  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}, {"run.rtol", "1e-8", {}},
+                      {"run.atol", "1e-10", {}}};
   request.jobs = jobs;
   return request;
 }

@@ -23,7 +23,9 @@ SizingRequest rc_request(const std::string& name, const std::string& limits) {
   SizingRequest request;
   request.case_file = write_case(name, study_test::rc_case_text("  link.capacitance: {plus_minus: 10 %}\n") +
                                            "limits:\n" + limits);
-  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}};
+  // Boundaries to 0.2 % need no more than rtol 1e-8 (the fixture's 1e-10 is for waveform checks).
+  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}, {"run.rtol", "1e-8", {}},
+                      {"run.atol", "1e-10", {}}};
   request.part = "r_pre";
   request.range = {10.0, 300.0};
   request.spread = netlist::SizingSpread::Corners;
@@ -92,7 +94,8 @@ TEST(Sizing, ShortedLinkRetriesBoundTheResistanceFromBelow) {
           "  tolerance: 0.1 %\n";
   SizingRequest request;
   request.case_file = write_case("sizing_retries.yaml", text);
-  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}};
+  request.settings = {{"sequence.minimum_time", "0 s", {}}, {"run.duration", "1.5 s", {}}, {"run.rtol", "1e-8", {}},
+                      {"run.atol", "1e-10", {}}};
   request.verify = false;
   request.jobs = 2;
   Sizing sizing = size_part(request);
