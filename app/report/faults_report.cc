@@ -210,8 +210,7 @@ std::string faults_report_html(const DetectionMatrix& matrix) {
   add_resistor_table(report, matrix);
   add_link_plots(report, matrix);
   add_not_applicable(report, matrix);
-  report.section("Safety", "safety");
-  report.caution(safety_caution());
+  report.safety_section();
   return report.html();
 }
 

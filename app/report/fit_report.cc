@@ -92,8 +92,7 @@ std::string fit_report_html(const FitResult& fit) {
               "residual with structure (a slope, a bump at an event) means the model misses something, and the "
               "intervals are then too narrow.");
   add_measured_plots(report, fit_curves(fit));
-  report.section("Safety", "safety");
-  report.caution(safety_caution());
+  report.safety_section();
   return report.html();
 }
 

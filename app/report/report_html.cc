@@ -146,6 +146,11 @@ void HtmlReport::verdict(Tone tone, const std::string& text) {
   body_ += fmt::format("<p class=\"verdict {}\">{} \u2014 {}</p>\n", kind, word, escape_xml(text));
 }
 
+void HtmlReport::safety_section() {
+  section("Safety", "safety");
+  caution(safety_caution());
+}
+
 void HtmlReport::caution(const std::string& text) {
   body_ += fmt::format("<p class=\"caution\">{}</p>\n", escape_xml(text));
 }
@@ -792,8 +797,7 @@ std::string run_report_html(const RunReportInput& input) {
     report.paragraph(input.measured_source);
     add_measured_plots(report, input.measured);
   }
-  report.section("Safety", "safety");
-  report.caution(safety_caution());
+  report.safety_section();
   return report.html();
 }
 

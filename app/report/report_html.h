@@ -64,6 +64,8 @@ class HtmlReport {
   void verdict(Tone tone, const std::string& text);
   /// The high-voltage caution box.
   void caution(const std::string& text);
+  /// The closing "Safety" section with the high-voltage caution (safety_caution()) that every report ends with.
+  void safety_section();
 
   /// The complete document.
   std::string html() const;

@@ -161,8 +161,7 @@ std::string sizing_report_html(const Sizing& sizing) {
   add_margin_plots(report, sizing);
   add_candidates(report, sizing);
   add_verification(report, sizing);
-  report.section("Safety", "safety");
-  report.caution(safety_caution());
+  report.safety_section();
   return report.html();
 }
 

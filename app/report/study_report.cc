@@ -26,11 +26,6 @@ std::string outcome_counts(const StudyResults& results) {
   return counts.empty() ? "none" : counts;
 }
 
-void add_safety(HtmlReport& report) {
-  report.section("Safety", "safety");
-  report.caution(safety_caution());
-}
-
 std::string page_title(const std::string& kind, const std::string& title) {
   return title.empty() ? kind : kind + ": " + title;
 }
@@ -520,7 +515,7 @@ std::string compare_report_html(const VariantComparison& comparison) {
   add_compare_overview(report, comparison);
   add_variant_verdicts(report, comparison);
   add_comparison_table(report, comparison);
-  add_safety(report);
+  report.safety_section();
   return report.html();
 }
 
@@ -544,7 +539,7 @@ std::string spread_report_html(const Spread& spread, const std::vector<std::stri
                 {"failed verdicts", fmt::format("{}", failed)}});
   add_tolerances_table(report, spread);
   add_spread_body(report, spread, metrics);
-  add_safety(report);
+  report.safety_section();
   return report.html();
 }
 
@@ -557,7 +552,7 @@ std::string window_report_html(const FaultWindow& window, const Spread& spread, 
   add_window_histograms(report, window, spread);
   add_window_verification(report, window, spread);
   add_spread_body(report, spread, metrics);
-  add_safety(report);
+  report.safety_section();
   return report.html();
 }
 
@@ -566,7 +561,7 @@ std::string sweep_report_html(const Sweep& sweep, const std::vector<std::string>
   add_sweep_overview(report, sweep);
   if (!sweep.parameters.empty()) add_sweep_plots(report, sweep, metrics);
   add_sweep_table(report, sweep, metrics);
-  add_safety(report);
+  report.safety_section();
   return report.html();
 }
 

@@ -421,8 +421,9 @@ void summarise(CandidateResult& result) {
   }
 }
 
-void rank_candidates(const netlist::CaseDocument& base, DesignJudge& judge, Sizing& sizing) {
-  for (const auto& candidate : netlist::read_catalogue(sizing.spec.catalogue)) {
+void rank_candidates(const netlist::CaseDocument& base, const std::vector<netlist::CandidateSpec>& catalogue,
+                     DesignJudge& judge, Sizing& sizing) {
+  for (const auto& candidate : catalogue) {
     CandidateResult result{candidate.name, candidate.note, candidate.kind, {}, Sizing::kNaN, std::nullopt, 0};
     const netlist::CaseDocument design = base.with_candidate(sizing.spec.part, candidate);
     // The candidate's own defining value (a thermistor's R25 or minimum resistance), whatever its kind.
@@ -447,6 +448,7 @@ void rank_candidates(const netlist::CaseDocument& base, DesignJudge& judge, Sizi
 
 // The design to verify: the best passing candidate, else a preferred value inside the window.
 std::optional<std::pair<SizingChoice, netlist::CaseDocument>> choose(const netlist::CaseDocument& base,
+                                                                     const std::vector<netlist::CandidateSpec>& catalogue,
                                                                      MarginTable& table, Sizing& sizing) {
   if (!sizing.candidates.empty() && sizing.candidates.front().pass()) {
     const CandidateResult& best = sizing.candidates.front();
@@ -454,7 +456,7 @@ std::optional<std::pair<SizingChoice, netlist::CaseDocument>> choose(const netli
     choice.label = "candidate " + best.name;
     choice.why = "the passing catalogue part with the largest smallest margin";
     choice.point = best.point;
-    for (const auto& candidate : netlist::read_catalogue(sizing.spec.catalogue)) {
+    for (const auto& candidate : catalogue) {
       if (candidate.name == best.name) return std::pair{choice, base.with_candidate(sizing.spec.part, candidate)};
     }
   }
@@ -547,8 +549,11 @@ Sizing size_part(const SizingRequest& request) {
   for (double value : bracket) (void)table.at(value);
   find_boundaries(table, sizing, bracket, sizing.spec.tolerance);
   feasible_window(table, sizing, bracket);
-  if (!sizing.spec.catalogue.empty()) rank_candidates(base, judge, sizing);
-  if (auto chosen = choose(base, table, sizing)) {
+  // Read once: the ranking and the choice work from the same candidates.
+  const std::vector<netlist::CandidateSpec> catalogue =
+      sizing.spec.catalogue.empty() ? std::vector<netlist::CandidateSpec>{} : netlist::read_catalogue(sizing.spec.catalogue);
+  rank_candidates(base, catalogue, judge, sizing);
+  if (auto chosen = choose(base, catalogue, table, sizing)) {
     sizing.choice = std::move(chosen->first);
     if (request.verify) {
       verify(*sizing.choice, chosen->second, judge, request, sizing.spec);
