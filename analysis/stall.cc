@@ -43,6 +43,13 @@ void add_loads_that_drew(const solver::Waveform& waveform, const std::vector<Con
   }
 }
 
+// Vs²/(4R) and both roots of v·(Vs − v)/R = P from source_voltage, path_resistance and load_power.
+void solve_quadratic(StallDiagnostic& d) {
+  d.maximum_power = d.source_voltage * d.source_voltage / (4.0 * d.path_resistance);
+  d.equilibrium = constant_power_equilibrium(d.source_voltage, d.path_resistance, d.load_power);
+  d.lower_root = constant_power_lower_root(d.source_voltage, d.path_resistance, d.load_power);
+}
+
 // The finding in words; each states what it measured and what it computed from that.
 void explain(StallDiagnostic& d) {
   const std::string drawn = fmt::format("{} drawn through {} from {}", format_si(d.load_power, "W"),
@@ -60,13 +67,13 @@ void explain(StallDiagnostic& d) {
     d.explanation = fmt::format(
         "stall at the bottom: with {}, the link measured {} at the end of the attempt, below the unstable lower "
         "root [Vs − √(Vs² − 4PR)]/2 = {}: the loads draw from the start and hold it there, so the upper "
-        "equilibrium {} is never reached; only the timeout ends the attempt",
+        "equilibrium {} is never reached; only a fault check (no rise or timeout) can end the attempt",
         drawn, format_si(d.link_voltage, "V"), format_si(d.lower_root, "V"), format_si(d.equilibrium, "V"));
   } else if (d.equilibrium < d.closing_level) {
     d.stalls = true;
     d.explanation = fmt::format(
         "stall: with {}, the link settles at [Vs + √(Vs² − 4PR)]/2 = {} (measured {}), below the closing level "
-        "{}; only the timeout ends the attempt",
+        "{}; only a fault check (no rise or timeout) can end the attempt",
         drawn, format_si(d.equilibrium, "V"), format_si(d.link_voltage, "V"), format_si(d.closing_level, "V"));
   } else {
     d.explanation = fmt::format(
@@ -109,10 +116,63 @@ StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::S
   d.link_voltage = link.at(end);
   // Vs − link over the current: the whole path (source resistance, contactors, resistor, cable).
   d.path_resistance = (d.source_voltage - d.link_voltage) / i;
-  d.maximum_power = d.source_voltage * d.source_voltage / (4.0 * d.path_resistance);
-  d.equilibrium = constant_power_equilibrium(d.source_voltage, d.path_resistance, d.load_power);
-  d.lower_root = constant_power_lower_root(d.source_voltage, d.path_resistance, d.load_power);
+  solve_quadratic(d);
   explain(d);
+  return d;
+}
+
+ChargePath measure_charge_path(const solver::Waveform& waveform, const solver::SequenceReport& report) {
+  ChargePath path;
+  if (report.history.empty() || waveform.row_count() < 2) {
+    path.explanation = "no pre-charge attempt was made";
+    return path;
+  }
+  const solver::AttemptRecord& first = report.history.front();
+  const auto& spec = report.spec;
+  path.at_time = !std::isnan(first.decision) ? first.decision : !std::isnan(first.fault_time) ? first.fault_time
+                                                                                                : waveform.times().back();
+  Trace pack = Trace::node_pair(waveform, spec.pack.plus, spec.pack.minus, report.ground);
+  Trace link = Trace::node_pair(waveform, spec.link.plus, spec.link.minus, report.ground);
+  Trace current = Trace::column(waveform, spec.precharge + ".current");
+  path.source_voltage = pack.at(first.start);
+  path.closing_level = spec.closing_level(path.source_voltage);
+  const double i = std::fabs(current.at(path.at_time));
+  if (!(i > 1e-9)) {
+    path.explanation = fmt::format("no pre-charge current flowed at {}, so the path resistance is unknown",
+                                   format_si(path.at_time, "s"));
+    return path;
+  }
+  path.path_resistance = (path.source_voltage - link.at(path.at_time)) / i;
+  path.measured = path.path_resistance > 0.0;
+  if (!path.measured) path.explanation = "the link stood above the source, so the path resistance is unknown";
+  return path;
+}
+
+StallDiagnostic predict_stall(const ChargePath& path, double load_power, double resistive_below) {
+  StallDiagnostic d;
+  d.applicable = path.measured && load_power > 0.0;
+  d.source_voltage = path.source_voltage;
+  d.path_resistance = path.path_resistance;
+  d.closing_level = path.closing_level;
+  d.load_power = load_power;
+  d.resistive_below = resistive_below;
+  d.link_voltage = std::nan("");
+  if (!d.applicable) {
+    d.explanation = path.measured ? "the case has no constant-power load" : path.explanation;
+    return d;
+  }
+  solve_quadratic(d);
+  d.stalls = std::isnan(d.equilibrium) || d.equilibrium < d.closing_level;
+  const std::string drawn = fmt::format("{} drawn through {} from {}", format_si(d.load_power, "W"),
+                                        format_si(d.path_resistance, "Ohm"), format_si(d.source_voltage, "V"));
+  if (std::isnan(d.equilibrium)) {
+    d.explanation = fmt::format("predicted: {} exceeds Vs²/(4R) = {}, so there is no equilibrium", drawn,
+                                format_si(d.maximum_power, "W"));
+  } else {
+    d.explanation = fmt::format(
+        "predicted: with {}, the roots are {} (unstable) and {} (the operating point); closing level {}", drawn,
+        format_si(d.lower_root, "V"), format_si(d.equilibrium, "V"), format_si(d.closing_level, "V"));
+  }
   return d;
 }
 

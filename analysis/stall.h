@@ -48,4 +48,22 @@ struct StallDiagnostic {
 StallDiagnostic diagnose_stall(const solver::Waveform& waveform, const solver::SequenceReport& report,
                                const std::vector<ConstantPowerLoad>& loads);
 
+/// The charging path of a run, measured where no constant-power load matters: the source voltage before the
+/// first attempt and the path resistance (Vs − link)/i when that attempt ends (its closing decision or fault), so
+/// the resistor's self-heating during one normal charge is included.
+struct ChargePath {
+  bool measured = false;
+  double source_voltage = 0.0;   // V, pack at the start of the first attempt
+  double path_resistance = 0.0;  // Ohm
+  double at_time = 0.0;          // s, where the resistance was measured
+  double closing_level = 0.0;    // V, the closing rule's level at Vs
+  std::string explanation;       // why it could not be measured
+};
+ChargePath measure_charge_path(const solver::Waveform& waveform, const solver::SequenceReport& report);
+
+/// What the quadratic predicts for constant-power loads of `load_power` (highest onset `resistive_below`) drawing
+/// behind `path`: the roots, the maximum deliverable power and whether the link stalls below the closing level.
+/// No waveform is read, so `link_voltage` stays NaN and `latched` false.
+StallDiagnostic predict_stall(const ChargePath& path, double load_power, double resistive_below);
+
 }  // namespace linkrise::analysis

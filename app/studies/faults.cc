@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "analysis/metrics.h"
+#include "analysis/stall.h"
 #include "app/evaluation/case_evaluation.h"
 #include "app/evaluation/case_run.h"
 #include "app/output/decimation.h"
@@ -54,9 +55,11 @@ namespace {
 struct Planned {
   DetectionRow row;
   netlist::CaseDocument document;
-  bool expect_from_stall = false;  // the expectation follows from the run's own stall diagnostic
+  bool expect_from_stall = false;  // the expectation follows from the nominal path and the case's loads
   bool from_case = false;          // a row of the case's `scenarios:` block
   std::optional<netlist::Case> spec;
+  std::optional<analysis::ChargePath> path;            // the nominal row: its measured charging path
+  std::optional<analysis::StallDiagnostic> run_stall;  // the run's own stall finding, when it made one
 };
 
 bool across_link(const models::Part& part, const netlist::NodePair& link) {
@@ -237,28 +240,44 @@ class Plan {
 // must first climb past the unstable lower root [Vs − √(Vs² − 4PR)]/2: where the loads are still constant-power
 // there (the root lies above their resistive floor) it cannot, and stays near 0 V. Past it, the link settles at the
 // upper root, which must reach the closing level.
-netlist::SequenceOutcome outcome_from_stall(const analysis::StallDiagnostic& stall,
-                                            const netlist::SequenceSpec& sequence, std::string& explanation) {
+netlist::SequenceOutcome predicted_outcome(const analysis::StallDiagnostic& prediction,
+                                           const netlist::SequenceSpec& sequence) {
   using netlist::SequenceOutcome;
-  explanation = stall.explanation;
-  if (!stall.applicable) return SequenceOutcome::Closed;
   const SequenceOutcome caught = caught_outcome(sequence);
-  if (std::isnan(stall.equilibrium)) return caught;
-  if (stall.lower_root >= stall.resistive_below) {
-    // The prediction, then what the run measured, so the note never contradicts the waveform beside it.
-    explanation = fmt::format(
-        "stall at the bottom: drawing from 0 V, the loads take more than the path delivers below the lower root "
-        "[Vs − √(Vs² − 4PR)]/2 = {}, so the link cannot climb past it; the run measured the link at {} at the end "
-        "of the attempt{}",
-        netlist::format_si(stall.lower_root, "V"), netlist::format_si(stall.link_voltage, "V"),
-        stall.link_voltage < stall.lower_root ? "" : ", above that root: the prediction does not hold here");
-    return caught;
-  }
-  if (!stall.stalls) return SequenceOutcome::Closed;
-  if (sequence.rise_fraction && stall.equilibrium < *sequence.rise_fraction * stall.source_voltage) {
+  if (std::isnan(prediction.equilibrium)) return caught;
+  if (prediction.lower_root >= prediction.resistive_below) return caught;
+  if (!prediction.stalls) return SequenceOutcome::Closed;
+  if (sequence.rise_fraction && prediction.equilibrium < *sequence.rise_fraction * prediction.source_voltage) {
     return SequenceOutcome::NoRise;
   }
   return SequenceOutcome::Timeout;
+}
+
+// The constant-power-from-start expectation comes from the case's data, not from the scenario's own run: the
+// charging path measured in the nominal run (where the loads do not hold the link) and the rated powers of the
+// case's constant-power loads. The note gives the prediction and, when the run made one, its own stall finding,
+// so a row that disagrees shows both sides.
+void expect_from_case(Planned& p, const analysis::ChargePath& path, const std::vector<analysis::ConstantPowerLoad>& loads,
+                      const netlist::SequenceSpec& sequence) {
+  double power = 0.0;
+  double resistive_below = 0.0;
+  for (const auto& load : loads) {
+    power += load.power;
+    resistive_below = std::max(resistive_below, load.resistive_below);
+  }
+  const analysis::StallDiagnostic prediction = analysis::predict_stall(path, power, resistive_below);
+  std::string note = fmt::format("expected from the nominal run's charging path and the case's loads: {}",
+                                 prediction.explanation);
+  if (prediction.applicable) {
+    p.row.expected = predicted_outcome(prediction, sequence);
+    if (!std::isnan(prediction.equilibrium) && prediction.lower_root >= prediction.resistive_below) {
+      note += fmt::format("; the lower root lies above the loads' resistive floor {}, so the link cannot climb past it",
+                          netlist::format_si(prediction.resistive_below, "V"));
+    }
+  }
+  if (p.run_stall && p.run_stall->applicable) note += "; the run: " + p.run_stall->explanation;
+  p.row.note = note + (p.row.note.empty() ? "" : "; " + p.row.note);
+  p.row.pass = p.row.actual == p.row.expected && p.row.resistor_survived;
 }
 
 // The row shows the run's outcome with the first attempt that ended in it, and that attempt's fault time, so
@@ -298,9 +317,8 @@ void run_row(Planned& p) {
   const analysis::Evaluation& evaluation = run.evaluation();
   take_attempt(row, report);
   keep_link_trace(row, run.result(), sequence, report.ground);  // for the HTML report's plots
-  if (p.expect_from_stall && evaluation.stall) {
-    row.expected = outcome_from_stall(*evaluation.stall, sequence, row.note);
-  }
+  if (p.expect_from_stall && evaluation.stall) p.run_stall = evaluation.stall;
+  if (row.scenario == "nominal") p.path = analysis::measure_charge_path(run.result().steps, report);
   row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
   row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
   for (const auto& limit : evaluation.limits) {
@@ -408,6 +426,13 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
   for_each_index(planned.size(), jobs, [&](std::size_t i) {
     if (planned[i].row.applicable) run_row(planned[i]);
   });
+  const Planned& nominal_row = planned.front();  // select_rows keeps it first
+  for (auto& p : planned) {
+    if (!p.expect_from_stall || !p.row.applicable || p.row.solver_failed) continue;
+    const analysis::ChargePath unmeasured{.explanation = "the nominal run failed, so its charging path is unknown"};
+    expect_from_case(p, nominal_row.path ? *nominal_row.path : unmeasured, analysis::constant_power_loads(circuit),
+                     *sequence);
+  }
   DetectionMatrix matrix;
   matrix.case_file = case_file;
   matrix.title = nominal.title;

@@ -9,9 +9,10 @@
 //   open_precharge_resistor    the pre-charge resistor at 1 GOhm [no_rise; timeout without a rise check]
 //   missing_capacitance        capacitors across the link at 0.1 % of their value [too_fast]
 //   oversize_capacitance       capacitors across the link doubled [closed]
-//   constant_power_from_start  constant-power loads draw from 0 V on [from the quadratic equilibrium
-//                              v = [Vs + √(Vs² − 4PR)]/2 of that run: closed above the closing level, otherwise
-//                              timeout, or no_rise when below the rise-check level]
+//   constant_power_from_start  constant-power loads draw from 0 V on [from the case's data: the quadratic
+//                              v = [Vs ± √(Vs² − 4PR)]/2 with Vs and R measured in the nominal run's charge and P
+//                              the loads' rated powers: closed above the closing level, otherwise timeout, or
+//                              no_rise below the rise-check level or when the lower root holds the link down]
 //   reversed_connection        the parts across the link connected the other way round, so the link's diode
 //                              (inverter body diodes) clamps it [no_rise; timeout without a rise check]
 // A scenario the case lacks the structure for (no capacitor, no constant-power load, no diode across the link)
