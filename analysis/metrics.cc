@@ -111,11 +111,14 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
   m.add("sequence.peak_precharge_current",
         rows ? or_nan(pre_current.absolute().maximum(waveform.times().front(), end)) : kNaN, "A",
         "largest |current| through the pre-charge contactor over the run (all attempts)");
+  // Against the pack at rest, not its terminal voltage: the terminal sags under the inrush, so a link still rising
+  // monotonically below the open-circuit voltage would otherwise read as an overshoot.
   double overshoot = kNaN;
-  if (after_close) overshoot = std::max(0.0, or_nan(link.minus(pack).maximum(closed, end)));
+  if (after_close && reached(start)) overshoot = std::max(0.0, or_nan(link.maximum(closed, end)) - pack.at(start));
   m.add("sequence.link_overshoot", overshoot, "V",
-        "largest amount by which the sensed link voltage exceeds the sensed pack voltage after the main "
-        "closure (0 when it never does)");
+        "largest amount by which the sensed link voltage exceeds the pack's open-circuit voltage (the sensed pack "
+        "voltage at rest, at the start of the final attempt before any contact touches) after the main closure "
+        "(0 when it never does)");
   m.add("sequence.minimum_pack_voltage", rows ? or_nan(pack.minimum(waveform.times().front(), end)) : kNaN, "V",
         "lowest sensed pack terminal voltage over the run");
   m.add("sequence.detection_time", report.first_fault_time, "s", "run time at which the first fault was raised");
