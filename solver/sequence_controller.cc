@@ -189,8 +189,8 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
     double level = *spec_.rise_fraction * pack;
     if (!(link >= level)) {
       raise_fault(t, netlist::SequenceOutcome::NoRise,
-                  fmt::format("link {} is below {:g} % of pack ({}) {} after the start (short or reversed "
-                              "connection?)",
+                  fmt::format("link {} is below {:g} % of pack ({}) {} after the start (a short, an open "
+                              "path, a reversed connection or a load drawing from the start?)",
                               format_si(link, "V"), 100.0 * *spec_.rise_fraction, format_si(level, "V"),
                               format_si(elapsed, "s")),
                   commands, timeline);
