@@ -1,7 +1,13 @@
 #include "models/cell_string.h"
 
+#include <algorithm>
+#include <cmath>
+
 #include <fmt/format.h>
 #include <gsl/gsl_interp.h>
+#include <gsl/gsl_interp2d.h>
+
+#include "models/resistance_law.h"
 
 namespace linkrise::models {
 namespace {
@@ -51,8 +57,7 @@ class CellString final : public Part {
       curve_.reset(gsl_interp_alloc(gsl_interp_steffen, soc_points_.size()));
       gsl_interp_init(curve_.get(), soc_points_.data(), ocv_points_.data(), soc_points_.size());
     }
-    double r0 = reader.required("cell_resistance", Dimension::resistance(), Bound::NonNegative);
-    resistance_ = r0 * series_ / parallel_;
+    read_resistance(reader);
     double capacity = reader.required("cell_capacity", Dimension::charge(), Bound::Positive);
     charge_ = capacity * parallel_;  // C, whole string
     initial_soc_ = reader.quantity("initial_soc", Dimension::none(), Bound::Fraction, 1.0);
@@ -64,10 +69,82 @@ class CellString final : public Part {
       pair_reader.finish();
       pairs_.push_back(Pair{r * series_ / parallel_, c * parallel_ / series_});
     }
+    read_temperature_law(reader);
     reader.finish();
   }
 
  private:
+  // R0 as one value (`cell_resistance`) or as a grid over SOC and temperature (`cell_resistance_table`, rows
+  // [SOC, temperature, R0] covering every combination once), interpolated bilinearly (GSL).
+  void read_resistance(netlist::ParameterReader& reader) {
+    auto rows = reader.table("cell_resistance_table", {Dimension::none(), Dimension::temperature(), Dimension::resistance()});
+    if (rows.empty()) {
+      resistance_ = reader.required("cell_resistance", Dimension::resistance(), Bound::NonNegative) * series_ / parallel_;
+      return;
+    }
+    if (reader.has("cell_resistance")) {
+      reader.fail("cell_resistance_table", "give either cell_resistance or cell_resistance_table, not both",
+                  "keep the table for an R0 that follows SOC and temperature, or the single cell_resistance");
+    }
+    for (const auto& row : rows) {
+      if (row[0] < 0.0 || row[0] > 1.0) reader.fail("cell_resistance_table", fmt::format("SOC {} lies outside 0..100 %", row[0]));
+      if (!(row[2] > 0.0)) reader.fail("cell_resistance_table", "every resistance must be above zero");
+      grid_soc_.push_back(row[0]);
+      grid_kelvin_.push_back(row[1]);
+    }
+    for (auto* axis : {&grid_soc_, &grid_kelvin_}) {
+      std::sort(axis->begin(), axis->end());
+      axis->erase(std::unique(axis->begin(), axis->end()), axis->end());
+    }
+    if (grid_soc_.size() < 2 || grid_kelvin_.size() < 2 || rows.size() != grid_soc_.size() * grid_kelvin_.size()) {
+      reader.fail("cell_resistance_table",
+                  fmt::format("{} rows do not form a full grid of {} SOC values × {} temperatures (each pair once)",
+                              rows.size(), grid_soc_.size(), grid_kelvin_.size()),
+                  "give a row [SOC, temperature, R0] for every combination of at least two SOC values and two "
+                  "temperatures");
+    }
+    grid_resistance_.assign(rows.size(), std::nan(""));
+    for (const auto& row : rows) {
+      const auto i = std::lower_bound(grid_soc_.begin(), grid_soc_.end(), row[0]) - grid_soc_.begin();
+      const auto j = std::lower_bound(grid_kelvin_.begin(), grid_kelvin_.end(), row[1]) - grid_kelvin_.begin();
+      double& cell = grid_resistance_[static_cast<std::size_t>(j) * grid_soc_.size() + static_cast<std::size_t>(i)];
+      if (!std::isnan(cell)) reader.fail("cell_resistance_table", "an SOC and temperature pair appears twice");
+      cell = row[2];
+    }
+    grid_.reset(gsl_interp2d_alloc(gsl_interp2d_bilinear, grid_soc_.size(), grid_kelvin_.size()));
+    gsl_interp2d_init(grid_.get(), grid_soc_.data(), grid_kelvin_.data(), grid_resistance_.data(), grid_soc_.size(),
+                      grid_kelvin_.size());
+  }
+
+  // `resistance_temperature: {reference, activation}`: every cell resistance (R0 and the pairs') follows the
+  // Arrhenius law R(T) = R(T_ref)·exp(B·(1/T − 1/T_ref)) with B = Ea/k (the B-parameter form), at the ambient.
+  void read_temperature_law(netlist::ParameterReader& reader) {
+    auto block = reader.block("resistance_temperature");
+    if (!block) return;
+    if (grid_) {
+      reader.fail("resistance_temperature", "cell_resistance_table already gives R0 over temperature",
+                  "drop resistance_temperature, or give a single cell_resistance with it");
+    }
+    reference_kelvin_ = block->quantity("reference", Dimension::temperature(), Bound::Positive, kelvin_at_25_celsius);
+    activation_kelvin_ = block->required("activation", Dimension::temperature(), Bound::Positive);
+    block->finish();
+  }
+
+  // Factor on the pairs' resistances at `kelvin`: Arrhenius, or 1.
+  double pair_factor(double kelvin) const {
+    return activation_kelvin_ > 0.0 ? std::exp(activation_kelvin_ * (1.0 / kelvin - 1.0 / reference_kelvin_)) : 1.0;
+  }
+  // String R0 at `kelvin`. The table is read at the initial SOC: a pre-charge moves the SOC by less than 1e-4, and
+  // a fixed value keeps the right-hand side free of the bilinear grid's kinks.
+  double series_resistance(double kelvin) const {
+    if (!grid_) return resistance_ * pair_factor(kelvin);
+    const double soc = std::clamp(initial_soc_, grid_soc_.front(), grid_soc_.back());
+    const double t = std::clamp(kelvin, grid_kelvin_.front(), grid_kelvin_.back());
+    return gsl_interp2d_eval(grid_.get(), grid_soc_.data(), grid_kelvin_.data(), grid_resistance_.data(), soc, t,
+                             nullptr, nullptr) *
+           series_ / parallel_;
+  }
+
   // Cell OCV and its slope at `soc`.
   std::pair<double, double> cell_ocv(double soc) const {
     if (soc_points_.size() == 1 || soc <= soc_points_.front()) return {ocv_points_.front(), 0.0};
@@ -100,18 +177,20 @@ class CellString final : public Part {
     out[1] = series_ * cell_ocv(soc).first;
   }
   Role do_role() const override { return Role::Source; }
-  Link do_link() const override { return resistance_ > 0.0 ? Link::Conductive : Link::VoltageDefined; }
+  Link do_link() const override { return resistance_ > 0.0 || grid_ ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override {
-    return {true, resistance_ > 0.0 || !pairs_.empty(), false};
+    return {true, resistance_ > 0.0 || grid_ || !pairs_.empty(), false};
   }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     int b = layout.branch;
     int soc_state = layout.state;
     double j = point.unknowns[b];
     auto [ocv, slope] = cell_ocv(point.states[soc_state]);
-    double residual = point.voltage(layout) - series_ * ocv - resistance_ * j;
+    const double r0 = series_resistance(point.ambient);
+    const double factor = pair_factor(point.ambient);
+    double residual = point.voltage(layout) - series_ * ocv - r0 * j;
     for (std::size_t k = 0; k < pairs_.size(); ++k) residual += point.states[soc_state + 1 + k];
-    stamp.thevenin_branch(layout, j, residual, resistance_);
+    stamp.thevenin_branch(layout, j, residual, r0);
     stamp.network_by_state(b, soc_state, -series_ * slope);
     // discharge current id = -j
     stamp.rate(soc_state, j / charge_);
@@ -119,20 +198,22 @@ class CellString final : public Part {
     for (std::size_t k = 0; k < pairs_.size(); ++k) {
       int s = soc_state + 1 + static_cast<int>(k);
       const Pair& pair = pairs_[k];
+      const double rk = pair.resistance * factor;
       double vk = point.states[s];
       stamp.network_by_state(b, s, 1.0);
-      stamp.rate(s, (-j - vk / pair.resistance) / pair.capacitance);
+      stamp.rate(s, (-j - vk / rk) / pair.capacitance);
       stamp.rate_by_unknown(s, b, -1.0 / pair.capacitance);
-      stamp.rate_by_state(s, s, -1.0 / (pair.resistance * pair.capacitance));
+      stamp.rate_by_state(s, s, -1.0 / (rk * pair.capacitance));
     }
   }
   Powers do_powers(const Point& point, const Layout& layout) const override {
     double j = point.unknowns[layout.branch];
     double soc = point.states[layout.state];
-    double heat = resistance_ * j * j;
+    double heat = series_resistance(point.ambient) * j * j;
+    const double factor = pair_factor(point.ambient);
     for (std::size_t k = 0; k < pairs_.size(); ++k) {
       double vk = point.states[layout.state + 1 + k];
-      heat += vk * vk / pairs_[k].resistance;
+      heat += vk * vk / (pairs_[k].resistance * factor);
     }
     return Powers{-series_ * cell_ocv(soc).first * j, heat, 0.0};
   }
@@ -153,7 +234,14 @@ class CellString final : public Part {
     void operator()(gsl_interp* curve) const { gsl_interp_free(curve); }
   };
   std::unique_ptr<gsl_interp, CurveDeleter> curve_;  // read-only after construction: safe from many threads
-  double resistance_ = 0.0;
+  double resistance_ = 0.0;  // string R0 at the reference temperature (single-value form)
+  std::vector<double> grid_soc_, grid_kelvin_, grid_resistance_;  // cell R0 grid, resistance[j·n_soc + i]
+  struct GridDeleter {
+    void operator()(gsl_interp2d* grid) const { gsl_interp2d_free(grid); }
+  };
+  std::unique_ptr<gsl_interp2d, GridDeleter> grid_;  // read-only after construction
+  double reference_kelvin_ = kelvin_at_25_celsius;
+  double activation_kelvin_ = 0.0;  // 0: no temperature dependence
   double charge_ = 0.0;
   double initial_soc_ = 1.0;
   std::vector<Pair> pairs_;
