@@ -60,21 +60,24 @@ struct Measured {
   double first = 0.0;  // Ohm
   double last = 0.0;   // Ohm
 };
+std::string four_volt_string(const std::string& ambient, const std::string& resistance_lines,
+                             const std::string& duration) {
+  return "ground: gnd\n"
+         "ambient: " + ambient + "\n"
+         "parts:\n"
+         "  - name: pack\n"
+         "    kind: cell_string\n"
+         "    nodes: [plus, gnd]\n"
+         "    cells_in_series: 10\n"
+         "    cell_voltage: 4 V\n"
+         "    cell_capacity: 50 Ah\n"
+         "    initial_soc: 50 %\n" +
+         resistance_lines +
+         "  - {name: load, kind: resistor, nodes: [plus, gnd], resistance: 1 Ohm}\n"
+         "run: {duration: " + duration + ", rtol: 1e-10}\n";
+}
 Measured string_resistance(const std::string& ambient, const std::string& resistance_lines, const std::string& duration) {
-  Simulation simulation(
-      "ground: gnd\n"
-      "ambient: " + ambient + "\n"
-      "parts:\n"
-      "  - name: pack\n"
-      "    kind: cell_string\n"
-      "    nodes: [plus, gnd]\n"
-      "    cells_in_series: 10\n"
-      "    cell_voltage: 4 V\n"
-      "    cell_capacity: 50 Ah\n"
-      "    initial_soc: 50 %\n" +
-      resistance_lines +
-      "  - {name: load, kind: resistor, nodes: [plus, gnd], resistance: 1 Ohm}\n"
-      "run: {duration: " + duration + ", rtol: 1e-10}\n");
+  Simulation simulation(four_volt_string(ambient, resistance_lines, duration));
   auto result = simulation.run();
   EXPECT_EQ(result.outcome, linkrise::solver::Outcome::Completed) << result.message;
   int column = result.steps.column("pack.current");
@@ -117,20 +120,9 @@ TEST(CellString, ResistanceGridIsReadBilinearlyAtTheInitialSocAndAmbient) {
 }
 
 TEST(CellString, AnIncompleteResistanceGridIsAnInputError) {
-  auto error = linkrise::testing::input_error([] {
-    Simulation(
-        "ground: gnd\n"
-        "parts:\n"
-        "  - name: pack\n"
-        "    kind: cell_string\n"
-        "    nodes: [plus, gnd]\n"
-        "    cells_in_series: 10\n"
-        "    cell_voltage: 4 V\n"
-        "    cell_capacity: 50 Ah\n"
-        "    cell_resistance_table: [[20 %, 0 degC, 8 mOhm], [80 %, 0 degC, 6 mOhm], [20 %, 40 degC, 4 mOhm]]\n"
-        "  - {name: load, kind: resistor, nodes: [plus, gnd], resistance: 1 Ohm}\n"
-        "run: {duration: 1 ms}\n");
-  });
+  const std::string lines =
+      "    cell_resistance_table: [[20 %, 0 degC, 8 mOhm], [80 %, 0 degC, 6 mOhm], [20 %, 40 degC, 4 mOhm]]\n";
+  auto error = linkrise::testing::input_error([&] { Simulation simulation(four_volt_string("25 degC", lines, "1 ms")); });
   EXPECT_TRUE(linkrise::testing::contains(error.what(), "do not form a full grid")) << error.what();
-  EXPECT_TRUE(linkrise::testing::contains(error.what(), ":9:")) << error.what();
+  EXPECT_TRUE(linkrise::testing::contains(error.what(), ":11:")) << error.what();
 }
