@@ -15,6 +15,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"current_squared_time", "A²s", current_squared_time});
   list.push_back({"peak_voltage", "V", peak_voltage});
   list.push_back({"average_power", "W", average_power});
+  if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
   return list;
 }
 
@@ -72,6 +73,8 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     metrics.peak_voltage = peak_absolute(rows, voltage);
     int temperature = rows.column(p.name() + ".temperature");
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
+    int melt = rows.column(p.name() + ".melt");
+    if (melt >= 0) metrics.peak_melt = peak_value(rows, melt);
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;
   if (result.end_time > 0.0) metrics.average_power = metrics.energy / result.end_time;

@@ -6,6 +6,7 @@
 // cell strings are excluded). Metric names are those of models::Rating, so a rating on metric m of part p is
 // judged against the metric "<p>.<m>":
 //   peak_temperature      degC  largest element temperature over the recorded rows (parts with a temperature)
+//   peak_melt             1     largest melting integral of a fuse over the recorded rows (1 = melted; fuses only)
 //   peak_power            W     largest |p| over the recorded rows
 //   energy                J     heat absorbed over the run, from the part's integrated energy account
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
@@ -39,6 +40,7 @@ struct PartMetric {
 struct ResistiveMetrics {
   std::string part;
   std::optional<double> peak_temperature;  // degC; absent when the part has no temperature signal
+  std::optional<double> peak_melt;         // 1; absent when the part has no melt signal
   double peak_power = 0.0;                 // W
   double energy = 0.0;                     // J
   double current_squared_time = 0.0;       // A²·s

@@ -10,6 +10,7 @@
 #include "models/contactor.h"
 #include "models/dc_source.h"
 #include "models/diode.h"
+#include "models/fuse.h"
 #include "models/inductive_branch.h"
 #include "models/ntc_thermistor.h"
 #include "models/ptc_thermistor.h"
@@ -34,6 +35,7 @@ const std::vector<std::pair<std::string, Factory>>& table() {
       {"constant_power_load", make_constant_power_load},
       {"constant_current_load", make_constant_current_load},
       {"diode", make_diode},
+      {"fuse", make_fuse},
   };
   return kinds;
 }

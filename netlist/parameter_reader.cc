@@ -41,7 +41,8 @@ std::string first_example(const Dimension& dimension) {
 }  // namespace
 
 bool is_percent_key(std::string_view key) {
-  return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin" || key == "quantile";
+  return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin" || key == "quantile" ||
+         key == "pulse_derating";
 }
 
 bool is_percent_path(std::string_view path) {
