@@ -88,13 +88,18 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
   if (rows && reached(start)) {
     double ratio = spec.rule == netlist::ClosingRule::Ratio ? spec.rule_value : 1.0;
     double offset = spec.rule == netlist::ClosingRule::Ratio ? 0.0 : -spec.rule_value;
-    if (auto crossing = link.minus_scaled(pack, ratio, offset).first_rise_through_zero(start)) {
+    // What the BMS compares: a sensor's reading where the sequence reads one (between rows, linearly), else
+    // the node pair (a watch puts a row at its exact crossing).
+    Trace sensed_pack = spec.pack_sensor.empty() ? pack : Trace::column(waveform, spec.pack_sensor + ".reading");
+    Trace sensed_link = spec.link_sensor.empty() ? link : Trace::column(waveform, spec.link_sensor + ".reading");
+    if (auto crossing = sensed_link.minus_scaled(sensed_pack, ratio, offset).first_rise_through_zero(start)) {
       threshold = *crossing - start;
     }
   }
   m.add("sequence.time_to_threshold", threshold, "s",
         "from the start of the final attempt to the first moment the link meets the closing level (ratio or "
-        "difference; the rate condition is not part of it), at the exact crossing");
+        "difference; the rate condition is not part of it), at the exact crossing; as read by the sequence's "
+        "voltage sensors where it names them");
   m.add("sequence.decision_time", attempt ? attempt->decision : kNaN, "s",
         "run time of the BMS sample that decided to close the main contactor");
   m.add("sequence.main_close_time", closed, "s", "run time at which the main contacts first touched");

@@ -55,6 +55,7 @@ const char* role_word(Role role) {
     case Role::Load: return "load";
     case Role::Resistive: return "resistive";
     case Role::Conductor: return "conductor";
+    case Role::Sensor: return "sensor";
     case Role::Rectifier: return "rectifier";
   }
   return "unknown";

@@ -39,6 +39,7 @@ enum class Role {
   Resistive,  // turns current into heat and nothing else: resistors and thermistors
   Conductor,  // connects parts with series R and L: an inductor, a cable
   Rectifier,  // conducts one way: a diode
+  Sensor,     // measures a voltage for the BMS (its divider may load the nodes): a voltage sensor
 };
 /// The role as a lower-case word for summaries ("source", "storage"...).
 const char* role_word(Role role);

@@ -16,6 +16,7 @@
 #include "models/ptc_thermistor.h"
 #include "models/resistor.h"
 #include "models/switched_load.h"
+#include "models/voltage_sensor.h"
 
 namespace linkrise::models {
 namespace {
@@ -36,6 +37,7 @@ const std::vector<std::pair<std::string, Factory>>& table() {
       {"constant_current_load", make_constant_current_load},
       {"diode", make_diode},
       {"fuse", make_fuse},
+      {"voltage_sensor", make_voltage_sensor},
   };
   return kinds;
 }

@@ -55,15 +55,28 @@ std::string contactor_name(const Case& spec, const Tree& node, const std::string
   return node.text;
 }
 
-NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string& key) {
+NodePair node_pair(const Case& spec, ParameterReader& reader, const std::string& key, std::string& sensor,
+                   SourceMark& sensor_mark) {
   const Tree* node = reader.child(key);
   if (node == nullptr) {
     throw InputError(reader.mark(key), fmt::format("the sequence needs '{}', the sensed node pair", key),
-                     fmt::format("add '{}: [plus_node, minus_node]'", key));
+                     fmt::format("add '{}: [plus_node, minus_node]' or '{}: <voltage_sensor part>'", key, key));
+  }
+  if (node->is_scalar()) {
+    // A sensor part: its nodes are the pair; that it is a voltage sensor is checked once the kinds are known.
+    const PartSpec* part = spec.find_part(node->text);
+    if (part == nullptr) {
+      throw InputError(node->mark, fmt::format("the sequence's '{}' names part '{}', which is not in the parts list",
+                                               key, node->text),
+                       did_you_mean(node->text, spec.part_names(), "name a voltage_sensor part, or list two nodes"));
+    }
+    sensor = node->text;
+    sensor_mark = node->mark;
+    return NodePair{part->nodes[0], part->nodes[1]};
   }
   if (!node->is_list() || node->items.size() != 2 || !node->items[0].is_scalar() || !node->items[1].is_scalar()) {
-    throw InputError(node->mark, fmt::format("the sequence's '{}' must list two nodes [plus, minus]", key),
-                     fmt::format("write '{}: [plus_node, minus_node]'", key));
+    throw InputError(node->mark, fmt::format("the sequence's '{}' must list two nodes [plus, minus] or name a sensor", key),
+                     fmt::format("write '{}: [plus_node, minus_node]' or '{}: <voltage_sensor part>'", key, key));
   }
   auto nodes = spec.node_names();
   for (const Tree& item : node->items) {
@@ -243,8 +256,8 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   read_switched_contactors(spec, reader, *block, sequence);
   read_resistor(spec, reader, *block, sequence);
   sequence.overlap = reader.quantity("overlap", Dimension::time(), Bound::NonNegative, 0.0);
-  sequence.pack = node_pair(spec, reader, "pack");
-  sequence.link = node_pair(spec, reader, "link");
+  sequence.pack = node_pair(spec, reader, "pack", sequence.pack_sensor, sequence.pack_sensor_mark);
+  sequence.link = node_pair(spec, reader, "link", sequence.link_sensor, sequence.link_sensor_mark);
   read_closing_rule(reader, *block, sequence);
   read_timing(reader, sequence);
   read_retries(reader, sequence);

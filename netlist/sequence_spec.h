@@ -7,8 +7,9 @@
 //     main: k_main                   # closed when the closing rule is met
 //     resistor: r_pre                # the pre-charge resistor (judged in the detection matrix)
 //     overlap: 20 ms                 # main contact closed -> pre-charge coil released
-//     pack: [pack_plus, pack_minus]  # sensed node pair (plus, minus) for the pack voltage
-//     link: [link_plus, bus_minus]   # sensed node pair for the DC-link voltage
+//     pack: [pack_plus, pack_minus]  # sensed node pair (plus, minus) for the pack voltage, read ideally,
+//     link: link_sense               # or a voltage_sensor part: its nodes are the pair, its reading what the BMS
+//                                    # compares (gain, offset, filter, resolution, skew, divider loading)
 //     close_when: {ratio: 95 %}      # link >= ratio * pack, or {difference: 20 V}: pack - link <= 20 V;
 //                                    # optional max_rate: 500 V/s (|link change| per sample / period)
 //     sample_period: 1 ms            # BMS decision period; samples at start + k * period
@@ -51,6 +52,8 @@ struct SequenceSpec {
   std::string resistor;
   double overlap = 0.0;  // s
   NodePair pack, link;
+  std::string pack_sensor, link_sensor;  // the voltage_sensor parts read instead of the ideal pairs; empty: none
+  SourceMark pack_sensor_mark, link_sensor_mark;
   ClosingRule rule = ClosingRule::Ratio;
   double rule_value = 0.95;          // fraction (ratio) or V (difference)
   std::optional<double> max_rate;    // V/s

@@ -118,6 +118,16 @@ void Circuit::check_sequence_parts() const {
                               switches.empty() ? "add a contactor part for the sequence to move"
                                                : "name one of the case's switching parts: " + switches);
   }
+  for (const auto& [name, mark] : {std::pair{sequence.pack_sensor, sequence.pack_sensor_mark},
+                                   std::pair{sequence.link_sensor, sequence.link_sensor_mark}}) {
+    if (name.empty()) continue;
+    const models::Part& part = *parts_[find_part(name)];
+    if (part.role() == models::Role::Sensor) continue;
+    throw netlist::InputError(mark,
+                              fmt::format("the sequence reads '{}', a {} part ({}), which measures nothing", name,
+                                          models::role_word(part.role()), part.kind()),
+                              "name a voltage_sensor part, or list the sensed nodes as [plus, minus]");
+  }
 }
 
 int Circuit::current_squared_index(int part) const {

@@ -25,6 +25,16 @@ int contactor_index(const Circuit& circuit, const std::string& name, const netli
 models::Actuation timing_of(const Circuit& circuit, int part) {
   return *circuit.part(part).actuation();
 }
+
+/// The position of a sensor's `reading` among its signals, or -1 without a sensor.
+int reading_index(const Circuit& circuit, int sensor) {
+  if (sensor < 0) return -1;
+  const auto signals = circuit.part(sensor).signals();
+  for (std::size_t i = 0; i < signals.size(); ++i) {
+    if (signals[i].quantity == "reading") return static_cast<int>(i);
+  }
+  return -1;  // Circuit::check_sequence_parts() admits only voltage sensors, which all have a reading
+}
 }  // namespace
 
 SequenceController::SequenceController(const Circuit& circuit, netlist::SequenceSpec spec)
@@ -36,6 +46,10 @@ SequenceController::SequenceController(const Circuit& circuit, netlist::Sequence
   pack_minus_ = circuit.node_index(spec_.pack.minus);
   link_plus_ = circuit.node_index(spec_.link.plus);
   link_minus_ = circuit.node_index(spec_.link.minus);
+  if (!spec_.pack_sensor.empty()) pack_sensor_ = circuit.find_part(spec_.pack_sensor);
+  if (!spec_.link_sensor.empty()) link_sensor_ = circuit.find_part(spec_.link_sensor);
+  pack_reading_ = reading_index(circuit, pack_sensor_);
+  link_reading_ = reading_index(circuit, link_sensor_);
   next_attempt_ = spec_.start;
 }
 
@@ -132,8 +146,8 @@ void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault
 void SequenceController::sample(const Probe& probe, std::vector<Command>& commands,
                                  std::vector<TimelineEntry>& timeline) {
   const double t = probe.time;
-  const double pack = probe.voltage(pack_plus_, pack_minus_);
-  const double link = probe.voltage(link_plus_, link_minus_);
+  const double pack = sensed(probe, pack_sensor_, pack_reading_, pack_plus_, pack_minus_);
+  const double link = sensed(probe, link_sensor_, link_reading_, link_plus_, link_minus_);
   switch (phase_) {
     case Phase::Closed:
       return;

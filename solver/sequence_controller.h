@@ -52,6 +52,12 @@ class SequenceController final : public Supervisor {
   int main_ = -1, precharge_ = -1;
   std::vector<int> start_closed_;
   int pack_plus_ = -1, pack_minus_ = -1, link_plus_ = -1, link_minus_ = -1;
+  int pack_sensor_ = -1, link_sensor_ = -1;  // voltage_sensor parts read instead of the node pairs, or -1
+  int pack_reading_ = -1, link_reading_ = -1;  // index of each sensor's `reading` among its signals
+  /// What the BMS reads on a channel: the sensor's reading, or the ideal node-pair voltage.
+  double sensed(const Probe& probe, int sensor, int reading, int plus, int minus) const {
+    return sensor >= 0 ? probe.signal(sensor, reading) : probe.voltage(plus, minus);
+  }
 
   Phase phase_ = Phase::Waiting;
   double next_attempt_ = 0.0;

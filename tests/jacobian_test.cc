@@ -208,6 +208,17 @@ const std::vector<std::string>& written_cases() {
       "  - {name: link, kind: capacitor, nodes: [b, gnd], capacitance: 1 mF, esr: 1 mOhm, initial_voltage: 340 V}\n"
       "  - {name: inverter, kind: constant_power_load, nodes: [b, gnd], power: 20 kW}\n"
       "run: {duration: 2 ms}\n",
+      // A fuse with a time-current curve in a resistor's path, and a filtered, loading BMS channel on the link.
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: supply, kind: dc_source, nodes: [plus, gnd], voltage: 400 V}\n"
+      "  - {name: f_pre, kind: fuse, nodes: [plus, a], resistance: 20 mOhm, melting_i2t: 50 A^2s,\n"
+      "     time_current: [[2 A, 100 s], [10 A, 1 s], [40 A, 20 ms]]}\n"
+      "  - {name: r_pre, kind: resistor, nodes: [a, link], resistance: 40 Ohm}\n"
+      "  - {name: c_link, kind: capacitor, nodes: [link, gnd], capacitance: 500 uF}\n"
+      "  - {name: link_sense, kind: voltage_sensor, nodes: [link, gnd], divider_resistance: 2 MOhm,\n"
+      "     filter_time_constant: 1 ms, gain: 101 %, offset: 1 V, resolution: 0.25 V}\n"
+      "run: {duration: 50 ms}\n",
   };
   return cases;
 }

@@ -53,6 +53,30 @@ TEST(StudyWindow, RecommendationFollowsTheRcExtremesAndCatchesTheFaults) {
   EXPECT_TRUE(window.verified()) << matrix_text(window.matrix);
 }
 
+// The same RC case read through a BMS channel with a ±2 % gain error: a high channel decides when the link reaches
+// 0.95/1.02 of the pack, a low one at 0.95/0.98, so the spread of decisions — and the recommended window — is wider
+// than with an ideal channel (RC closed form [R-RC-charge] with the reading g·v).
+TEST(StudyWindow, SensorGainErrorWidensTheWindow) {
+  std::string text = rc_case_text("  r_pre.resistance: {plus_minus: 10 %}\n"
+                                  "  link.capacitance: {minus: 20 %, plus: 10 %}\n"
+                                  "  link_sense.gain: {plus_minus: 2 %}\n");
+  text.replace(text.find("link: [link_plus, gnd]"), 22, "link: link_sense");
+  text.replace(text.find("sequence:"), 9,
+               "  - {name: link_sense, kind: voltage_sensor, nodes: [link_plus, gnd], gain: 100 %}\nsequence:");
+  FaultWindow window = fault_window(write_case("study_rc_sensed_window.yaml", text), {}, spread_plan(true, 0, 1, ""),
+                                    0.2, 2);
+  double fastest = 90.0 * 0.8e-3 * -std::log(1.0 - 0.95 / 1.02);
+  double slowest = std::ceil(110.0 * 1.1e-3 * -std::log(1.0 - 0.95 / 0.98) / 1e-3) * 1e-3;
+  // The reading's crossing lies between output rows (no watch on a reading): linear interpolation, well inside
+  // the 1 ms sample.
+  EXPECT_NEAR(window.fastest, fastest, 1e-4);
+  EXPECT_NEAR(window.slowest, slowest, 1e-9);
+  // Wider on both sides than the ideal channel's 215.7 ms … 363 ms (the test above).
+  EXPECT_LT(window.minimum_time, std::floor(0.8 * 90.0 * 0.8e-3 * to_95_percent() / 1e-3) * 1e-3);
+  EXPECT_GT(window.timeout, std::ceil(1.2 * 363e-3 / 1e-3) * 1e-3);
+  EXPECT_TRUE(window.problems.empty());
+}
+
 // The stored study case: the recommended window catches every stored fault scenario of the case.
 TEST(StudyWindow, StoredCaseWindowIsVerified) {
   std::string file = LINKRISE_SOURCE_DIR "/cases/study_precharge_window.yaml";

@@ -189,7 +189,11 @@ class Plan {
       return;
     }
     for (int i = 0; i < circuit_.part_count(); ++i) {
-      if (across_link(circuit_.part(i), sequence_.link)) p.document.reverse_part(circuit_.part(i).name(), at_);
+      // The BMS's own sensing stays as wired: only the load side is turned round.
+      const models::Part& part = circuit_.part(i);
+      if (part.role() != models::Role::Sensor && across_link(part, sequence_.link)) {
+        p.document.reverse_part(part.name(), at_);
+      }
     }
   }
 
