@@ -16,6 +16,9 @@ class Contactor final : public Part {
     closed_resistance_ = reader.quantity("closed_resistance", Dimension::resistance(), Bound::Positive, 0.3e-3);
     open_resistance_ = reader.quantity("open_resistance", Dimension::resistance(), Bound::Positive, 100e6);
     initially_closed_ = reader.word("initial", {"open", "closed"}, "open") == "closed";
+    const std::string stuck = reader.word("stuck", {"no", "closed", "open"}, "no");
+    stuck_closed_ = stuck == "closed";
+    stuck_open_ = stuck == "open";
     timing_.closing_delay = reader.quantity("closing_delay", Dimension::time(), Bound::NonNegative, 0.0);
     timing_.opening_delay = reader.quantity("opening_delay", Dimension::time(), Bound::NonNegative, 0.0);
     timing_.bounce_count = reader.count("bounce_count", 0, 0);
@@ -49,7 +52,10 @@ class Contactor final : public Part {
     // Progress 0 -> 1 through the parting; linear in time, so a loose tolerance is exact enough.
     return {{"parting", "1", 0.0, 1e4}};
   }
-  std::vector<int> do_initial_modes() const override { return {initially_closed_ ? kClosed : kOpen}; }
+  std::vector<int> do_initial_modes() const override {
+    if (stuck_closed_ || stuck_open_) return {stuck_closed_ ? kClosed : kOpen};
+    return {initially_closed_ ? kClosed : kOpen};
+  }
   std::vector<SignalInfo> do_extra_signals() const override { return {{"closed", "1"}}; }
   void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
     out[0] = point.modes[layout.mode] == kClosed ? 1.0 : 0.0;
@@ -95,6 +101,7 @@ class Contactor final : public Part {
     }
     int& mode = modes[layout.mode];
     int before = mode;
+    if (stuck_closed_ || stuck_open_) return {};  // welded or failed: the coil moves nothing
     if (action == netlist::Action::Close) {
       mode = kClosed;
     } else if (mode == kClosed && parts_gradually()) {
@@ -109,6 +116,7 @@ class Contactor final : public Part {
   double closed_resistance_ = 0.0;
   double open_resistance_ = 0.0;
   bool initially_closed_ = false;
+  bool stuck_closed_ = false, stuck_open_ = false;  // welded / failed to close
   double parting_time_ = 0.0;
   double span_ = 0.0;  // ln(R_open / R_closed)
   Actuation timing_;  // delays and bounce as read; do_actuation() adds the contact data

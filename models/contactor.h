@@ -3,7 +3,9 @@
 // (scheduled `events:` or the BMS sequence controller).
 //
 // Parameters: closed_resistance (Ohm, > 0, default 0.3 mOhm), open_resistance (Ohm, > closed, default 100 MOhm),
-//             initial: open | closed (default open).
+//             initial: open | closed (default open);
+//             stuck: no | closed | open (default no): a welded contactor (closed from the start, never opens)
+//             or one that fails to close (never touches); commands then move nothing. For fault scenarios.
 //   Actuation, used by the sequence controller only (scheduled events move the contact at their own time):
 //   closing_delay (s, >= 0, default 0): coil energised -> contacts touch;
 //   opening_delay (s, >= 0, default 0): coil released -> contacts part;

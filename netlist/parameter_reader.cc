@@ -42,7 +42,7 @@ std::string first_example(const Dimension& dimension) {
 
 bool is_percent_key(std::string_view key) {
   return key == "initial_soc" || key == "ratio" || key == "above" || key == "margin" || key == "quantile" ||
-         key == "pulse_derating" || key == "gain";
+         key == "pulse_derating" || key == "gain" || key == "below";
 }
 
 bool is_percent_path(std::string_view path) {

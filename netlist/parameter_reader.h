@@ -17,7 +17,9 @@ namespace linkrise::netlist {
 enum class Bound { Any, Positive, NonNegative, Fraction };
 
 /// The keys whose values are fractions of a whole: a cell string's `initial_soc`, the closing rule's `ratio`,
-/// the rise check's `above`, a limit's `margin`, the sizing spread's `quantile`, a fuse's `pulse_derating` and a voltage sensor's `gain`. The case may write them as '95 %' or 0.95; every output
+/// the rise and closure checks' `above`, the weld check's `below`, a limit's `margin`, the sizing spread's
+/// `quantile`, a fuse's `pulse_derating` and a voltage sensor's `gain`. The case may write them as '95 %' or
+/// 0.95; every output
 /// people read shows them in % (netlist::shown_unit), while the program holds them as fractions.
 bool is_percent_key(std::string_view key);
 /// The same for a parameter path ("pack.initial_soc", "sequence.close_when.ratio"): by its last key.

@@ -12,7 +12,8 @@
 namespace linkrise::netlist {
 
 const std::vector<std::string>& sequence_outcomes() {
-  static const std::vector<std::string> outcomes = {"closed", "timeout", "no_rise", "too_fast", "unfinished"};
+  static const std::vector<std::string> outcomes = {"closed",  "timeout",     "no_rise",   "too_fast",
+                                                      "live_bus", "welded",     "main_failed", "unfinished"};
   return outcomes;
 }
 
@@ -41,6 +42,12 @@ std::vector<std::pair<std::string, SourceMark>> SequenceSpec::moved_contactors()
   }
   moved.emplace_back(main, main_mark);
   return moved;
+}
+
+std::vector<std::string> SequenceSpec::moved_names() const {
+  std::vector<std::string> names = start_closed;
+  names.push_back(main);
+  return names;
 }
 
 namespace {
@@ -216,6 +223,51 @@ void read_retries(ParameterReader& reader, SequenceSpec& sequence) {
   sequence.expected_outcome = outcome_from_word(reader.word("expected_outcome", sequence_outcomes(), "closed"));
 }
 
+// weld_check: a list of steps, each closing some of the sequence's own contactors (or none) for a while.
+void read_weld_check(const Case& spec, ParameterReader& reader, SequenceSpec& sequence) {
+  const Tree* list = reader.child("weld_check");
+  if (list == nullptr) return;
+  if (!list->is_list() || list->items.empty()) {
+    throw InputError(list->mark, "the sequence's weld_check must be a list of steps",
+                     "write e.g. 'weld_check: [{close: [k_neg], hold: 50 ms, below: 10 %}]'");
+  }
+  const std::vector<std::string> moved = sequence.moved_names();
+  for (const Tree& item : list->items) {
+    ParameterReader step_reader(item, "a weld_check step");
+    WeldCheckStep step;
+    step.mark = item.mark;
+    step.hold = step_reader.required("hold", Dimension::time(), Bound::Positive);
+    step.below = step_reader.quantity("below", Dimension::none(), Bound::Fraction, 0.1);
+    const Tree* close = step_reader.child("close");
+    if (close == nullptr || !close->is_list()) {
+      throw InputError(close ? close->mark : item.mark, "a weld_check step needs 'close', the coils it energises",
+                       "write 'close: [k_neg]', or 'close: []' to watch the link with every contactor open");
+    }
+    for (const Tree& name : close->items) {
+      std::string part = contactor_name(spec, name, "weld_check contactor");
+      if (std::find(moved.begin(), moved.end(), part) == moved.end()) {
+        throw InputError(name.mark, fmt::format("weld_check closes '{}', which the sequence does not move", part),
+                         "name a contactor of start_closed or the main contactor");
+      }
+      step.close.push_back(part);
+      step.close_marks.push_back(name.mark);
+    }
+    step_reader.finish();
+    sequence.weld_check.push_back(std::move(step));
+  }
+}
+
+void read_closure_check(ParameterReader& reader, SequenceSpec& sequence) {
+  const Tree* block = reader.child("closure_check");
+  if (block == nullptr) return;
+  ParameterReader check(*block, "the sequence's closure_check");
+  ClosureCheck closure;
+  closure.after = check.required("after", Dimension::time(), Bound::Positive);
+  closure.above = check.quantity("above", Dimension::none(), Bound::Fraction, 0.9);
+  check.finish();
+  sequence.closure_check = closure;
+}
+
 // The times against each other and against the run's duration.
 void check_timing(const Case& spec, const ParameterReader& reader, const SequenceSpec& sequence) {
   if (!(sequence.sample_period < sequence.timeout)) {
@@ -261,6 +313,8 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   read_closing_rule(reader, *block, sequence);
   read_timing(reader, sequence);
   read_retries(reader, sequence);
+  read_weld_check(spec, reader, sequence);
+  read_closure_check(reader, sequence);
   reader.finish();
 
   check_timing(spec, reader, sequence);

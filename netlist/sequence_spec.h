@@ -20,8 +20,15 @@
 //     attempts: 3                    # total attempts (default 1); after a fault the next one starts
 //     cool_down: 2 s                 # at the first sample this long after the fault (required if attempts > 1)
 //     expected_outcome: closed       # what `linkrise run` treats as a pass (default closed)
+//     weld_check:                    # before each attempt's pre-charge, in order (optional):
+//       - {close: [k_neg], hold: 50 ms, below: 10 %}  # these coils alone for 50 ms; the link rising by 10 % of
+//                                                      # the pack -> welded
+//     closure_check: {after: 50 ms, above: 90 %}      # after the pre-charge path opened, link < 90 % -> main_failed
 //
-// All times of an attempt are measured from its start (the sample at which the coils are energised).
+// The closing rule holds from both sides: a link above pack/ratio (or pack + difference) is a source on the bus,
+// never a charging capacitor -> live_bus; so is a link already meeting the rule before the attempt closed anything.
+// All times of an attempt are measured from the start of its pre-charge (the sample at which the start_closed
+// coils are energised, after any weld checks).
 #include <optional>
 #include <string>
 #include <utility>
@@ -37,12 +44,30 @@ enum class ClosingRule { Ratio, Difference };
 
 /// How a sequence ends: the main contactor closed, or the fault that stopped the last attempt, or the run ended
 /// while the sequence was still going.
-enum class SequenceOutcome { Closed, Timeout, NoRise, TooFast, Unfinished };
-/// The outcome as case files and outputs write it: closed, timeout, no_rise, too_fast, unfinished.
+enum class SequenceOutcome { Closed, Timeout, NoRise, TooFast, LiveBus, Welded, MainFailed, Unfinished };
+/// The outcome as case files and outputs write it: closed, timeout, no_rise, too_fast, live_bus, welded,
+/// main_failed, unfinished.
 const char* outcome_word(SequenceOutcome outcome);
 
 struct NodePair {
   std::string plus, minus;
+};
+
+/// One step of the weld check: these coils alone (none: all open) for `hold`; the link must not rise by
+/// `below`·pack above its reading at the step's start, or a contactor that should be open is welded.
+struct WeldCheckStep {
+  std::vector<std::string> close;
+  double hold = 0.0;   // s
+  double below = 0.1;  // fraction of pack
+  SourceMark mark;
+  std::vector<SourceMark> close_marks;
+};
+
+/// After the pre-charge path has opened, the link must still read at least `above`·pack `after` later, or the
+/// main contactor did not close.
+struct ClosureCheck {
+  double after = 0.0;  // s
+  double above = 0.9;  // fraction of pack
 };
 
 struct SequenceSpec {
@@ -66,6 +91,8 @@ struct SequenceSpec {
   int attempts = 1;
   double cool_down = 0.0;            // s
   SequenceOutcome expected_outcome = SequenceOutcome::Closed;
+  std::vector<WeldCheckStep> weld_check;
+  std::optional<ClosureCheck> closure_check;
   SourceMark mark;
   // Where each named part is written, for the checks made once the part kinds are known.
   std::vector<SourceMark> start_closed_marks;
@@ -73,10 +100,16 @@ struct SequenceSpec {
 
   /// Every contactor the sequence moves (start_closed, then main) with the place it is named.
   std::vector<std::pair<std::string, SourceMark>> moved_contactors() const;
+  /// The same names alone.
+  std::vector<std::string> moved_names() const;
 
   /// The closing level on the link for a given pack voltage: ratio·pack or pack − difference.
   double closing_level(double pack_voltage) const {
     return rule == ClosingRule::Ratio ? rule_value * pack_voltage : pack_voltage - rule_value;
+  }
+  /// The upper side of the rule: pack/ratio or pack + difference. A link above it is fed from elsewhere.
+  double upper_level(double pack_voltage) const {
+    return rule == ClosingRule::Ratio ? pack_voltage / rule_value : pack_voltage + rule_value;
   }
   /// Plain words for reports, e.g. "link >= 95 % of pack" or "pack - link <= 20 V".
   std::string rule_text() const;

@@ -42,6 +42,10 @@ SequenceController::SequenceController(const Circuit& circuit, netlist::Sequence
   main_ = contactor_index(circuit, spec_.main, spec_.mark);
   precharge_ = contactor_index(circuit, spec_.precharge, spec_.mark);
   for (const auto& name : spec_.start_closed) start_closed_.push_back(contactor_index(circuit, name, spec_.mark));
+  for (const auto& step : spec_.weld_check) {
+    weld_steps_.emplace_back();
+    for (const auto& name : step.close) weld_steps_.back().push_back(contactor_index(circuit, name, step.mark));
+  }
   pack_plus_ = circuit.node_index(spec_.pack.plus);
   pack_minus_ = circuit.node_index(spec_.pack.minus);
   link_plus_ = circuit.node_index(spec_.link.plus);
@@ -94,26 +98,128 @@ void SequenceController::schedule_close(int part, double coil_time, const std::s
   }
 }
 
-void SequenceController::start_attempt(double time, std::vector<Command>& commands,
+void SequenceController::begin_attempt(double time, double pack, double link, std::vector<Command>& commands,
                                        std::vector<TimelineEntry>& timeline) {
   AttemptRecord record;
   record.number = static_cast<int>(history_.size()) + 1;
   record.start = time;
+  history_.push_back(record);
+  have_previous_ = false;
+  rise_checked_ = false;
+  // Nothing is closed yet: a link that already meets the rule (or stands above the pack) is fed from elsewhere.
+  if (pack > 0.0 && (link >= spec_.closing_level(pack) || link > spec_.upper_level(pack))) {
+    timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
+                                     "link and pack read before any coil is energised"});
+    raise_fault(time, netlist::SequenceOutcome::LiveBus,
+                fmt::format("link {} already meets '{}' (pack {}) before the attempt closed anything: a source on "
+                            "the bus (a charger, a second pack, a motor turning the inverter's diodes) or charge an "
+                            "earlier attempt left that the bleed has not removed",
+                            format_si(link, "V"), spec_.rule_text(), format_si(pack, "V")),
+                commands, timeline);
+    return;
+  }
+  if (weld_steps_.empty()) {
+    start_precharge(time, false, commands, timeline);
+    return;
+  }
+  timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
+                                   fmt::format("weld check first ({} step{})", weld_steps_.size(),
+                                               weld_steps_.size() == 1 ? "" : "s")});
+  weld_step_ = 0;
+  start_weld_step(time, commands, timeline);
+}
+
+void SequenceController::start_precharge(double time, bool after_checks, std::vector<Command>& commands,
+                                         std::vector<TimelineEntry>& timeline) {
+  AttemptRecord& record = history_.back();
+  record.start = time;  // the attempt's times run from its pre-charge
   std::string names;
   double last_touch = time;
+  energised_.clear();
   for (int part : start_closed_) {
     double touch = time;
     schedule_close(part, time, fmt::format("attempt {} start", record.number), commands, touch);
     last_touch = std::max(last_touch, touch);
     names += (names.empty() ? "" : ", ") + circuit_.part(part).name();
+    energised_.push_back(part);
   }
   record.contacts_closed = last_touch;
-  timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
-                                   fmt::format("coils of {} energised", names)});
-  history_.push_back(record);
+  if (after_checks) {
+    timeline.push_back(TimelineEntry{time, fmt::format("pre-charge {} starts", record.number),
+                                     fmt::format("weld check passed; coils of {} energised", names)});
+  } else {
+    timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
+                                     fmt::format("coils of {} energised", names)});
+  }
   phase_ = Phase::Charging;
   have_previous_ = false;
-  rise_checked_ = false;
+}
+
+void SequenceController::start_weld_step(double time, std::vector<Command>& commands,
+                                         std::vector<TimelineEntry>& timeline) {
+  const auto& step = spec_.weld_check[weld_step_];
+  std::string names;
+  energised_.clear();
+  for (int part : weld_steps_[weld_step_]) {
+    double touch = time;
+    schedule_close(part, time, fmt::format("weld check {}", weld_step_ + 1), commands, touch);
+    names += (names.empty() ? "" : ", ") + circuit_.part(part).name();
+    energised_.push_back(part);
+  }
+  timeline.push_back(TimelineEntry{
+      time, fmt::format("weld check {} of {}", weld_step_ + 1, weld_steps_.size()),
+      fmt::format("{}; the link must not rise by {:g} % of pack within {}",
+                  names.empty() ? "every contactor open" : "coils of " + names + " energised alone",
+                  100.0 * step.below, format_si(step.hold, "s"))});
+  weld_step_start_ = time;
+  weld_link_start_ = last_link_;
+  weld_releasing_ = false;
+  phase_ = Phase::Checking;
+}
+
+void SequenceController::weld_sample(double time, double pack, double link, std::vector<Command>& commands,
+                                     std::vector<TimelineEntry>& timeline) {
+  const auto& step = spec_.weld_check[weld_step_];
+  if (!weld_releasing_) {
+    // A rise, not a level: charge an earlier attempt left behind drains, a weld feeds the link.
+    if (pack > 0.0 && link - weld_link_start_ >= step.below * pack) {
+      std::string closed, suspects;
+      for (const auto& name : step.close) closed += (closed.empty() ? "" : ", ") + name;
+      for (const auto& name : spec_.moved_names()) {
+        if (std::find(step.close.begin(), step.close.end(), name) == step.close.end()) {
+          suspects += (suspects.empty() ? "" : " or ") + name;
+        }
+      }
+      raise_fault(time, netlist::SequenceOutcome::Welded,
+                  fmt::format("link rose from {} to {}, by {:g} % of pack ({}) or more, in weld check {} with {}: a "
+                              "contactor that should be open is welded ({}?)",
+                              format_si(weld_link_start_, "V"), format_si(link, "V"), 100.0 * step.below,
+                              format_si(pack, "V"), weld_step_ + 1,
+                              closed.empty() ? "every contactor open" : "only " + closed + " closed", suspects),
+                  commands, timeline);
+      return;
+    }
+    if (!due(time - weld_step_start_, step.hold)) return;
+    weld_next_ = release_coils(time, fmt::format("weld check {} passed", weld_step_ + 1), commands);
+    weld_releasing_ = true;
+  }
+  if (time < weld_next_) return;  // the next step begins only once these contacts have parted
+  if (++weld_step_ < weld_steps_.size()) {
+    start_weld_step(time, commands, timeline);
+  } else {
+    start_precharge(time, true, commands, timeline);
+  }
+}
+
+double SequenceController::release_coils(double time, const std::string& why, std::vector<Command>& commands) {
+  double latest = time;
+  for (int part : energised_) {
+    double parted = time + timing_of(circuit_, part).opening_delay;
+    commands.push_back(Command{parted, part, netlist::Action::Open, why});
+    latest = std::max(latest, parted);
+  }
+  energised_.clear();
+  return latest;
 }
 
 void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason,
@@ -124,12 +230,7 @@ void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault
   record.reason = reason;
   const char* word = netlist::outcome_word(fault);
   timeline.push_back(TimelineEntry{time, fmt::format("fault {}", word), reason});
-  double latest = time;
-  for (int part : start_closed_) {
-    double parted = time + timing_of(circuit_, part).opening_delay;
-    commands.push_back(Command{parted, part, netlist::Action::Open, fmt::format("fault {}: pre-charge path opened", word)});
-    latest = std::max(latest, parted);
-  }
+  double latest = release_coils(time, fmt::format("fault {}: pre-charge path opened", word), commands);
   if (static_cast<int>(history_.size()) < spec_.attempts) {
     phase_ = Phase::Waiting;
     next_attempt_ = time + spec_.cool_down;
@@ -148,6 +249,7 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
   const double t = probe.time;
   const double pack = sensed(probe, pack_sensor_, pack_reading_, pack_plus_, pack_minus_);
   const double link = sensed(probe, link_sensor_, link_reading_, link_plus_, link_minus_);
+  last_link_ = link;
   switch (phase_) {
     case Phase::Closed:
       return;
@@ -155,13 +257,26 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
       if (t > last_command_) done_ = true;
       return;
     case Phase::Waiting:
-      if (due(t, next_attempt_)) start_attempt(t, commands, timeline);
+      if (due(t, next_attempt_)) begin_attempt(t, pack, link, commands, timeline);
       previous_link_ = link;
       have_previous_ = true;
       return;
+    case Phase::Checking:
+      weld_sample(t, pack, link, commands, timeline);
+      previous_link_ = link;
+      have_previous_ = true;
+      return;
+    case Phase::Verifying:
+      verify_sample(t, pack, link, commands, timeline);
+      return;
     case Phase::Charging:
-      break;
+      charging_sample(t, pack, link, commands, timeline);
+      return;
   }
+}
+
+void SequenceController::charging_sample(double t, double pack, double link, std::vector<Command>& commands,
+                                         std::vector<TimelineEntry>& timeline) {
   AttemptRecord& record = history_.back();
   const double elapsed = t - record.start;
   double rate = have_previous_ ? std::fabs(link - previous_link_) / spec_.sample_period : 0.0;
@@ -170,6 +285,14 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
   previous_link_ = link;
   have_previous_ = true;
 
+  if (pack > 0.0 && link > spec_.upper_level(pack)) {
+    raise_fault(t, netlist::SequenceOutcome::LiveBus,
+                fmt::format("link {} is above pack {} beyond '{}' seen from the other side: the link is fed from "
+                            "elsewhere (a charger, a second pack, a motor turning the inverter's diodes)",
+                            format_si(link, "V"), format_si(pack, "V"), spec_.rule_text()),
+                commands, timeline);
+    return;
+  }
   if (level_met && rate_met) {
     if (spec_.minimum_time > 0.0 && !due(elapsed, spec_.minimum_time)) {
       raise_fault(t, netlist::SequenceOutcome::TooFast,
@@ -180,22 +303,9 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
                   commands, timeline);
       return;
     }
-    record.decision = t;
     record.reason = fmt::format("link {} met '{}' (pack {}) after {}", format_si(link, "V"), spec_.rule_text(),
                                 format_si(pack, "V"), format_si(elapsed, "s"));
-    timeline.push_back(TimelineEntry{t, fmt::format("decide to close {}", spec_.main), record.reason});
-    double touch = t;
-    schedule_close(main_, t, "closing decision", commands, touch);
-    record.main_closed = touch;
-    auto pre = timing_of(circuit_, precharge_);
-    double coil_off = touch + spec_.overlap;
-    record.released = coil_off + pre.opening_delay;
-    commands.push_back(Command{record.released, precharge_, netlist::Action::Open,
-                               fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
-                                           pre.opening_delay > 0.0
-                                               ? fmt::format(", then opening delay {}", format_si(pre.opening_delay, "s"))
-                                               : "")});
-    phase_ = Phase::Closed;
+    decide(t, commands, timeline);
     return;
   }
   if (spec_.rise_fraction && !rise_checked_ && due(elapsed, spec_.rise_by)) {
@@ -217,6 +327,51 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
                             format_si(spec_.timeout, "s"), format_si(link, "V"), format_si(pack, "V")),
                 commands, timeline);
   }
+}
+
+void SequenceController::decide(double t, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) {
+  AttemptRecord& record = history_.back();
+  record.decision = t;
+  timeline.push_back(TimelineEntry{t, fmt::format("decide to close {}", spec_.main), record.reason});
+  double touch = t;
+  schedule_close(main_, t, "closing decision", commands, touch);
+  record.main_closed = touch;
+  auto pre = timing_of(circuit_, precharge_);
+  double coil_off = touch + spec_.overlap;
+  record.released = coil_off + pre.opening_delay;
+  commands.push_back(Command{record.released, precharge_, netlist::Action::Open,
+                             fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
+                                         pre.opening_delay > 0.0
+                                             ? fmt::format(", then opening delay {}", format_si(pre.opening_delay, "s"))
+                                             : "")});
+  // From here the BMS holds the main coil and the other start_closed coils; the pre-charge one is let go.
+  energised_.erase(std::remove(energised_.begin(), energised_.end(), precharge_), energised_.end());
+  energised_.push_back(main_);
+  if (spec_.closure_check) {
+    verify_at_ = record.released + spec_.closure_check->after;
+    phase_ = Phase::Verifying;
+  } else {
+    phase_ = Phase::Closed;
+  }
+}
+
+void SequenceController::verify_sample(double t, double pack, double link, std::vector<Command>& commands,
+                                       std::vector<TimelineEntry>& timeline) {
+  if (t < verify_at_ - 1e-9 * spec_.sample_period) return;
+  const double above = spec_.closure_check->above;
+  if (pack > 0.0 && link >= above * pack) {
+    timeline.push_back(TimelineEntry{t, "closure verified",
+                                     fmt::format("link {} at least {:g} % of pack ({}) after the pre-charge path "
+                                                 "opened", format_si(link, "V"), 100.0 * above, format_si(pack, "V"))});
+    phase_ = Phase::Closed;
+    return;
+  }
+  raise_fault(t, netlist::SequenceOutcome::MainFailed,
+              fmt::format("link {} is below {:g} % of pack ({}) {} after the pre-charge path opened: the main "
+                          "contactor {} did not close, or the load draws the link down through it",
+                          format_si(link, "V"), 100.0 * above, format_si(pack, "V"),
+                          format_si(spec_.closure_check->after, "s"), spec_.main),
+              commands, timeline);
 }
 
 SequenceReport SequenceController::report(double end_time) const {
@@ -241,10 +396,10 @@ SequenceReport SequenceController::report(double end_time) const {
     }
   }
   if (const AttemptRecord* last = report.last()) {
-    if (!std::isnan(last->main_closed)) {
+    if (last->fault && phase_ == Phase::Faulted) {
+      report.outcome = *last->fault;  // a closure the check found failed is a fault too
+    } else if (!last->fault && !std::isnan(last->main_closed)) {
       report.outcome = netlist::SequenceOutcome::Closed;
-    } else if (last->fault && phase_ == Phase::Faulted) {
-      report.outcome = *last->fault;
     }
   }
   return report;

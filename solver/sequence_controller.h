@@ -13,6 +13,14 @@
 //  - on a fault: every start_closed coil is released (contacts part after their opening delays); with
 //    attempts left the next attempt starts at the first sample cool_down after the fault. States (link
 //    charge, temperatures) carry across: it is one continuous simulation.
+// The closing rule holds from both sides: a link above its upper side (pack/ratio, pack + difference), or one
+// already meeting the rule when an attempt begins, is fed from elsewhere -> "live_bus".
+// Weld check (optional, before each attempt's pre-charge): each step energises its coils alone for its hold time;
+// a link rising by its share of the pack means a contactor that should be open is welded -> "welded" (a rise, so
+// charge left by an earlier attempt, which only drains, is not mistaken for a weld). The coils are released
+// and the next step (or the pre-charge) begins at the first sample after the contacts parted.
+// Closure check (optional): `after` the pre-charge contacts parted the link must still read its level, or the
+// main contactor did not close -> "main_failed" (its coil is released too).
 // After the last fault the controller reports finished() once its contacts have parted, so the run stops.
 #include <vector>
 
@@ -38,12 +46,25 @@ class SequenceController final : public Supervisor {
   SequenceReport report(double end_time) const;
 
  private:
-  enum class Phase { Waiting, Charging, Closed, Faulted };
+  enum class Phase { Waiting, Checking, Charging, Verifying, Closed, Faulted };
   double tick(long index) const { return spec_.start + static_cast<double>(index) * spec_.sample_period; }
   bool due(double elapsed, double limit) const { return elapsed >= limit - 1e-9 * spec_.sample_period; }
   void schedule_close(int part, double coil_time, const std::string& why, std::vector<Command>& commands,
                       double& touch) const;
-  void start_attempt(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
+  void begin_attempt(double time, double pack, double link, std::vector<Command>& commands,
+                     std::vector<TimelineEntry>& timeline);
+  void start_precharge(double time, bool after_checks, std::vector<Command>& commands,
+                       std::vector<TimelineEntry>& timeline);
+  void start_weld_step(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
+  void weld_sample(double time, double pack, double link, std::vector<Command>& commands,
+                   std::vector<TimelineEntry>& timeline);
+  void charging_sample(double time, double pack, double link, std::vector<Command>& commands,
+                       std::vector<TimelineEntry>& timeline);
+  void decide(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
+  void verify_sample(double time, double pack, double link, std::vector<Command>& commands,
+                     std::vector<TimelineEntry>& timeline);
+  /// Releases every energised coil; returns the time the last contacts part.
+  double release_coils(double time, const std::string& why, std::vector<Command>& commands);
   void raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason, std::vector<Command>& commands,
                    std::vector<TimelineEntry>& timeline);
 
@@ -51,6 +72,7 @@ class SequenceController final : public Supervisor {
   netlist::SequenceSpec spec_;
   int main_ = -1, precharge_ = -1;
   std::vector<int> start_closed_;
+  std::vector<std::vector<int>> weld_steps_;  // the coils of each weld-check step
   int pack_plus_ = -1, pack_minus_ = -1, link_plus_ = -1, link_minus_ = -1;
   int pack_sensor_ = -1, link_sensor_ = -1;  // voltage_sensor parts read instead of the node pairs, or -1
   int pack_reading_ = -1, link_reading_ = -1;  // index of each sensor's `reading` among its signals
@@ -64,6 +86,14 @@ class SequenceController final : public Supervisor {
   double previous_link_ = 0.0;
   bool have_previous_ = false;
   bool rise_checked_ = false;
+  std::vector<int> energised_;   // coils held now, in the order they were energised (released on a fault)
+  std::size_t weld_step_ = 0;    // the weld-check step running
+  double weld_step_start_ = 0.0;
+  double weld_link_start_ = 0.0;  // the link read when the step began
+  double last_link_ = 0.0;        // the link read at the current sample
+  bool weld_releasing_ = false;  // the step's hold is over; waiting for its contacts to part
+  double weld_next_ = 0.0;       // when they have parted
+  double verify_at_ = 0.0;       // the closure check's sample time
   double last_command_ = 0.0;
   bool done_ = false;
   std::vector<AttemptRecord> history_;

@@ -365,8 +365,9 @@ TEST_F(Cli, CompareWithFaultsRunsTheScenariosPerVariant) {
   Outcome result = run("compare \"" + study_case + "\" --faults -j 2 -o \"" + output.string() + "\"");
   ASSERT_EQ(result.exit_code, 0) << result.err;
   auto csv = lines(slurp(output / "compare_faults.csv"));
-  // Nominal and three variants, nine scenarios each, after the header.
-  ASSERT_EQ(csv.size(), 1u + 4u * 9u);
+  // Nominal and three variants, sixteen scenarios each, after the header: nine, then each of the three moved
+  // contactors welded and failed, and the live bus.
+  ASSERT_EQ(csv.size(), 1u + 4u * 16u);
   // The case's resistor-tolerance scenario overrides a parameter the thermistor variants do not have.
   bool ptc_not_applicable = false;
   for (const auto& line : csv) {
@@ -376,7 +377,7 @@ TEST_F(Cli, CompareWithFaultsRunsTheScenariosPerVariant) {
   EXPECT_TRUE(ptc_not_applicable);
   std::ifstream in(output / "compare.json");
   const auto json = nlohmann::json::parse(in);
-  EXPECT_EQ(json["variants"][1]["faults"]["rows"].size(), 9u);
+  EXPECT_EQ(json["variants"][1]["faults"]["rows"].size(), 16u);
 }
 
 TEST_F(Cli, SweepExitsOneWhenNoPointPassesAndWindowHintsItsOwnName) {

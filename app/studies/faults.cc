@@ -23,6 +23,7 @@
 #include "netlist/case_document.h"
 #include "netlist/sequence_spec.h"
 #include "netlist/units.h"
+#include "solver/equations.h"
 
 namespace linkrise::app {
 
@@ -91,6 +92,19 @@ netlist::SequenceOutcome caught_outcome(const netlist::SequenceSpec& sequence) {
   return sequence.rise_fraction ? netlist::SequenceOutcome::NoRise : netlist::SequenceOutcome::Timeout;
 }
 
+// The sensed pack voltage at t = 0 (every contactor as the case starts it): the pack at rest.
+double pack_at_rest(const solver::Circuit& circuit, const netlist::SequenceSpec& sequence) {
+  solver::Equations equations(circuit);
+  std::vector<double> states = circuit.initial_states(), unknowns(circuit.unknown_count(), 0.0);
+  std::vector<int> modes = circuit.initial_modes();
+  if (!equations.solve_network(0.0, states.data(), modes.data(), unknowns.data())) return std::nan("");
+  const auto voltage = [&](const std::string& node) {
+    const int index = circuit.node_index(node);
+    return index < 0 ? 0.0 : unknowns[static_cast<std::size_t>(index)];
+  };
+  return voltage(sequence.pack.plus) - voltage(sequence.pack.minus);
+}
+
 // The plan under construction: the rows in order, each with its own copy of the case document.
 class Plan {
  public:
@@ -106,6 +120,8 @@ class Plan {
     scaled_capacitance();
     constant_power_from_start();
     reversed_connection();
+    contactor_faults();
+    live_bus();
     case_scenarios();
     return std::move(planned_);
   }
@@ -195,6 +211,60 @@ class Plan {
         p.document.reverse_part(part.name(), at_);
       }
     }
+  }
+
+  // Each contactor the sequence moves, welded (closed from the start) and failed (never touches). A weld is
+  // caught only by a weld check, a failed main contactor only by the closure check; without them the row is not
+  // applicable, with the reason.
+  void contactor_faults() {
+    for (const auto& name : sequence_.moved_names()) {
+      Planned& p = add("welded_" + name, fmt::format("{} welded: closed from the start, never opens", name),
+                       netlist::SequenceOutcome::Welded);
+      if (sequence_.weld_check.empty()) {
+        not_applicable(p, "the sequence has no weld_check, so nothing can catch a weld (add a step that closes one "
+                          "contactor alone and requires the link not to rise)");
+        continue;
+      }
+      p.document.apply({name + ".stuck", "closed", at_});
+    }
+    for (const auto& name : sequence_.moved_names()) {
+      const bool main = name == sequence_.main;
+      Planned& p = add("failed_" + name, fmt::format("{} fails to close: its contacts never touch", name),
+                       main ? netlist::SequenceOutcome::MainFailed : caught_);
+      if (main && !sequence_.closure_check) {
+        not_applicable(p, "the sequence has no closure_check, so nothing notices the main contacts never touched "
+                          "(the load then drains the link once the pre-charge path opens)");
+        continue;
+      }
+      p.document.apply({name + ".stuck", "open", at_});
+    }
+  }
+
+  // A source already on the bus (a charger, a second pack) behind a diode, 2 % above the pack at rest, with the
+  // link capacitors charged to it before the BMS wakes: caught as live_bus, never as too_fast.
+  void live_bus() {
+    Planned& p = add("live_bus", "a source 2 % above the pack feeds the link through a diode",
+                     netlist::SequenceOutcome::LiveBus);
+    const auto storage = parts_where(circuit_, sequence_, models::Role::Storage, true);
+    const double pack = pack_at_rest(circuit_, sequence_);
+    if (!(pack > 0.0)) {
+      not_applicable(p, "the pack reads no voltage with every contactor open");
+      return;
+    }
+    const double bus = 1.02 * pack;
+    const std::string source = p.document.unused_part_name("scenario_bus");
+    const std::string diode = p.document.unused_part_name("scenario_bus_diode");
+    const std::string node = source + "_plus";
+    p.document.add_part(source, "dc_source", node, sequence_.link.minus,
+                        {{"voltage", netlist::quantity_text(bus, netlist::Dimension::voltage(), false)},
+                         {"series_resistance", "0.5 Ohm"}},
+                        at_);
+    p.document.add_part(diode, "diode", node, sequence_.link.plus, {}, at_);
+    for (const models::Part* part : storage) {  // storage parts hold their charge as `initial_voltage`
+      p.document.apply({part->name() + ".initial_voltage",
+                        netlist::quantity_text(bus - 0.7, netlist::Dimension::voltage(), false), at_});
+    }
+    p.row.note = fmt::format("bus at {} (2 % above the pack at rest)", netlist::format_si(bus, "V"));
   }
 
   void case_scenarios() {
