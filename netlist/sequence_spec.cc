@@ -268,6 +268,16 @@ void read_closure_check(ParameterReader& reader, SequenceSpec& sequence) {
   sequence.closure_check = closure;
 }
 
+void read_key_cycles(ParameterReader& reader, SequenceSpec& sequence) {
+  const Tree* block = reader.child("key_cycles");
+  if (block == nullptr) return;
+  ParameterReader cycles(*block, "the sequence's key_cycles");
+  sequence.key_cycles.count = cycles.count("count", 1, 1);
+  sequence.key_cycles.on_time = cycles.required("on_time", Dimension::time(), Bound::Positive);
+  sequence.key_cycles.off_time = cycles.required("off_time", Dimension::time(), Bound::Positive);
+  cycles.finish();
+}
+
 // The times against each other and against the run's duration.
 void check_timing(const Case& spec, const ParameterReader& reader, const SequenceSpec& sequence) {
   if (!(sequence.sample_period < sequence.timeout)) {
@@ -315,6 +325,7 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   read_retries(reader, sequence);
   read_weld_check(spec, reader, sequence);
   read_closure_check(reader, sequence);
+  read_key_cycles(reader, sequence);
   reader.finish();
 
   check_timing(spec, reader, sequence);

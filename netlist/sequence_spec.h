@@ -24,6 +24,8 @@
 //       - {close: [k_neg], hold: 50 ms, below: 10 %}  # these coils alone for 50 ms; the link rising by 10 % of
 //                                                      # the pack -> welded
 //     closure_check: {after: 50 ms, above: 90 %}      # after the pre-charge path opened, link < 90 % -> main_failed
+//     key_cycles: {count: 5, on_time: 20 s, off_time: 60 s}  # a duty: key-off on_time after each main closure
+//                                    # (every coil released), the next key-on off_time later (optional)
 //
 // The closing rule holds from both sides: a link above pack/ratio (or pack + difference) is a source on the bus,
 // never a charging capacitor -> live_bus; so is a link already meeting the rule before the attempt closed anything.
@@ -70,6 +72,14 @@ struct ClosureCheck {
   double above = 0.9;  // fraction of pack
 };
 
+/// A duty of repeated key cycles: each closure is held `on_time` (from the main contacts touching), then every
+/// coil is released (key off) and the next cycle's first attempt starts `off_time` later; retries count per cycle.
+struct KeyCycles {
+  int count = 1;
+  double on_time = 0.0;   // s
+  double off_time = 0.0;  // s
+};
+
 struct SequenceSpec {
   std::vector<std::string> start_closed;
   std::string precharge;
@@ -93,6 +103,7 @@ struct SequenceSpec {
   SequenceOutcome expected_outcome = SequenceOutcome::Closed;
   std::vector<WeldCheckStep> weld_check;
   std::optional<ClosureCheck> closure_check;
+  KeyCycles key_cycles;
   SourceMark mark;
   // Where each named part is written, for the checks made once the part kinds are known.
   std::vector<SourceMark> start_closed_marks;

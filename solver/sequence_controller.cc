@@ -102,6 +102,7 @@ void SequenceController::begin_attempt(double time, double pack, double link, st
                                        std::vector<TimelineEntry>& timeline) {
   AttemptRecord record;
   record.number = static_cast<int>(history_.size()) + 1;
+  record.cycle = cycle_;
   record.start = time;
   history_.push_back(record);
   have_previous_ = false;
@@ -231,13 +232,13 @@ void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault
   const char* word = netlist::outcome_word(fault);
   timeline.push_back(TimelineEntry{time, fmt::format("fault {}", word), reason});
   double latest = release_coils(time, fmt::format("fault {}: pre-charge path opened", word), commands);
-  if (static_cast<int>(history_.size()) < spec_.attempts) {
+  const int used = static_cast<int>(history_.size() - cycle_first_);  // attempts of this key cycle
+  if (used < spec_.attempts) {
     phase_ = Phase::Waiting;
     next_attempt_ = time + spec_.cool_down;
     timeline.push_back(TimelineEntry{time, "cool-down",
-                                     fmt::format("attempt {} of {} at the first sample after {}",
-                                                 history_.size() + 1, spec_.attempts,
-                                                 format_si(spec_.cool_down, "s"))});
+                                     fmt::format("attempt {} of {} at the first sample after {}", used + 1,
+                                                 spec_.attempts, format_si(spec_.cool_down, "s"))});
   } else {
     phase_ = Phase::Faulted;
     last_command_ = latest;
@@ -268,6 +269,9 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
       return;
     case Phase::Verifying:
       verify_sample(t, pack, link, commands, timeline);
+      return;
+    case Phase::Holding:
+      holding_sample(t, commands, timeline);
       return;
     case Phase::Charging:
       charging_sample(t, pack, link, commands, timeline);
@@ -351,8 +355,30 @@ void SequenceController::decide(double t, std::vector<Command>& commands, std::v
     verify_at_ = record.released + spec_.closure_check->after;
     phase_ = Phase::Verifying;
   } else {
-    phase_ = Phase::Closed;
+    closed();
   }
+}
+
+void SequenceController::closed() {
+  if (cycle_ >= spec_.key_cycles.count) {
+    phase_ = Phase::Closed;
+    return;
+  }
+  key_off_at_ = history_.back().main_closed + spec_.key_cycles.on_time;
+  phase_ = Phase::Holding;
+}
+
+void SequenceController::holding_sample(double t, std::vector<Command>& commands,
+                                        std::vector<TimelineEntry>& timeline) {
+  if (t < key_off_at_ - 1e-9 * spec_.sample_period) return;
+  release_coils(t, "key off", commands);
+  timeline.push_back(TimelineEntry{t, fmt::format("key off {} of {}", cycle_, spec_.key_cycles.count),
+                                   fmt::format("every coil released; the next key-on {} later",
+                                               format_si(spec_.key_cycles.off_time, "s"))});
+  ++cycle_;
+  cycle_first_ = history_.size();
+  next_attempt_ = t + spec_.key_cycles.off_time;
+  phase_ = Phase::Waiting;
 }
 
 void SequenceController::verify_sample(double t, double pack, double link, std::vector<Command>& commands,
@@ -363,7 +389,7 @@ void SequenceController::verify_sample(double t, double pack, double link, std::
     timeline.push_back(TimelineEntry{t, "closure verified",
                                      fmt::format("link {} at least {:g} % of pack ({}) after the pre-charge path "
                                                  "opened", format_si(link, "V"), 100.0 * above, format_si(pack, "V"))});
-    phase_ = Phase::Closed;
+    closed();
     return;
   }
   raise_fault(t, netlist::SequenceOutcome::MainFailed,
@@ -388,6 +414,7 @@ SequenceReport SequenceController::report(double end_time) const {
     clear_after(record.released);
   }
   report.attempts = static_cast<int>(report.history.size());
+  report.cycles = report.history.empty() ? 0 : report.history.back().cycle;
   for (const auto& record : report.history) {
     if (record.fault) {
       report.first_fault = record.fault;

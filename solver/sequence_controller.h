@@ -21,6 +21,8 @@
 // and the next step (or the pre-charge) begins at the first sample after the contacts parted.
 // Closure check (optional): `after` the pre-charge contacts parted the link must still read its level, or the
 // main contactor did not close -> "main_failed" (its coil is released too).
+// Key cycles (optional): a closure is held on_time from the main contacts touching, then every coil is released
+// (key off) and the next cycle's first attempt begins off_time later; retries count per cycle.
 // After the last fault the controller reports finished() once its contacts have parted, so the run stops.
 #include <vector>
 
@@ -46,7 +48,7 @@ class SequenceController final : public Supervisor {
   SequenceReport report(double end_time) const;
 
  private:
-  enum class Phase { Waiting, Checking, Charging, Verifying, Closed, Faulted };
+  enum class Phase { Waiting, Checking, Charging, Verifying, Holding, Closed, Faulted };
   double tick(long index) const { return spec_.start + static_cast<double>(index) * spec_.sample_period; }
   bool due(double elapsed, double limit) const { return elapsed >= limit - 1e-9 * spec_.sample_period; }
   void schedule_close(int part, double coil_time, const std::string& why, std::vector<Command>& commands,
@@ -63,6 +65,9 @@ class SequenceController final : public Supervisor {
   void decide(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
   void verify_sample(double time, double pack, double link, std::vector<Command>& commands,
                      std::vector<TimelineEntry>& timeline);
+  /// After a closure: hold it until key-off when key cycles remain, else stay closed.
+  void closed();
+  void holding_sample(double time, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
   /// Releases every energised coil; returns the time the last contacts part.
   double release_coils(double time, const std::string& why, std::vector<Command>& commands);
   void raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason, std::vector<Command>& commands,
@@ -94,6 +99,9 @@ class SequenceController final : public Supervisor {
   bool weld_releasing_ = false;  // the step's hold is over; waiting for its contacts to part
   double weld_next_ = 0.0;       // when they have parted
   double verify_at_ = 0.0;       // the closure check's sample time
+  int cycle_ = 1;                // the key cycle running
+  std::size_t cycle_first_ = 0;  // index in history_ of its first attempt (retries count per cycle)
+  double key_off_at_ = 0.0;      // when the closure held in this cycle is let go
   double last_command_ = 0.0;
   bool done_ = false;
   std::vector<AttemptRecord> history_;

@@ -14,6 +14,7 @@ constexpr double kNotReached = std::numeric_limits<double>::quiet_NaN();
 
 struct AttemptRecord {
   int number = 1;
+  int cycle = 1;                     // the key cycle it belongs to (1 without key_cycles)
   double start = kNotReached;        // coils of the start_closed contactors energised (a BMS sample)
   double contacts_closed = kNotReached;  // the last start_closed contact touched
   double decision = kNotReached;     // sample at which the closing rule was met
@@ -29,6 +30,7 @@ struct SequenceReport {
   std::string ground;          // the case's ground node (it has no waveform column)
   netlist::SequenceOutcome outcome = netlist::SequenceOutcome::Unfinished;
   int attempts = 0;
+  int cycles = 0;  // key cycles begun
   std::vector<AttemptRecord> history;
   double first_fault_time = kNotReached;
   std::optional<netlist::SequenceOutcome> first_fault;

@@ -53,11 +53,13 @@ void add_sequence(nlohmann::json& summary, const solver::SequenceReport& report,
   sequence["outcome"] = netlist::outcome_word(report.outcome);
   sequence["expected_outcome"] = netlist::outcome_word(report.spec.expected_outcome);
   sequence["attempts"] = report.attempts;
+  sequence["key_cycles"] = report.cycles;
   sequence["closing_rule"] = report.spec.rule_text();
   sequence["sample_period"] = quantity(report.spec.sample_period, "s");
   nlohmann::json history = nlohmann::json::array();
   for (const auto& attempt : report.history) {
     history.push_back({{"number", attempt.number},
+                       {"key_cycle", attempt.cycle},
                        {"start", time_or_null(attempt.start)},
                        {"contacts_closed", time_or_null(attempt.contacts_closed)},
                        {"decision", time_or_null(attempt.decision)},
