@@ -218,6 +218,9 @@ struct PowerChannels {
 struct ModeChange {
   bool changed = false;
   std::string problem;  // non-empty: the command does not apply to this part
+  // The mode changed but not what the part does (a commanded-off load crossing its lockout thresholds): the
+  // solver restarts as for any change, but the timeline does not list it.
+  bool silent = false;
 };
 
 /// Declared ratings of a part (resistive parts), carried into the summary and judged as limits.

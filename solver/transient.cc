@@ -725,13 +725,14 @@ void Driver::handle_roots(double reached) {
     int owner = circuit_.root_owner(r);
     auto change = circuit_.part(owner).on_root(r - circuit_.root_first(owner), found[r], circuit_.layout(owner),
                                                modes_.data());
-    if (change.changed) {
-      changed = true;
-      ++result_.statistics.events;
-      result_.timeline.push_back(TimelineEntry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
-                                               found[r] > 0 ? "voltage rose through a threshold"
-                                                            : "voltage fell through a threshold"});
-    }
+    if (!change.changed) continue;
+    changed = true;
+    ++result_.statistics.events;
+    if (change.silent) continue;
+    TimelineEntry entry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
+                        found[r] > 0 ? "voltage rose through a threshold" : "voltage fell through a threshold"};
+    entry.state_event = true;
+    result_.timeline.push_back(std::move(entry));
   }
   for (std::size_t w = 0; w < options_.watches.size(); ++w) {
     int direction = found[circuit_.root_count() + w];

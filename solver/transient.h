@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "solver/circuit.h"
+#include "solver/timeline.h"
 #include "solver/waveform.h"
 
 namespace linkrise::solver {
@@ -24,11 +25,6 @@ struct Command {
   std::string reason;
 };
 
-struct TimelineEntry {
-  double time = 0.0;
-  std::string event;
-  std::string reason;
-};
 
 /// What a supervisor can read at a sample time.
 struct Probe {

@@ -108,8 +108,13 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
   };
   summary["solver"] = solver_summary(result.statistics);
   nlohmann::json timeline = nlohmann::json::array();
-  for (const auto& entry : result.timeline) {
-    timeline.push_back({{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}});
+  for (const auto& entry : solver::collapse_repeats(result.timeline)) {
+    nlohmann::json line = {{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}};
+    if (entry.count > 1) {
+      line["count"] = quantity(static_cast<double>(entry.count), "1");
+      line["last_time"] = quantity(entry.last_time, "s");
+    }
+    timeline.push_back(std::move(line));
   }
   summary["timeline"] = timeline;
   return summary;
@@ -123,8 +128,9 @@ std::string terminal_summary(const solver::Circuit& circuit, const solver::Resul
   if (!result.message.empty()) out += fmt::format("  message   {}\n", result.message);
   if (!result.timeline.empty()) {
     out += "  timeline\n";
-    for (const auto& entry : result.timeline) {
-      out += fmt::format("    {:>12}  {:<28} {}\n", format_si(entry.time, "s"), entry.event, entry.reason);
+    for (const auto& entry : solver::collapse_repeats(result.timeline)) {
+      const std::string event = entry.count > 1 ? fmt::format("{} (×{})", entry.event, entry.count) : entry.event;
+      out += fmt::format("    {:>12}  {:<28} {}\n", format_si(entry.time, "s"), event, entry.reason);
     }
   }
   out += fmt::format("  {:<22} {:>14} {:>14} {:>14}\n", "part", "peak |I|", "peak |P|", "heat");

@@ -392,7 +392,7 @@ const solver::Waveform& plotted_waveform(const solver::Result& result) {
 
 std::vector<Marker> timeline_markers(const std::vector<solver::TimelineEntry>& timeline) {
   std::vector<Marker> markers;
-  for (const auto& entry : timeline) markers.push_back({entry.time, entry.event});
+  for (const auto& entry : solver::collapse_repeats(timeline)) markers.push_back({entry.time, entry.event});
   return markers;
 }
 
@@ -524,9 +524,11 @@ void add_timeline(HtmlReport& report, const solver::Result& result) {
   table.id = "timeline";
   table.columns = {"#", "time", "event", "reason"};
   table.numeric_columns = {0, 1};
-  for (std::size_t i = 0; i < result.timeline.size(); ++i) {
-    const auto& entry = result.timeline[i];
-    table.rows.push_back({fmt::format("{}", i + 1), display_si(entry.time, "s"), entry.event, entry.reason});
+  const auto lines = solver::collapse_repeats(result.timeline);
+  for (std::size_t i = 0; i < lines.size(); ++i) {
+    const auto& entry = lines[i];
+    const std::string event = entry.count > 1 ? fmt::format("{} (×{})", entry.event, entry.count) : entry.event;
+    table.rows.push_back({fmt::format("{}", i + 1), display_si(entry.time, "s"), event, entry.reason});
   }
   report.table(table);
 }
