@@ -248,6 +248,7 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   read_closing_rule(reader, *block, sequence);
   read_timing(reader, sequence);
   read_retries(reader, sequence);
+  sequence.loads = read_sequence_loads(reader, spec);
   reader.finish();
 
   check_timing(spec, reader, sequence);

@@ -19,6 +19,8 @@
 //     attempts: 3                    # total attempts (default 1); after a fault the next one starts
 //     cool_down: 2 s                 # at the first sample this long after the fault (required if attempts > 1)
 //     expected_outcome: closed       # what `linkrise run` treats as a pass (default closed)
+//     loads: [{part: aux_dcdc, after: main_closed, delay: 50 ms}]  # loads switched with the sequence
+//                                    # (netlist/sequence_load_spec.h)
 //
 // All times of an attempt are measured from its start (the sample at which the coils are energised).
 #include <optional>
@@ -26,6 +28,7 @@
 #include <utility>
 #include <vector>
 
+#include "netlist/sequence_load_spec.h"
 #include "netlist/tree.h"
 
 namespace linkrise::netlist {
@@ -63,6 +66,7 @@ struct SequenceSpec {
   int attempts = 1;
   double cool_down = 0.0;            // s
   SequenceOutcome expected_outcome = SequenceOutcome::Closed;
+  std::vector<SequenceLoadSpec> loads;  // loads the sequence switches
   SourceMark mark;
   // Where each named part is written, for the checks made once the part kinds are known.
   std::vector<SourceMark> start_closed_marks;
