@@ -23,8 +23,8 @@ SequenceLoadSpec read_one(ParameterReader& item, const Case& spec) {
               "write e.g. '{part: aux_dcdc, after: main_closed, delay: 50 ms}'");
   }
   if (spec.find_part(*part) == nullptr) {
-    item.fail("part", fmt::format("the sequence's load '{}' is not in the parts list", *part),
-              did_you_mean(*part, spec.part_names(), "name one of the case's loads"));
+    throw InputError(item.mark("part"), fmt::format("the sequence's load '{}' is not in the parts list", *part),
+                     did_you_mean(*part, spec.part_names(), "name one of the case's loads"));
   }
   load.part = *part;
   load.mark = item.mark("part");
