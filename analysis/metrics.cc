@@ -140,7 +140,10 @@ namespace {
 // Definitions are for people reading a report: plain words, no pointers into the source.
 std::string part_definition(const std::string& metric) {
   if (metric == "peak_temperature") return "highest element temperature of the part over the run";
-  if (metric == "peak_power") return "largest instantaneous power dissipated in the part";
+  if (metric == "peak_power") return "largest instantaneous heat power in the part (I²R; power into stored energy excluded)";
+  if (metric == "peak_stored_power") {
+    return "largest |instantaneous power into the part's stored energy| (e.g. a cable's ½·L·i²; not heat)";
+  }
   if (metric == "energy") return "heat dissipated in the part over the run (the solver's energy account)";
   if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
   if (metric == "peak_voltage") return "largest |voltage| across the part";

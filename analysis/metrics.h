@@ -9,7 +9,8 @@
 //   sequence.peak_main_current [A], sequence.main_current_squared_time [A²s] (I²t),
 //   sequence.peak_precharge_current [A], sequence.link_overshoot [V], sequence.minimum_pack_voltage [V],
 //   sequence.detection_time [s], sequence.stall [1], sequence.stall_equilibrium [V].
-// Part metrics for every resistive part (analysis/part_metrics.h): <part>.peak_power [W], <part>.energy [J],
+// Part metrics for every resistive part (analysis/part_metrics.h): <part>.peak_power [W] (heat, I²R),
+//   <part>.peak_stored_power [W] (into stored energy, parts that store it), <part>.energy [J],
 //   <part>.current_squared_time [A²s] (I²t), <part>.peak_voltage [V], <part>.average_power [W], and
 //   <part>.peak_temperature [degC] where the part has a temperature.
 // Names are whole words: I²t is "current_squared_time" for the sequence and for every part alike.

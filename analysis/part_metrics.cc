@@ -11,6 +11,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   std::vector<PartMetric> list;
   if (peak_temperature) list.push_back({"peak_temperature", "degC", *peak_temperature});
   list.push_back({"peak_power", "W", peak_power});
+  if (peak_stored_power) list.push_back({"peak_stored_power", "W", *peak_stored_power});
   list.push_back({"energy", "J", energy});
   list.push_back({"current_squared_time", "A²s", current_squared_time});
   list.push_back({"peak_voltage", "V", peak_voltage});
@@ -67,9 +68,10 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
   metrics.part = p.name();
   const solver::Waveform& rows = result.steps;
   const int first = static_cast<int>(circuit.node_names().size()) + circuit.signal_first(part);
-  const int current = first, voltage = first + 1, power = first + 2;
+  const int current = first, voltage = first + 1;
   if (rows.row_count() > 0) {
-    metrics.peak_power = peak_absolute(rows, power);
+    metrics.peak_power = peak_absolute(rows, rows.column(p.name() + ".heat_power"));
+    if (p.stores_energy()) metrics.peak_stored_power = peak_absolute(rows, rows.column(p.name() + ".stored_power"));
     metrics.peak_voltage = peak_absolute(rows, voltage);
     int temperature = rows.column(p.name() + ".temperature");
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);

@@ -7,7 +7,10 @@
 // judged against the metric "<p>.<m>":
 //   peak_temperature      degC  largest element temperature over the recorded rows (parts with a temperature)
 //   peak_melt             1     largest melting integral of a fuse over the recorded rows (1 = melted; fuses only)
-//   peak_power            W     largest |p| over the recorded rows
+//   peak_power            W     largest heat power (I²R, the part's heat_power signal) over the recorded rows;
+//                               power into stored energy is not heat and is not counted
+//   peak_stored_power     W     largest |power into the part's stored energy| (a cable's ½·L·i²), for parts that
+//                               store energy only
 //   energy                J     heat absorbed over the run, from the part's integrated energy account
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
@@ -41,7 +44,8 @@ struct ResistiveMetrics {
   std::string part;
   std::optional<double> peak_temperature;  // degC; absent when the part has no temperature signal
   std::optional<double> peak_melt;         // 1; absent when the part has no melt signal
-  double peak_power = 0.0;                 // W
+  double peak_power = 0.0;                 // W, heat
+  std::optional<double> peak_stored_power; // W; absent when the part stores no energy
   double energy = 0.0;                     // J
   double current_squared_time = 0.0;       // A²·s
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows

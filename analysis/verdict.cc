@@ -30,11 +30,16 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
                                               format_metric(limit.limit, limit.unit), limit.source));
   }
   if (report != nullptr && report->outcome != report->spec.expected_outcome) {
-    evaluation.failures.push_back(fmt::format(
-        "the sequence ended '{}' after {} attempt(s), expected '{}'{}", netlist::outcome_word(report->outcome),
-        report->attempts, netlist::outcome_word(report->spec.expected_outcome),
-        report->outcome == netlist::SequenceOutcome::Unfinished ? " (the run ended first: lengthen 'run: duration')"
-                                                                : ""));
+    std::string unfinished;
+    if (report->outcome == netlist::SequenceOutcome::Unfinished) {
+      unfinished = circuit.spec().run.follows_sequence()
+                       ? " (the run reached 'run: max_duration' first: raise it)"
+                       : " (the run ended first: write 'run: {duration: sequence, settle: ...}' to let the run "
+                         "follow the sequence, or lengthen 'run: duration')";
+    }
+    evaluation.failures.push_back(fmt::format("the sequence ended '{}' after {} attempt(s), expected '{}'{}",
+                                              netlist::outcome_word(report->outcome), report->attempts,
+                                              netlist::outcome_word(report->spec.expected_outcome), unfinished));
   }
   evaluation.pass = evaluation.failures.empty();
   return evaluation;

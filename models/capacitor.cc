@@ -75,6 +75,7 @@ class Capacitor final : public Part {
     return point.unknowns[layout.branch];
   }
   Role do_role() const override { return Role::Storage; }
+  bool do_stores_energy() const override { return true; }
   std::optional<DefiningValue> do_defining_value() const override { return DefiningValue{"capacitance", "F", true}; }
   Link do_link() const override { return esr_ > 0.0 ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override { return {false, esr_ > 0.0 || leak_conductance_ > 0.0, false}; }

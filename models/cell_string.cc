@@ -177,6 +177,7 @@ class CellString final : public Part {
     out[1] = series_ * cell_ocv(soc).first;
   }
   Role do_role() const override { return Role::Source; }
+  bool do_stores_energy() const override { return !pairs_.empty(); }
   Link do_link() const override { return resistance_ > 0.0 || grid_ ? Link::Conductive : Link::VoltageDefined; }
   PowerChannels do_power_channels() const override {
     return {true, resistance_ > 0.0 || grid_ || !pairs_.empty(), false};

@@ -84,6 +84,7 @@ class InductiveBranch final : public Part {
     return inductive() ? point.states[layout.state] : point.voltage(layout) / resistance(point);
   }
   Role do_role() const override { return Role::Conductor; }
+  bool do_stores_energy() const override { return inductive(); }
   std::vector<DerivedValue> do_derived_values() const override {
     if (!geometry_) return {};
     const std::string at = conductor_temperature_

@@ -12,6 +12,8 @@ Part::Part(const netlist::PartSpec& spec)
 
 std::vector<SignalInfo> Part::signals() const {
   std::vector<SignalInfo> list = {{"current", "A"}, {"voltage", "V"}, {"power", "W"}};
+  if (power_channels().heat) list.push_back({"heat_power", "W"});
+  if (stores_energy()) list.push_back({"stored_power", "W"});
   for (auto& extra : do_extra_signals()) list.push_back(std::move(extra));
   return list;
 }
@@ -31,7 +33,16 @@ void Part::signal_values(const Point& point, const Layout& layout, double* out) 
   out[0] = sign * current;
   out[1] = voltage;
   out[2] = sign * current * voltage;
-  do_extra_signal_values(point, layout, out + 3);
+  int next = 3;
+  const bool heat = power_channels().heat, stores = stores_energy();
+  if (heat || stores) {
+    const Powers powers = do_powers(point, layout);
+    if (heat) out[next++] = powers.heat;
+    // The part's own balance: what enters at the terminals and from its source goes to heat, to the load or into
+    // the stored energy (the cable's ½·L·i², not its I²R).
+    if (stores) out[next++] = current * voltage + powers.source - powers.heat - powers.load;
+  }
+  do_extra_signal_values(point, layout, out + next);
 }
 
 void Part::roots(const Point& point, const Layout& layout, double* out) const {

@@ -219,6 +219,9 @@ struct PowerChannels {
 struct ModeChange {
   bool changed = false;
   std::string problem;  // non-empty: the command does not apply to this part
+  // The mode changed but not what the part does (a commanded-off load crossing its lockout thresholds): the
+  // solver restarts as for any change, but the timeline does not list it.
+  bool silent = false;
 };
 
 /// Declared ratings of a part (resistive parts), carried into the summary and judged as limits.
@@ -261,13 +264,17 @@ class Part {
   std::optional<LoadDemand> load_demand() const { return do_load_demand(); }
   /// True when the part carries a thermal model (temperature states and self-heating).
   bool has_thermal_model() const { return do_has_thermal_model(); }
+  /// True when the part can hold electrical energy in its states (a capacitor, an inductance, RC pairs): it then
+  /// has a `stored_power` signal, the power into that energy, apart from its heat.
+  bool stores_energy() const { return do_stores_energy(); }
   /// Values the part computed from its inputs, for the summary and the report.
   std::vector<DerivedValue> derived_values() const { return do_derived_values(); }
   std::optional<DefiningValue> defining_value() const { return do_defining_value(); }
 
   /// Adds network residual rows, state rates and, when asked, their derivatives.
   void stamp(const Point& point, const Layout& layout, Stamp& stamp) const;
-  /// Signal values in the order of signals(): current, voltage, power, then the kind's extras.
+  /// Signal values in the order of signals(): current, voltage, power (at the terminals), heat_power (parts with
+  /// a heat channel), stored_power (parts that store energy), then the kind's extras.
   void signal_values(const Point& point, const Layout& layout, double* out) const;
   Powers powers(const Point& point, const Layout& layout) const { return do_powers(point, layout); }
   /// The current entering at the positive node (A).
@@ -308,6 +315,7 @@ class Part {
   virtual std::optional<Actuation> do_actuation() const { return std::nullopt; }
   virtual std::optional<LoadDemand> do_load_demand() const { return std::nullopt; }
   virtual bool do_has_thermal_model() const { return false; }
+  virtual bool do_stores_energy() const { return false; }
   virtual std::vector<DerivedValue> do_derived_values() const { return {}; }
   virtual std::optional<DefiningValue> do_defining_value() const { return std::nullopt; }
   virtual void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const = 0;

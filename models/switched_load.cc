@@ -78,13 +78,14 @@ class SwitchedLoad final : public Part {
   }
   ModeChange do_on_root(int, int direction, const Layout& layout, int* modes) const override {
     int& released = modes[layout.mode];
+    const bool commanded_off = modes[layout.mode + 1] == 0;
     if (released == 0 && direction > 0) {
       released = 1;
-      return {true, ""};
+      return {true, "", commanded_off};
     }
     if (released != 0 && direction < 0) {
       released = 0;
-      return {true, ""};
+      return {true, "", commanded_off};
     }
     return {};
   }

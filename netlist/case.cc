@@ -271,6 +271,11 @@ Case read_case(const Tree& root, const std::string& file) {
     }
   }
   result.sequence = read_sequence(root, result);
+  if (result.run.follows_sequence() && !result.sequence) {
+    throw InputError(run->find("duration") ? run->find("duration")->mark : run->mark,
+                     "'duration: sequence' ends the run after the sequence, but the case has no 'sequence:' block",
+                     "give the run a fixed length, e.g. 'duration: 2 s', or add a sequence block");
+  }
   result.limits = read_limits(root);
   result.scenarios = read_scenarios(root);
   result.variants = read_variants(root);

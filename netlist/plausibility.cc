@@ -69,7 +69,8 @@ std::vector<PlausibilityWarning> plausibility_warnings(const Case& spec) {
   for (const auto& rule : plausibility_rules()) {
     if (rule.key == "ambient") check(spec.ambient, rule, "ambient", spec.ambient_mark, warnings);
     if (rule.key == "run.duration") {
-      check(spec.run.duration, rule, "run duration", spec.run.marks.duration, warnings);
+      check(spec.run.duration, rule, spec.run.follows_sequence() ? "run max_duration" : "run duration",
+            spec.run.marks.duration, warnings);
     }
   }
   return warnings;

@@ -43,8 +43,13 @@ std::optional<FieldProblem> check_relative_tolerance(const RunSpec& run) {
 
 std::optional<FieldProblem> check_times(const RunSpec& run) {
   if (!(run.duration > 0.0)) {
-    return problem("duration", run.duration, "must be greater than 0 s", "a run needs a length",
-                   "write a positive time such as '2 s'", run.marks.duration);
+    return problem(run.follows_sequence() ? "max_duration" : "duration", run.duration, "must be greater than 0 s",
+                   "a run needs a length", "write a positive time such as '2 s'", run.marks.duration);
+  }
+  if (run.settle && !(*run.settle >= 0.0)) {
+    return problem("settle", *run.settle, "must not be negative",
+                   "it is how long the run goes on after the sequence's last event",
+                   "write e.g. '200 ms', or '0 s' to end at the last event", run.marks.settle);
   }
   if (!(run.max_step >= 0.0)) {
     return problem("max_step", run.max_step, "must not be negative", "it bounds the solver's step (0: no bound)",
@@ -67,9 +72,10 @@ std::optional<FieldProblem> check_times(const RunSpec& run) {
 std::optional<FieldProblem> check_run(const RunSpec& run) {
   const std::pair<const char*, double> finite_fields[] = {
       {"duration", run.duration}, {"rtol", run.relative_tolerance}, {"atol", run.absolute_tolerance},
-      {"max_step", run.max_step}, {"sample", run.sample.value_or(1.0)}, {"max_wall_time", run.max_wall_time}};
-  const SourceMark* marks[] = {&run.marks.duration, &run.marks.rtol,   &run.marks.atol,
-                               &run.marks.max_step, &run.marks.sample, &run.marks.max_wall_time};
+      {"max_step", run.max_step}, {"sample", run.sample.value_or(1.0)}, {"max_wall_time", run.max_wall_time},
+      {"settle", run.settle.value_or(0.0)}};
+  const SourceMark* marks[] = {&run.marks.duration, &run.marks.rtol,   &run.marks.atol,         &run.marks.max_step,
+                               &run.marks.sample,   &run.marks.max_wall_time, &run.marks.settle};
   for (std::size_t i = 0; i < std::size(finite_fields); ++i) {
     if (auto found = not_finite(finite_fields[i].first, finite_fields[i].second, *marks[i])) return found;
   }
@@ -98,11 +104,36 @@ void require_valid_run(const RunSpec& run) {
   if (auto found = check_run(run)) throw run_input_error(*found);
 }
 
+namespace {
+// `duration: 2 s`, or `duration: sequence` with `settle` and an optional `max_duration` (the cap duration holds).
+void read_length(ParameterReader& reader, RunSpec& run) {
+  if (!reader.is_word("duration", "sequence")) {
+    run.duration = reader.required("duration", Dimension::time(), Bound::Any);
+    for (const char* key : {"settle", "max_duration"}) {
+      if (!reader.has(key)) continue;
+      reader.accept(key);
+      reader.fail(key, fmt::format("'{}' belongs to 'duration: sequence'; this run lasts its fixed duration", key),
+                  "write 'duration: sequence' to end the run after the sequence, or remove this line");
+    }
+    return;
+  }
+  reader.accept("duration");
+  if (!reader.has("settle")) {
+    reader.reject_misspelling("settle");
+    reader.fail("duration", "'duration: sequence' needs 'settle', how long the run goes on after the sequence's "
+                            "last event",
+                "add e.g. 'settle: 200 ms'");
+  }
+  run.settle = reader.required("settle", Dimension::time(), Bound::Any);
+  run.duration = reader.quantity("max_duration", Dimension::time(), Bound::Any, kDefaultMaxDuration);
+}
+}  // namespace
+
 RunSpec read_run(const Tree& block) {
   RunSpec run;
   ParameterReader reader(block, "the run block");
   // Units and form are the reader's; the ranges are check_run's alone.
-  run.duration = reader.required("duration", Dimension::time(), Bound::Any);
+  read_length(reader, run);
   run.relative_tolerance = reader.quantity("rtol", Dimension::none(), Bound::Any, run.relative_tolerance);
   run.absolute_tolerance = reader.quantity("atol", Dimension::none(), Bound::Any, run.absolute_tolerance);
   run.max_step = reader.quantity("max_step", Dimension::time(), Bound::Any, run.max_step);
@@ -111,9 +142,11 @@ RunSpec read_run(const Tree& block) {
   run.settle_fast_states = reader.word("fast_states", {"settle", "resolve"}, "settle") == "settle";
   run.max_wall_time = reader.quantity("max_wall_time", Dimension::time(), Bound::Any, run.max_wall_time);
   reader.finish();
-  run.marks = {reader.mark("duration"), reader.mark("rtol"),      reader.mark("atol"),
+  run.marks = {run.follows_sequence() && reader.has("max_duration") ? reader.mark("max_duration")
+                                                                    : reader.mark("duration"),
+               reader.mark("rtol"),      reader.mark("atol"),
                reader.mark("max_step"), reader.mark("sample"),    reader.mark("max_steps"),
-               reader.mark("max_wall_time")};
+               reader.mark("max_wall_time"), reader.mark("settle")};
   require_valid_run(run);
   return run;
 }

@@ -4,7 +4,10 @@
 // all pass through it, so a bad value is an input error at the place it was written, never a solver failure.
 //
 // Accepted ranges and why:
-//   duration   > 0 s, finite
+//   duration   > 0 s, finite; or the word `sequence` (a case with a sequence block): the run then ends `settle`
+//              after the sequence's last event (retries and cool-downs included), at the latest at
+//              `max_duration` (default 600 s), which `duration` then holds
+//   settle     >= 0 s, finite (required with `duration: sequence`: the waveforms after the last switching)
 //   rtol       1e-12 ... 1e-2. Tighter than 1e-12, the error test would compare against the rounding of the
 //              network solve inside every right-hand side (stopped at about 1e-14 relative, double precision
 //              2.2e-16), so CVODE would shrink steps chasing noise. Looser than 1 %, the error control is
@@ -28,8 +31,14 @@
 
 namespace linkrise::netlist {
 
+/// The longest run `duration: sequence` allows unless `max_duration` says otherwise.
+inline constexpr double kDefaultMaxDuration = 600.0;  // s
+
 struct RunSpec {
-  double duration = 0.0;               // s
+  double duration = 0.0;               // s; with `duration: sequence` the hard cap (max_duration)
+  std::optional<double> settle;        // s; set by `duration: sequence`: the run ends this long after the
+                                       // sequence's last event
+  bool follows_sequence() const { return settle.has_value(); }
   double relative_tolerance = 1e-7;    // CVODE rtol
   double absolute_tolerance = 1e-8;    // CVODE atol, in each state's SI unit (scaled per state kind)
   double max_step = 0.0;               // s; 0 means no limit
@@ -41,7 +50,7 @@ struct RunSpec {
   // Where each value was written: its place in the case file (or of an override), an option such as
   // "option --rtol" (line 0), or the run block's own place for a default.
   struct Marks {
-    SourceMark duration, rtol, atol, max_step, sample, max_steps, max_wall_time;
+    SourceMark duration, rtol, atol, max_step, sample, max_steps, max_wall_time, settle;
   } marks;
 };
 

@@ -326,6 +326,7 @@ std::optional<SequenceSpec> read_sequence(const Tree& root, const Case& spec) {
   read_weld_check(spec, reader, sequence);
   read_closure_check(reader, sequence);
   read_key_cycles(reader, sequence);
+  sequence.loads = read_sequence_loads(reader, spec);
   reader.finish();
 
   check_timing(spec, reader, sequence);

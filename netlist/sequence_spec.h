@@ -26,6 +26,8 @@
 //     closure_check: {after: 50 ms, above: 90 %}      # after the pre-charge path opened, link < 90 % -> main_failed
 //     key_cycles: {count: 5, on_time: 20 s, off_time: 60 s}  # a duty: key-off on_time after each main closure
 //                                    # (every coil released), the next key-on off_time later (optional)
+//     loads: [{part: aux_dcdc, after: main_closed, delay: 50 ms}]  # loads switched with the sequence
+//                                    # (netlist/sequence_load_spec.h)
 //
 // The closing rule holds from both sides: a link above pack/ratio (or pack + difference) is a source on the bus,
 // never a charging capacitor -> live_bus; so is a link already meeting the rule before the attempt closed anything.
@@ -36,6 +38,7 @@
 #include <utility>
 #include <vector>
 
+#include "netlist/sequence_load_spec.h"
 #include "netlist/tree.h"
 
 namespace linkrise::netlist {
@@ -104,6 +107,7 @@ struct SequenceSpec {
   std::vector<WeldCheckStep> weld_check;
   std::optional<ClosureCheck> closure_check;
   KeyCycles key_cycles;
+  std::vector<SequenceLoadSpec> loads;  // loads the sequence switches
   SourceMark mark;
   // Where each named part is written, for the checks made once the part kinds are known.
   std::vector<SourceMark> start_closed_marks;

@@ -101,7 +101,7 @@ Circuit::Circuit(const netlist::Case& spec) : spec_(spec) {
   }
 }
 
-// The sequence's contactors must be switches; the part kinds are known only here.
+// The sequence's contactors must be switches and its loads loads; the part kinds are known only here.
 void Circuit::check_sequence_parts() const {
   if (!spec_.sequence) return;
   const netlist::SequenceSpec& sequence = *spec_.sequence;
@@ -127,6 +127,19 @@ void Circuit::check_sequence_parts() const {
                               fmt::format("the sequence reads '{}', a {} part ({}), which measures nothing", name,
                                           models::role_word(part.role()), part.kind()),
                               "name a voltage_sensor part, or list the sensed nodes as [plus, minus]");
+  }
+  for (const auto& load : sequence.loads) {
+    const models::Part& part = *parts_[find_part(load.part)];
+    if (part.role() == models::Role::Load) continue;
+    std::string loads;
+    for (const auto& other : parts_) {
+      if (other->role() == models::Role::Load) loads += (loads.empty() ? "" : ", ") + other->name();
+    }
+    throw netlist::InputError(load.mark,
+                              fmt::format("the sequence switches '{}', a {} part ({}), which cannot be enabled",
+                                          load.part, models::role_word(part.role()), part.kind()),
+                              loads.empty() ? "add a load part (e.g. a constant_power_load) for the sequence to start"
+                                            : "name one of the case's loads: " + loads);
   }
 }
 

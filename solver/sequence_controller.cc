@@ -55,9 +55,24 @@ SequenceController::SequenceController(const Circuit& circuit, netlist::Sequence
   pack_reading_ = reading_index(circuit, pack_sensor_);
   link_reading_ = reading_index(circuit, link_sensor_);
   next_attempt_ = spec_.start;
+  loads_ = SequenceLoads(circuit, spec_.loads);
 }
 
 double SequenceController::next_sample(double time) const {
+  return std::min(next_tick(time), loads_.next_time());
+}
+
+bool SequenceController::on_task_sample(double time) const {
+  return time >= spec_.start && tick(std::lround((time - spec_.start) / spec_.sample_period)) == time;
+}
+
+double SequenceController::end_time() const {
+  const auto& settle = circuit_.spec().run.settle;
+  if (!settle || !(phase_ == Phase::Closed || phase_ == Phase::Faulted)) return std::numeric_limits<double>::infinity();
+  return std::max(last_event_, loads_.last_time()) + *settle;
+}
+
+double SequenceController::next_tick(double time) const {
   if (done_ || phase_ == Phase::Closed) return std::numeric_limits<double>::infinity();
   if (time < spec_.start) return spec_.start;
   // Samples are start + k·period computed from k (never accumulated), so they are the same in every run.
@@ -152,6 +167,7 @@ void SequenceController::start_precharge(double time, bool after_checks, std::ve
     timeline.push_back(TimelineEntry{time, fmt::format("attempt {} starts", record.number),
                                      fmt::format("coils of {} energised", names)});
   }
+  loads_.moment(netlist::LoadMoment::AttemptStart, time, record.number);
   phase_ = Phase::Charging;
   have_previous_ = false;
 }
@@ -231,6 +247,7 @@ void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault
   record.reason = reason;
   const char* word = netlist::outcome_word(fault);
   timeline.push_back(TimelineEntry{time, fmt::format("fault {}", word), reason});
+  loads_.release(time, word, commands);
   double latest = release_coils(time, fmt::format("fault {}: pre-charge path opened", word), commands);
   const int used = static_cast<int>(history_.size() - cycle_first_);  // attempts of this key cycle
   if (used < spec_.attempts) {
@@ -247,6 +264,14 @@ void SequenceController::raise_fault(double time, netlist::SequenceOutcome fault
 
 void SequenceController::sample(const Probe& probe, std::vector<Command>& commands,
                                  std::vector<TimelineEntry>& timeline) {
+  const std::size_t first = commands.size();
+  if (on_task_sample(probe.time)) run_task(probe, commands, timeline);
+  loads_.issue_due(probe.time, commands);
+  for (std::size_t c = first; c < commands.size(); ++c) last_event_ = std::max(last_event_, commands[c].time);
+}
+
+void SequenceController::run_task(const Probe& probe, std::vector<Command>& commands,
+                                  std::vector<TimelineEntry>& timeline) {
   const double t = probe.time;
   const double pack = sensed(probe, pack_sensor_, pack_reading_, pack_plus_, pack_minus_);
   const double link = sensed(probe, link_sensor_, link_reading_, link_plus_, link_minus_);
@@ -255,7 +280,8 @@ void SequenceController::sample(const Probe& probe, std::vector<Command>& comman
     case Phase::Closed:
       return;
     case Phase::Faulted:
-      if (t > last_command_) done_ = true;
+      // A run that follows the sequence ends at end_time() instead, after its settling time.
+      if (t > last_command_ && !circuit_.spec().run.follows_sequence()) done_ = true;
       return;
     case Phase::Waiting:
       if (due(t, next_attempt_)) begin_attempt(t, pack, link, commands, timeline);
@@ -343,6 +369,8 @@ void SequenceController::decide(double t, std::vector<Command>& commands, std::v
   auto pre = timing_of(circuit_, precharge_);
   double coil_off = touch + spec_.overlap;
   record.released = coil_off + pre.opening_delay;
+  loads_.moment(netlist::LoadMoment::MainClosed, touch, record.number);
+  loads_.moment(netlist::LoadMoment::PrechargeOpened, record.released, record.number);
   commands.push_back(Command{record.released, precharge_, netlist::Action::Open,
                              fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
                                          pre.opening_delay > 0.0
@@ -371,6 +399,7 @@ void SequenceController::closed() {
 void SequenceController::holding_sample(double t, std::vector<Command>& commands,
                                         std::vector<TimelineEntry>& timeline) {
   if (t < key_off_at_ - 1e-9 * spec_.sample_period) return;
+  loads_.release(t, "key off", commands);
   release_coils(t, "key off", commands);
   timeline.push_back(TimelineEntry{t, fmt::format("key off {} of {}", cycle_, spec_.key_cycles.count),
                                    fmt::format("every coil released; the next key-on {} later",
@@ -435,6 +464,7 @@ SequenceReport SequenceController::report(double end_time) const {
 void attach(SequenceController& controller, Options& options) {
   options.supervisor = &controller;
   for (auto& watch : controller.watches()) options.watches.push_back(watch);
+  for (auto& command : controller.initial_commands()) options.initial_commands.push_back(command);
 }
 
 }  // namespace linkrise::solver

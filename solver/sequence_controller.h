@@ -24,10 +24,14 @@
 // Key cycles (optional): a closure is held on_time from the main contacts touching, then every coil is released
 // (key off) and the next cycle's first attempt begins off_time later; retries count per cycle.
 // After the last fault the controller reports finished() once its contacts have parted, so the run stops.
+// With `run: {duration: sequence}` the run instead ends `settle` after the sequence's last event (end_time()).
+// The loads of `sequence.loads` follow the attempts (solver/sequence_loads.h).
+#include <limits>
 #include <vector>
 
 #include "netlist/sequence_spec.h"
 #include "solver/circuit.h"
+#include "solver/sequence_loads.h"
 #include "solver/sequence_report.h"
 #include "solver/transient.h"
 
@@ -41,7 +45,10 @@ class SequenceController final : public Supervisor {
   double next_sample(double time) const override;
   void sample(const Probe& probe, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) override;
   bool finished() const override { return done_; }
+  double end_time() const override;
 
+  /// The initial modes' commands (Options::initial_commands): the sequence's loads held off until their moment.
+  std::vector<Command> initial_commands() const { return loads_.hold_off(circuit_); }
   /// Level watches for the closing level, so the crossing time is a waveform row (exact metrics).
   std::vector<Watch> watches() const;
   /// The report; events scheduled after `end_time` (never reached in the run) are cleared.
@@ -72,6 +79,10 @@ class SequenceController final : public Supervisor {
   double release_coils(double time, const std::string& why, std::vector<Command>& commands);
   void raise_fault(double time, netlist::SequenceOutcome fault, const std::string& reason, std::vector<Command>& commands,
                    std::vector<TimelineEntry>& timeline);
+  // The BMS task at one of its samples (sample() also serves the loads' own times).
+  void run_task(const Probe& probe, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline);
+  bool on_task_sample(double time) const;
+  double next_tick(double time) const;
 
   const Circuit& circuit_;
   netlist::SequenceSpec spec_;
@@ -105,6 +116,8 @@ class SequenceController final : public Supervisor {
   double last_command_ = 0.0;
   bool done_ = false;
   std::vector<AttemptRecord> history_;
+  SequenceLoads loads_;
+  double last_event_ = -std::numeric_limits<double>::infinity();  // latest command given
 };
 
 /// Installs a controller on driver options: supervisor and closing-level watches.

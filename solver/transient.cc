@@ -279,6 +279,10 @@ class Driver {
     recorded_until_ = t;
   }
   void record_peaks_inside_step(double t);
+  // Where the run ends: its duration, or earlier where the supervisor has ended the sequence.
+  double end() const {
+    return options_.supervisor ? std::min(options_.duration, options_.supervisor->end_time()) : options_.duration;
+  }
   // CVODE set up for a run from t0; the error handler is installed before any call that could report.
   void initialise_cvode(double t0);
   void create_vectors(double t0);
@@ -494,6 +498,11 @@ bool Driver::apply_commands(double t) {
 
 // Initial network, then let modes follow the initial voltages; then CVODE.
 void Driver::prepare(double t0) {
+  for (const Command& command : options_.initial_commands) {
+    auto change = circuit_.part(command.part).command(command.action, circuit_.layout(command.part), modes_.data(),
+                                                      result_.initial_states.data());
+    if (!change.problem.empty()) throw SolverError(change.problem, t0);
+  }
   solve_at(t0, result_.initial_states.data());
   models::Point point = equations_.point(t0, result_.initial_states.data(), modes_.data(), unknowns_.data());
   bool changed = false;
@@ -513,13 +522,14 @@ void Driver::integrate(double t0) {
   // applied at t0.
   apply_commands(t0);
   restart(t0);
-  while (t < options_.duration) {
+  while (t < end()) {
     if (options_.supervisor && options_.supervisor->finished()) {
       result_.outcome = Outcome::SupervisorFinished;
       break;
     }
     t = advance(t);
   }
+  if (t < options_.duration && !(t < end())) result_.outcome = Outcome::SupervisorFinished;
   result_.end_time = t;
   sync_accounts(t);
   result_.final_states = full_state();
@@ -536,7 +546,7 @@ double Driver::advance(double t) {
   if (internal > t) {
     if (auto switched = visit_step(internal)) return *switched;
   }
-  double stop = pending_.empty() ? options_.duration : std::min(options_.duration, pending_.front().time);
+  double stop = pending_.empty() ? end() : std::min(end(), pending_.front().time);
   check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
   double reached = t;
   int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
@@ -725,13 +735,14 @@ void Driver::handle_roots(double reached) {
     int owner = circuit_.root_owner(r);
     auto change = circuit_.part(owner).on_root(r - circuit_.root_first(owner), found[r], circuit_.layout(owner),
                                                modes_.data());
-    if (change.changed) {
-      changed = true;
-      ++result_.statistics.events;
-      result_.timeline.push_back(TimelineEntry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
-                                               found[r] > 0 ? "voltage rose through a threshold"
-                                                            : "voltage fell through a threshold"});
-    }
+    if (!change.changed) continue;
+    changed = true;
+    ++result_.statistics.events;
+    if (change.silent) continue;
+    TimelineEntry entry{reached, fmt::format("state event {}", circuit_.part(owner).name()),
+                        found[r] > 0 ? "voltage rose through a threshold" : "voltage fell through a threshold"};
+    entry.state_event = true;
+    result_.timeline.push_back(std::move(entry));
   }
   for (std::size_t w = 0; w < options_.watches.size(); ++w) {
     int direction = found[circuit_.root_count() + w];

@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "solver/circuit.h"
+#include "solver/timeline.h"
 #include "solver/waveform.h"
 
 namespace linkrise::solver {
@@ -24,11 +25,6 @@ struct Command {
   std::string reason;
 };
 
-struct TimelineEntry {
-  double time = 0.0;
-  std::string event;
-  std::string reason;
-};
 
 /// What a supervisor can read at a sample time.
 struct Probe {
@@ -53,6 +49,9 @@ class Supervisor {
   virtual void sample(const Probe& probe, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) = 0;
   /// True when the sequence is over and the run may stop before its duration.
   virtual bool finished() const { return false; }
+  /// The time the run ends at, once the supervisor knows it (its last action plus a settling time); +infinity
+  /// until then, or when the run lasts its duration. The run never goes past Options::duration.
+  virtual double end_time() const { return std::numeric_limits<double>::infinity(); }
 };
 
 /// A level watch: a root function g = v(a) - ratio·v(b) - offset over node voltages. Each crossing is
@@ -87,6 +86,9 @@ struct Options {
   long max_steps = 2'000'000;
   double max_wall_time = 300.0;   // s of wall-clock time before the run gives up (exit 3, with a reason)
   std::vector<Command> commands;  // scheduled actions (the case's events)
+  // Actions that set the initial modes before the run starts (a load the sequence holds off until its moment):
+  // no timeline entry and no rows of their own, as if the case had started so.
+  std::vector<Command> initial_commands;
   std::vector<Watch> watches;
   Supervisor* supervisor = nullptr;
   // Fast states start at their quasi-steady value after a switching when their time constant is below

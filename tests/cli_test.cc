@@ -8,6 +8,8 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <regex>
+#include <set>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -398,4 +400,42 @@ TEST_F(Cli, SweepExitsOneWhenNoPointPassesAndWindowHintsItsOwnName) {
   Outcome window = run("window \"" + file.string() + "\"" + output);
   EXPECT_EQ(window.exit_code, 2);
   EXPECT_NE(window.err.find("'linkrise window case.yaml --corners'"), std::string::npos) << window.err;
+}
+
+// README's usage line of every command names exactly the options its --help lists (in the short or the long form),
+// so the documentation cannot drift from the program (README "Commands").
+TEST_F(Cli, ReadmeUsageLinesNameEveryOptionOfHelp) {
+  // A table cell writes a literal '|' as '\|' (size's --faults-at nominal\|spread).
+  const std::string readme =
+      std::regex_replace(slurp(fs::path(LINKRISE_SOURCE_DIR) / "README.md"), std::regex(R"(\\\|)"), "/");
+  // The command table's rows (other tables name commands on stored cases, not CASE.yaml).
+  const std::regex row(R"(\| `linkrise ([a-z]+) ((CASE\.yaml|\[PATH)[^|]*)\|)");
+  const std::regex option(R"((^|[\s\[`(/])(--?[a-z][a-z-]*))");
+  int commands = 0;
+  for (auto found = std::sregex_iterator(readme.begin(), readme.end(), row); found != std::sregex_iterator(); ++found) {
+    const std::string command = (*found)[1], usage = (*found)[2];
+    ++commands;
+    std::set<std::string> named;
+    for (auto o = std::sregex_iterator(usage.begin(), usage.end(), option); o != std::sregex_iterator(); ++o) {
+      named.insert((*o)[2]);
+    }
+    const Outcome help = run(command + " --help");
+    ASSERT_EQ(help.exit_code, 0) << command;
+    // Each option line of the help: "  -o,--output TEXT ..." or "  --corners ..."; both names stand for one option.
+    std::set<std::string> listed;
+    for (const auto& line : lines(help.out)) {
+      std::smatch names;
+      if (!std::regex_search(line, names, std::regex(R"(^\s+((-[a-z],)?--[a-z][a-z-]*))"))) continue;
+      const std::string both = names[1];
+      const std::string long_name = both.substr(both.find("--"));
+      if (long_name == "--help") continue;
+      const std::string short_name = both.find(',') != std::string::npos ? both.substr(0, 2) : "";
+      EXPECT_TRUE(named.count(long_name) || (!short_name.empty() && named.count(short_name)))
+          << "README's usage of '" << command << "' lacks " << long_name;
+      listed.insert(long_name);
+      if (!short_name.empty()) listed.insert(short_name);
+    }
+    for (const auto& name : named) EXPECT_TRUE(listed.count(name)) << "README's '" << command << "' names " << name << ", which --help does not list";
+  }
+  EXPECT_EQ(commands, 9);
 }

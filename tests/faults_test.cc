@@ -11,6 +11,8 @@
 #include <set>
 #include <string>
 
+#include "app/evaluation/case_run.h"
+#include "netlist/case.h"
 #include "netlist/case_document.h"
 #include "netlist/input_error.h"
 #include "tests/circuit_fixture.h"
@@ -203,4 +205,65 @@ TEST(Faults, ARowsOutcomeAttemptAndTimeBelongTogether) {
   EXPECT_NEAR(shorted.detection_time, 0.025, 1e-9);
   const std::string text = linkrise::app::matrix_text(matrix);
   EXPECT_TRUE(contains(text, "2/2")) << text;
+}
+
+// The stored boat case: a converter the sequence starts 100 ms after the main closure, a retry after a short
+// timeout, and a run that ends 300 ms after the last sequence event. Every row ends decided (no 'unfinished', no
+// solver failure) with its outcome, attempt and time from one attempt, and each run ends its settle after the
+// sequence's last event. Times are the case's sample grid (5 ms) plus its contact delays (docs/sequence-and-limits.md).
+TEST(Faults, TheStoredConverterCaseRunsEveryRetryToTheEndWithConsistentRows) {
+  const std::string file = stored("boat_104s_aux_converter.yaml");
+  DetectionMatrix matrix = linkrise::app::detection_matrix(file, 2);
+  EXPECT_TRUE(matrix.pass()) << linkrise::app::matrix_text(matrix);
+  for (const auto& r : matrix.rows) {
+    if (!r.applicable) continue;
+    EXPECT_FALSE(r.solver_failed) << r.scenario << ": " << r.note;
+    EXPECT_NE(r.actual_word(), "unfinished") << r.scenario;
+    EXPECT_GE(r.attempt, 1) << r.scenario;
+    EXPECT_LE(r.attempt, r.attempts) << r.scenario;
+    // A closed row has no fault time; a fault row's time is its attempt's fault, before the run's end.
+    EXPECT_EQ(std::isnan(r.detection_time), r.actual_word() == "closed") << r.scenario;
+    if (!std::isnan(r.detection_time)) {
+      EXPECT_LT(r.detection_time, r.end_time) << r.scenario;
+    }
+  }
+  // The rise check is due 40 ms after each attempt start; the retry starts at the first sample 1 s after the
+  // fault; k_neg parts 4 ms after the second fault, and the run goes on for its 300 ms settle.
+  const auto& shorted = row(matrix, "shorted_link");
+  EXPECT_EQ(shorted.actual_word(), "no_rise");
+  EXPECT_EQ(shorted.attempt, 1);
+  EXPECT_EQ(shorted.attempts, 2);
+  EXPECT_NEAR(shorted.detection_time, 0.040, 1e-9);
+  EXPECT_NEAR(shorted.end_time, 1.080 + 0.004 + 0.3, 1e-9);
+  // 0.1 % of the link (1.1 uF) charges in microseconds: too fast at the first sample whose rate is settled
+  // (20 ms); the ringing link ends its run like the others, after the second attempt's fault and the settle.
+  const auto& missing = row(matrix, "missing_capacitance");
+  EXPECT_EQ(missing.actual_word(), "too_fast");
+  EXPECT_NEAR(missing.detection_time, 0.020, 1e-9);
+  EXPECT_NEAR(missing.end_time, 1.040 + 0.004 + 0.3, 1e-9);
+  // The nominal row closes on its retry; its run ends 300 ms after the converter's start, 100 ms after the main
+  // contacts touched (the case run's own report gives that touch).
+  const auto& nominal = row(matrix, "nominal");
+  EXPECT_EQ(nominal.actual_word(), "closed");
+  EXPECT_EQ(nominal.attempt, 2);
+  EXPECT_TRUE(contains(nominal.note, "attempt 1 ended timeout at 150 ms")) << nominal.note;
+  linkrise::app::CaseRun run(linkrise::netlist::load_case(file));
+  ASSERT_NE(run.report(), nullptr);
+  const double main_closed = run.report()->history.back().main_closed;
+  EXPECT_NEAR(nominal.end_time, main_closed + 0.1 + 0.3, 1e-9);
+  EXPECT_NEAR(run.result().end_time, nominal.end_time, 1e-9);
+  // The helm supply, started with each attempt, draws while the link charges: its row is applicable.
+  EXPECT_EQ(row(matrix, "constant_power_from_start").actual_word(), "closed");
+}
+
+// With the too-fast check off nothing can catch a missing link capacitance: the row says so instead of expecting a
+// fault that cannot come.
+TEST(Faults, AScenarioWhoseCheckIsOffIsNotApplicableWithTheReason) {
+  auto document = linkrise::netlist::CaseDocument::load(stored("boat_104s_aux_converter.yaml"))
+                      .with({{"sequence.minimum_time", "0 s", {}}});
+  DetectionMatrix matrix = linkrise::app::detection_matrix(document, 2);
+  const auto& missing = row(matrix, "missing_capacitance");
+  EXPECT_FALSE(missing.applicable);
+  EXPECT_TRUE(contains(missing.note, "minimum_time")) << missing.note;
+  EXPECT_TRUE(missing.pass);
 }

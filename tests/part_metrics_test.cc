@@ -92,6 +92,47 @@ TEST(PartMetrics, ResistivePartsAndMetricNames) {
   EXPECT_NEAR(all[1].peak_voltage, 100.0, 0.1);
 }
 
+// A cable's heat is its I²R alone; the power into its inductance (L·i·di/dt) is a signal and a metric of its own.
+// Overdamped series RLC step ([R-RLC-step]): 100 V through 10 Ohm and a cable of 0.1 Ohm and 100 uH onto 1 mF,
+// i(t) = V/(L·(s1 − s2))·(e^(s1·t) − e^(s2·t)); the heat peaks with the current (R·i², [R-Ohm-Joule]) and the
+// inductance's power L·i·di/dt is largest in magnitude on the current's rise, both taken here from the closed
+// form on a fine grid. At every row the terminal power v·i is the sum of the two (energy conservation).
+TEST(PartMetrics, ACablesHeatAndThePowerIntoItsInductanceAreApart) {
+  linkrise::testing::Simulation sim(
+      "ground: gnd\nparts:\n"
+      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 100 V}\n"
+      "  - {name: r1, kind: resistor, nodes: [plus, a], resistance: 10 Ohm}\n"
+      "  - {name: cable, kind: cable, nodes: [a, link], resistance: 0.1 Ohm, inductance: 100 uH}\n"
+      "  - {name: c1, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}\n"
+      "run: {duration: 20 ms}\n");
+  sim.tight(1e-10, 1e-12);
+  const auto result = sim.run();
+  const auto audit = linkrise::analysis::audit_energy(sim.circuit, result);
+  const auto metrics = resistive_metrics(sim.circuit, result, audit, sim.circuit.find_part("cable"));
+
+  const double v = 100.0, r = 10.1, rc = 0.1, l = 100e-6, c = 1e-3;
+  const double alpha = r / (2 * l), w0 = 1 / std::sqrt(l * c);
+  const double s1 = -alpha + std::sqrt(alpha * alpha - w0 * w0), s2 = -alpha - std::sqrt(alpha * alpha - w0 * w0);
+  auto current = [&](double t) { return v / (l * (s1 - s2)) * (std::exp(s1 * t) - std::exp(s2 * t)); };
+  auto slope = [&](double t) { return v / (l * (s1 - s2)) * (s1 * std::exp(s1 * t) - s2 * std::exp(s2 * t)); };
+  const double t_peak = std::log(s2 / s1) / (s1 - s2);
+  double stored_peak = 0.0;
+  for (double t = 0.0; t < 20e-3; t += 1e-9 + t * 1e-4) stored_peak = std::max(stored_peak, std::fabs(l * current(t) * slope(t)));
+
+  EXPECT_NEAR(metrics.peak_power, rc * current(t_peak) * current(t_peak), 1e-5 * rc * current(t_peak) * current(t_peak));
+  ASSERT_TRUE(metrics.peak_stored_power.has_value());
+  EXPECT_NEAR(*metrics.peak_stored_power, stored_peak, 1e-4 * stored_peak);
+  EXPECT_GT(*metrics.peak_stored_power, 10.0 * metrics.peak_power);  // the terminal power is mostly the inductance's
+  const auto heat = column(result.steps, "cable.heat_power");
+  const auto stored = column(result.steps, "cable.stored_power");
+  const auto terminal = column(result.steps, "cable.power");
+  for (std::size_t k = 0; k < terminal.size(); ++k) EXPECT_NEAR(heat[k] + stored[k], terminal[k], 1e-9 * stored_peak);
+  // A plain resistor stores nothing and has no such signal; the capacitor without ESR takes no heat.
+  EXPECT_LT(result.steps.column("r1.stored_power"), 0);
+  EXPECT_LT(result.steps.column("c1.heat_power"), 0);
+  EXPECT_GE(result.steps.column("c1.stored_power"), 0);
+}
+
 // The three invented comparison cases: each closes its energy audit to 1e-6, and the technologies differ the
 // way docs/resistor-technologies.md describes — the NTC (falling R) charges fastest, the PTC (rising R when hot)
 // slowest and runs hottest, and each absorbs a different energy.

@@ -37,7 +37,7 @@ RunSpec marked_run() {
   run.sample = 1e-3;
   run.marks = {SourceMark{"f", 1, 1}, SourceMark{"f", 2, 1}, SourceMark{"f", 3, 1},
                SourceMark{"f", 4, 1}, SourceMark{"f", 5, 1}, SourceMark{"f", 6, 1},
-               SourceMark{"f", 7, 1}};
+               SourceMark{"f", 7, 1}, SourceMark{"f", 8, 1}};
   return run;
 }
 

@@ -15,46 +15,17 @@
 #include "analysis/verdict.h"
 #include "netlist/sequence_spec.h"
 #include "tests/circuit_fixture.h"
+#include "tests/sequence_fixture.h"
 
 namespace {
 using linkrise::analysis::Evaluation;
 using linkrise::solver::Result;
 using linkrise::solver::SequenceReport;
+using linkrise::testing::SequenceRun;
 using linkrise::testing::Simulation;
 
 constexpr double kV = 400.0;
 constexpr double kTime = 1e-12;  // s
-
-// A run of a case with a sequence block: controller attached, report and evaluation taken.
-struct SequenceRun {
-  explicit SequenceRun(const std::string& yaml, double rtol = 1e-10, double atol = 1e-10) : sim(yaml) {
-    sim.tight(rtol, atol);
-    auto spec = sim.circuit.spec().sequence;
-    EXPECT_TRUE(spec.has_value());
-    controller.emplace(sim.circuit, *spec);
-    linkrise::solver::attach(*controller, sim.options);
-    result = sim.run();
-    EXPECT_NE(result.outcome, linkrise::solver::Outcome::SolverFailure) << result.message;
-    report = controller->report(result.end_time);
-    audit = linkrise::analysis::audit_energy(sim.circuit, result);
-    evaluation = linkrise::analysis::evaluate(sim.circuit, result, audit, &report);
-  }
-  // Time of the first timeline entry whose event is `event`, NaN when absent.
-  double when(const std::string& event) const {
-    for (const auto& entry : result.timeline) {
-      if (entry.event == event) return entry.time;
-    }
-    return NAN;
-  }
-  double metric(const std::string& name) const { return evaluation.metrics.value(name); }
-
-  Simulation sim;
-  std::optional<linkrise::solver::SequenceController> controller;
-  Result result;
-  SequenceReport report;
-  linkrise::analysis::EnergyAudit audit;
-  Evaluation evaluation;
-};
 
 // Ideal 400 V source, pre-charge contactor + resistor, main contactor straight to the link node, and a load
 // part across the link (`load` is its YAML). k_main's open resistance is made huge so the only charging path

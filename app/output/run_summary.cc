@@ -36,7 +36,11 @@ nlohmann::json part_summary(const solver::Circuit& circuit, const solver::Result
   const int first = static_cast<int>(circuit.node_names().size()) + circuit.signal_first(p);
   if (result.steps.row_count() > 0) {
     entry["peak_current"] = quantity(analysis::peak_absolute(result.steps, first), "A");
-    entry["peak_power"] = quantity(analysis::peak_absolute(result.steps, first + 2), "W");
+    entry["peak_terminal_power"] = quantity(analysis::peak_absolute(result.steps, first + 2), "W");
+    for (const char* signal : {"heat_power", "stored_power"}) {
+      const int column = result.steps.column(part.name() + "." + signal);
+      if (column >= 0) entry[std::string("peak_") + signal] = quantity(analysis::peak_absolute(result.steps, column), "W");
+    }
   }
   const auto& energy = audit.parts[p];
   auto channels = part.power_channels();
@@ -108,8 +112,13 @@ nlohmann::json run_summary(const solver::Circuit& circuit, const solver::Result&
   };
   summary["solver"] = solver_summary(result.statistics);
   nlohmann::json timeline = nlohmann::json::array();
-  for (const auto& entry : result.timeline) {
-    timeline.push_back({{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}});
+  for (const auto& entry : solver::collapse_repeats(result.timeline)) {
+    nlohmann::json line = {{"time", quantity(entry.time, "s")}, {"event", entry.event}, {"reason", entry.reason}};
+    if (entry.count > 1) {
+      line["count"] = quantity(static_cast<double>(entry.count), "1");
+      line["last_time"] = quantity(entry.last_time, "s");
+    }
+    timeline.push_back(std::move(line));
   }
   summary["timeline"] = timeline;
   return summary;
@@ -123,19 +132,27 @@ std::string terminal_summary(const solver::Circuit& circuit, const solver::Resul
   if (!result.message.empty()) out += fmt::format("  message   {}\n", result.message);
   if (!result.timeline.empty()) {
     out += "  timeline\n";
-    for (const auto& entry : result.timeline) {
-      out += fmt::format("    {:>12}  {:<28} {}\n", format_si(entry.time, "s"), entry.event, entry.reason);
+    for (const auto& entry : solver::collapse_repeats(result.timeline)) {
+      const std::string event = entry.count > 1 ? fmt::format("{} (×{})", entry.event, entry.count) : entry.event;
+      out += fmt::format("    {:>12}  {:<28} {}\n", format_si(entry.time, "s"), event, entry.reason);
     }
   }
-  out += fmt::format("  {:<22} {:>14} {:>14} {:>14}\n", "part", "peak |I|", "peak |P|", "heat");
+  out += fmt::format("  {:<22} {:>14} {:>16} {:>16} {:>14}\n", "part", "peak |I|", "peak heat power",
+                     "peak |P| stored", "heat");
   const int node_columns = static_cast<int>(circuit.node_names().size());
+  // Heat (I²R) and the power into stored energy apart: a cable's terminal power is mostly its inductance's.
+  auto peak_of = [&](const std::string& column_name) -> std::string {
+    const int column = result.steps.column(column_name);
+    if (column < 0) return "-";
+    return format_si(result.steps.row_count() ? analysis::peak_absolute(result.steps, column) : 0.0, "W");
+  };
   for (int p = 0; p < circuit.part_count(); ++p) {
+    const auto& part = circuit.part(p);
     int first = node_columns + circuit.signal_first(p);
     double peak_current = result.steps.row_count() ? analysis::peak_absolute(result.steps, first) : 0.0;
-    double peak_power = result.steps.row_count() ? analysis::peak_absolute(result.steps, first + 2) : 0.0;
-    std::string heat = circuit.part(p).power_channels().heat ? format_si(audit.parts[p].dissipated, "J") : "-";
-    out += fmt::format("  {:<22} {:>14} {:>14} {:>14}\n", circuit.part(p).name(), format_si(peak_current, "A"),
-                       format_si(peak_power, "W"), heat);
+    std::string heat = part.power_channels().heat ? format_si(audit.parts[p].dissipated, "J") : "-";
+    out += fmt::format("  {:<22} {:>14} {:>16} {:>16} {:>14}\n", part.name(), format_si(peak_current, "A"),
+                       peak_of(part.name() + ".heat_power"), peak_of(part.name() + ".stored_power"), heat);
   }
   out += fmt::format("  energy    sources {} = heat {} + loads {} + stored {} (residual {:.2e} relative)\n",
                      format_si(audit.delivered, "J"), format_si(audit.dissipated, "J"), format_si(audit.to_loads, "J"),

@@ -392,7 +392,7 @@ const solver::Waveform& plotted_waveform(const solver::Result& result) {
 
 std::vector<Marker> timeline_markers(const std::vector<solver::TimelineEntry>& timeline) {
   std::vector<Marker> markers;
-  for (const auto& entry : timeline) markers.push_back({entry.time, entry.event});
+  for (const auto& entry : solver::collapse_repeats(timeline)) markers.push_back({entry.time, entry.event});
   return markers;
 }
 
@@ -524,9 +524,11 @@ void add_timeline(HtmlReport& report, const solver::Result& result) {
   table.id = "timeline";
   table.columns = {"#", "time", "event", "reason"};
   table.numeric_columns = {0, 1};
-  for (std::size_t i = 0; i < result.timeline.size(); ++i) {
-    const auto& entry = result.timeline[i];
-    table.rows.push_back({fmt::format("{}", i + 1), display_si(entry.time, "s"), entry.event, entry.reason});
+  const auto lines = solver::collapse_repeats(result.timeline);
+  for (std::size_t i = 0; i < lines.size(); ++i) {
+    const auto& entry = lines[i];
+    const std::string event = entry.count > 1 ? fmt::format("{} (×{})", entry.event, entry.count) : entry.event;
+    table.rows.push_back({fmt::format("{}", i + 1), display_si(entry.time, "s"), event, entry.reason});
   }
   report.table(table);
 }
@@ -604,12 +606,12 @@ void add_resistor_plots(HtmlReport& report, const RunReportInput& input, const s
   const std::vector<int> resistors = heated_resistors(input.circuit, input.audit, input.sequence);
   if (resistors.empty()) return;
   report.section("Pre-charge resistor", "resistor");
-  PlotSpec power = time_plot("Resistor power", "power", "W", input.result);
+  PlotSpec power = time_plot("Resistor heat power", "heat power", "W", input.result);
   PlotSpec temperature = time_plot("Resistor temperature", "temperature", "degC", input.result);
   std::vector<std::string> notes;
   for (int p : resistors) {
     const std::string& name = input.circuit.part(p).name();
-    const int power_column = waveform.column(name + ".power");
+    const int power_column = waveform.column(name + ".heat_power");
     if (power_column >= 0) {
       power.series.push_back(column_series(waveform, power_column, name));
       notes.push_back(fmt::format("{}: peak {}, heat {}", name,
@@ -702,18 +704,22 @@ void add_energy(HtmlReport& report, const RunReportInput& input) {
   ReportTable parts;
   parts.id = "parts";
   parts.caption = "Per part";
-  parts.columns = {"part", "kind", "peak |I|", "peak |P|", "heat", "from source", "to load", "stored at end"};
-  parts.numeric_columns = {2, 3, 4, 5, 6, 7};
+  parts.columns = {"part",  "kind",        "peak |I|", "peak heat power", "peak |P| into storage",
+                   "heat",  "from source", "to load",  "stored at end"};
+  parts.numeric_columns = {2, 3, 4, 5, 6, 7, 8};
   for (int p = 0; p < circuit.part_count(); ++p) {
     const auto& part = circuit.part(p);
     const auto channels = part.power_channels();
     const auto& energy = audit.parts[p];
     const int current = waveform.column(part.name() + ".current");
-    const int power = waveform.column(part.name() + ".power");
+    // Heat and the power into stored energy apart (a cable's terminal power is mostly its inductance's).
+    const int heat_power = waveform.column(part.name() + ".heat_power");
+    const int stored_power = waveform.column(part.name() + ".stored_power");
     parts.rows.push_back({
         part.name(), part.kind(),
         current >= 0 ? display_si(peak_abs(waveform.series(current)), "A") : "-",
-        power >= 0 ? display_si(peak_abs(waveform.series(power)), "W") : "-",
+        heat_power >= 0 ? display_si(peak_abs(waveform.series(heat_power)), "W") : "-",
+        stored_power >= 0 ? display_si(peak_abs(waveform.series(stored_power)), "W") : "-",
         channels.heat ? display_si(energy.dissipated, "J") : "-",
         channels.source ? display_si(energy.delivered, "J") : "-",
         channels.load ? display_si(energy.to_load, "J") : "-",

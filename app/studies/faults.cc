@@ -87,6 +87,15 @@ void mark_unfit(Planned& p, const netlist::InputError& error, ScenarioFit fit) {
   p.row.note = fmt::format("the scenario does not fit this design: {}", error.problem());
 }
 
+// False for a load the sequence starts only once the charge is over (after the main closure or the pre-charge
+// opening, sequence.loads): it cannot draw while the link charges. A load the sequence starts with the attempt
+// can.
+bool draws_during_charge(const netlist::SequenceSpec& sequence, const std::string& name) {
+  return std::none_of(sequence.loads.begin(), sequence.loads.end(), [&](const netlist::SequenceLoadSpec& load) {
+    return load.part == name && load.after != netlist::LoadMoment::AttemptStart;
+  });
+}
+
 // What a caught fault ends as: no_rise with a rise check, timeout without.
 netlist::SequenceOutcome caught_outcome(const netlist::SequenceSpec& sequence) {
   return sequence.rise_fraction ? netlist::SequenceOutcome::NoRise : netlist::SequenceOutcome::Timeout;
@@ -185,15 +194,23 @@ class Plan {
   void constant_power_from_start() {
     Planned& p = add("constant_power_from_start", "constant-power loads draw from 0 V on", netlist::SequenceOutcome::Closed);
     p.expect_from_stall = true;
-    bool any = false;
+    bool any = false, started_by_sequence = false;
     for (const models::Part* load : parts_where(circuit_, sequence_, models::Role::Load, false)) {
       if (!load->load_demand()->constant_power) continue;
+      if (!draws_during_charge(sequence_, load->name())) {
+        started_by_sequence = true;
+        continue;
+      }
       any = true;
       p.document.apply({load->name() + ".enable_voltage", "0 V", at_});
       p.document.apply({load->name() + ".disable_voltage", "0 V", at_});
       p.document.apply({load->name() + ".initial", "enabled", at_});
     }
-    if (!any) not_applicable(p, "the case has no constant-power load");
+    if (!any) {
+      not_applicable(p, started_by_sequence ? "the sequence starts the case's constant-power loads only after "
+                                              "the charge (sequence.loads), so none can draw while the link charges"
+                                            : "the case has no constant-power load");
+    }
   }
 
   void reversed_connection() {
@@ -390,6 +407,7 @@ void run_row(Planned& p) {
   const netlist::SequenceSpec& sequence = report.spec;
   const analysis::Evaluation& evaluation = run.evaluation();
   take_attempt(row, report);
+  row.end_time = run.result().end_time;
   keep_link_trace(row, run.result(), sequence, report.ground);  // for the HTML report's plots
   if (p.expect_from_stall && evaluation.stall) p.run_stall = evaluation.stall;
   if (row.scenario == "nominal") p.path = analysis::measure_charge_path(run.result().steps, report);
@@ -462,6 +480,39 @@ void select_rows(std::vector<Planned>& planned, const ScenarioSelection& selecti
 }
 }  // namespace
 
+namespace {
+// The longest a sequence can take: every attempt to its timeout and the sample after it, every cool-down, the
+// slowest contact movements with their bounces, the overlap and the loads' delays.
+double longest_sequence(const netlist::Case& spec) {
+  const netlist::SequenceSpec& sequence = *spec.sequence;
+  const solver::Circuit circuit(spec);
+  double movements = sequence.overlap;
+  for (const auto& [name, mark] : sequence.moved_contactors()) {
+    const auto actuation = circuit.part(circuit.find_part(name)).actuation();
+    if (actuation) {
+      movements += actuation->closing_delay + actuation->opening_delay +
+                   2.0 * actuation->bounce_count * actuation->bounce_interval + actuation->parting_time;
+    }
+  }
+  for (const auto& load : sequence.loads) movements += load.delay;
+  return sequence.start + sequence.attempts * (sequence.timeout + 2.0 * sequence.sample_period + movements) +
+         (sequence.attempts - 1) * (sequence.cool_down + sequence.sample_period);
+}
+}  // namespace
+
+netlist::Case follow_sequence(netlist::CaseDocument& document, const netlist::Case& nominal) {
+  const netlist::SequenceSpec& sequence = *nominal.sequence;
+  const double settle = nominal.run.settle.value_or(kFaultSettle);
+  // The cap only guards against a run the sequence cannot end; twice the longest sequence and a second more.
+  const double cap = std::max(nominal.run.follows_sequence() ? nominal.run.duration : 0.0,
+                              2.0 * longest_sequence(nominal) + settle + 1.0);
+  const auto time_text = [](double value) { return netlist::quantity_text(value, netlist::Dimension::time(), false); };
+  document.apply({{"run.duration", "sequence", sequence.mark},
+                  {"run.settle", time_text(settle), sequence.mark},
+                  {"run.max_duration", time_text(cap), sequence.mark}});
+  return document.validate();
+}
+
 DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, ScenarioFit fit,
                                  const ScenarioSelection& selection) {
   const std::string case_file = document.file();
@@ -472,15 +523,7 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
                               "`linkrise faults` needs a 'sequence:' block: the matrix judges the BMS checks",
                               "add a sequence block (see docs/sequence-and-limits.md)");
   }
-  // Every attempt must fit in the run, or faulted scenarios end 'unfinished' while waiting for a retry. The
-  // controller stops the run after its last fault, so the longer duration costs only the closed scenarios'
-  // settled tail.
-  const double needed = sequence->start + sequence->attempts * (sequence->timeout + 4.0 * sequence->sample_period) +
-                        (sequence->attempts - 1) * sequence->cool_down + 0.2;
-  if (needed > nominal.run.duration) {
-    document.apply({"run.duration", netlist::quantity_text(needed, netlist::Dimension::time(), false), sequence->mark});
-    nominal = document.validate();
-  }
+  nominal = follow_sequence(document, nominal);
   const solver::Circuit circuit(nominal);
   std::vector<Planned> planned = Plan(document, nominal, circuit, fit).built_in_and_case_scenarios();
   select_rows(planned, selection);
@@ -504,8 +547,9 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
   for (auto& p : planned) {
     if (!p.expect_from_stall || !p.row.applicable || p.row.solver_failed) continue;
     const analysis::ChargePath unmeasured{.explanation = "the nominal run failed, so its charging path is unknown"};
-    expect_from_case(p, nominal_row.path ? *nominal_row.path : unmeasured, analysis::constant_power_loads(circuit),
-                     *sequence);
+    auto loads = analysis::constant_power_loads(circuit);
+    std::erase_if(loads, [&](const analysis::ConstantPowerLoad& load) { return !draws_during_charge(*sequence, load.name); });
+    expect_from_case(p, nominal_row.path ? *nominal_row.path : unmeasured, loads, *sequence);
   }
   DetectionMatrix matrix;
   matrix.case_file = case_file;
@@ -548,12 +592,12 @@ std::string matrix_text(const DetectionMatrix& matrix) {
 std::string matrix_csv(const DetectionMatrix& matrix) {
   auto number = [](double value) { return csv_number(value); };
   std::string out =
-      "scenario,expected,actual,applicable,attempt [1],attempts [1],detection_time [s],peak_temperature [degC],"
-      "temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
+      "scenario,expected,actual,applicable,attempt [1],attempts [1],detection_time [s],end_time [s],"
+      "peak_temperature [degC],temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
   for (const auto& row : matrix.rows) {
-    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(),
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(),
                        row.actual_word(), row.applicable ? "yes" : "no", row.attempt, row.attempts,
-                       number(row.detection_time),
+                       number(row.detection_time), number(row.end_time),
                        number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
                        number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
                        csv_quoted(row.note));
@@ -572,6 +616,7 @@ nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
                     {"attempt", row.attempt},
                     {"attempts", row.attempts},
                     {"detection_time", quantity(row.detection_time, "s")},
+                    {"end_time", quantity(row.end_time, "s")},
                     {"peak_temperature", quantity(row.peak_temperature, "degC")},
                     {"temperature_rating", quantity(row.temperature_rating, "degC")},
                     {"energy", quantity(row.energy, "J")},

@@ -48,6 +48,7 @@ struct DetectionRow {
   int attempt = 0;   // the first attempt that ended in `actual`; the detection time is that attempt's fault
   int attempts = 0;  // attempts the run used
   double detection_time = std::numeric_limits<double>::quiet_NaN();   // s, the fault of `attempt`
+  double end_time = std::numeric_limits<double>::quiet_NaN();  // s, where the run ended (its settle after the last event)
   double peak_temperature = std::numeric_limits<double>::quiet_NaN();  // degC, pre-charge resistor
   double temperature_rating = std::numeric_limits<double>::quiet_NaN();
   double energy = std::numeric_limits<double>::quiet_NaN();  // J, pre-charge resistor over the run
@@ -85,6 +86,15 @@ constexpr int kLinkTraceColumns = 600;
 /// empty when a link node has no waveform column.
 void keep_link_trace(DetectionRow& row, const solver::Result& result, const netlist::SequenceSpec& sequence,
                      const std::string& ground);
+
+/// How long a scenario's run goes on after the sequence's last event when the case itself lasts a fixed duration:
+/// the row is decided by then (its outcome, attempt, fault time and the resistor's heat), so a scenario that makes
+/// the solver struggle after its closure or last fault costs no more.
+inline constexpr double kFaultSettle = 0.1;  // s
+
+/// Makes every run of the document end `settle` after its sequence's last event (the case's own settle, or
+/// kFaultSettle), within a cap that fits every attempt and cool-down; returns the validated case.
+netlist::Case follow_sequence(netlist::CaseDocument& document, const netlist::Case& nominal);
 
 /// Runs every scenario of a case file (`jobs` threads; results do not depend on it). Throws
 /// netlist::InputError for a bad case or scenario.

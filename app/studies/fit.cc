@@ -124,6 +124,13 @@ void FitProblem::Impl::check_parameters() {
   }
   const double latest = measured.capture.times.back() +
                         (offset_fitted ? spec.time_offset->upper : measured.time_offset);
+  if (base.run.follows_sequence()) {
+    // The simulated rows are taken at the capture's times, so the run must reach its last sample whatever the
+    // sequence does.
+    throw InputError(base.run.marks.duration, "a fit needs a run of fixed duration, not 'duration: sequence'",
+                     fmt::format("write 'duration: {}' or longer, to cover the capture",
+                                 netlist::format_si(latest, "s")));
+  }
   if (latest > base.run.duration) {
     throw InputError(base.run.marks.duration,
                      fmt::format("the run ends at {} s, before the capture's last sample ({} s in case time)",
