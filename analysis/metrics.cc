@@ -124,6 +124,22 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
         "largest amount by which the sensed link voltage exceeds the pack's open-circuit voltage (the sensed pack "
         "voltage at rest, at the start of the final attempt before any contact touches) after the main closure "
         "(0 when it never does)");
+  if (!spec.more_mains.empty()) {
+    // Parallel strings: a string whose main current runs backwards is being charged by the others. The zero trace
+    // minus a main current is that backward current, so its maximum is the equalising current's peak.
+    double equalising = kNaN;
+    if (after_close) {
+      for (const auto& name : spec.mains()) {
+        const Trace current = Trace::column(waveform, name + ".current");
+        const auto backwards = current.minus_scaled(current, 2.0, 0.0).maximum(closed, end);  // −i
+        if (backwards && (std::isnan(equalising) || backwards->value > equalising)) equalising = backwards->value;
+      }
+      equalising = std::max(0.0, equalising);
+    }
+    m.add("sequence.equalising_current", equalising, "A",
+          "largest current flowing backwards through any string's main contactor after the main closure: one "
+          "parallel string charging another (0 when none does)");
+  }
   m.add("sequence.minimum_pack_voltage", rows ? or_nan(pack.minimum(waveform.times().front(), end)) : kNaN, "V",
         "lowest sensed pack terminal voltage over the run");
   m.add("sequence.detection_time", report.first_fault_time, "s", "run time at which the first fault was raised");

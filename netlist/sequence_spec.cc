@@ -40,13 +40,25 @@ std::vector<std::pair<std::string, SourceMark>> SequenceSpec::moved_contactors()
   for (std::size_t i = 0; i < start_closed.size(); ++i) {
     moved.emplace_back(start_closed[i], i < start_closed_marks.size() ? start_closed_marks[i] : mark);
   }
-  moved.emplace_back(main, main_mark);
+  for (const auto& name : mains()) moved.emplace_back(name, main_mark);
   return moved;
+}
+
+std::vector<std::string> SequenceSpec::mains() const {
+  std::vector<std::string> names{main};
+  names.insert(names.end(), more_mains.begin(), more_mains.end());
+  return names;
+}
+
+std::vector<std::string> SequenceSpec::precharges() const {
+  std::vector<std::string> names{precharge};
+  names.insert(names.end(), more_precharges.begin(), more_precharges.end());
+  return names;
 }
 
 std::vector<std::string> SequenceSpec::moved_names() const {
   std::vector<std::string> names = start_closed;
-  names.push_back(main);
+  for (const auto& name : mains()) names.push_back(name);
   return names;
 }
 
@@ -119,34 +131,55 @@ void read_start_closed(const Case& spec, ParameterReader& reader, const Tree& bl
   }
 }
 
-std::string required_contactor(const Case& spec, ParameterReader& reader, const Tree& block, const std::string& key,
-                               const std::string& what, const std::string& example) {
+// One contactor, or a list of them (parallel strings: each string's own), the first being the primary one.
+std::vector<std::string> required_contactors(const Case& spec, ParameterReader& reader, const Tree& block,
+                                             const std::string& key, const std::string& what,
+                                             const std::string& example) {
   const Tree* node = reader.child(key);
   if (node == nullptr) {
     throw InputError(block.mark, fmt::format("the sequence needs '{}' ({})", key, what),
                      fmt::format("add '{}: {}'", key, example));
   }
-  return contactor_name(spec, *node, fmt::format("'{}' contactor", key));
+  if (!node->is_list()) return {contactor_name(spec, *node, fmt::format("'{}' contactor", key))};
+  if (node->items.empty()) {
+    throw InputError(node->mark, fmt::format("the sequence's '{}' lists no contactor", key),
+                     fmt::format("write '{}: {}', or list one per string", key, example));
+  }
+  std::vector<std::string> names;
+  for (const Tree& item : node->items) {
+    std::string name = contactor_name(spec, item, fmt::format("'{}' contactor", key));
+    if (std::find(names.begin(), names.end(), name) != names.end()) {
+      throw InputError(item.mark, fmt::format("contactor '{}' is listed twice in '{}'", name, key),
+                       "list each contactor once");
+    }
+    names.push_back(name);
+  }
+  return names;
 }
 
-// The main and pre-charge contactors: the main one closes only on the decision, the pre-charge one at the start.
+// The main and pre-charge contactors: the main ones close only on the decision, the pre-charge ones at the start.
 void read_switched_contactors(const Case& spec, ParameterReader& reader, const Tree& block,
                               SequenceSpec& sequence) {
-  sequence.main = required_contactor(spec, reader, block, "main", "the main contactor", "k_main");
+  auto mains = required_contactors(spec, reader, block, "main", "the main contactor", "k_main");
+  sequence.main = mains.front();
+  sequence.more_mains.assign(mains.begin() + 1, mains.end());
   sequence.main_mark = reader.mark("main");
-  sequence.precharge = required_contactor(spec, reader, block, "precharge", "the pre-charge contactor", "k_pre");
+  auto precharges = required_contactors(spec, reader, block, "precharge", "the pre-charge contactor", "k_pre");
+  sequence.precharge = precharges.front();
+  sequence.more_precharges.assign(precharges.begin() + 1, precharges.end());
   sequence.precharge_mark = reader.mark("precharge");
-  if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.main) !=
-      sequence.start_closed.end()) {
+  const auto& start = sequence.start_closed;
+  for (const auto& main : mains) {
+    if (std::find(start.begin(), start.end(), main) == start.end()) continue;
     reader.fail("main", fmt::format("'{}' is also in start_closed; the main contactor closes only on the decision",
-                                    sequence.main),
+                                    main),
                 "remove it from start_closed");
   }
-  if (std::find(sequence.start_closed.begin(), sequence.start_closed.end(), sequence.precharge) ==
-      sequence.start_closed.end()) {
+  for (const auto& precharge : precharges) {
+    if (std::find(start.begin(), start.end(), precharge) != start.end()) continue;
     reader.fail("precharge", fmt::format("'{}' is not in start_closed, so the pre-charge path never closes",
-                                         sequence.precharge),
-                fmt::format("add '{}' to start_closed", sequence.precharge));
+                                         precharge),
+                fmt::format("add '{}' to start_closed", precharge));
   }
 }
 
@@ -294,8 +327,7 @@ void check_timing(const Case& spec, const ParameterReader& reader, const Sequenc
 
 // A contactor moved by both the controller and a scheduled event has no defined state.
 void check_events(const Case& spec, const SequenceSpec& sequence) {
-  std::vector<std::string> moved = sequence.start_closed;
-  moved.push_back(sequence.main);
+  const std::vector<std::string> moved = sequence.moved_names();
   for (const auto& event : spec.events) {
     if (std::find(moved.begin(), moved.end(), event.target) != moved.end()) {
       throw InputError(event.mark,

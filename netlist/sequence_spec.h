@@ -4,7 +4,7 @@
 //   sequence:
 //     start_closed: [k_neg, k_pre]   # contactors the BMS closes when an attempt starts
 //     precharge: k_pre               # the pre-charge contactor: opened after the overlap and on a fault
-//     main: k_main                   # closed when the closing rule is met
+//     main: k_main                   # closed when the closing rule is met (a list: one per parallel string)
 //     resistor: r_pre                # the pre-charge resistor (judged in the detection matrix)
 //     overlap: 20 ms                 # main contact closed -> pre-charge coil released
 //     pack: [pack_plus, pack_minus]  # sensed node pair (plus, minus) for the pack voltage, read ideally,
@@ -86,6 +86,9 @@ struct KeyCycles {
 struct SequenceSpec {
   std::vector<std::string> start_closed;
   std::string precharge;
+  // Parallel strings: `main: [k_main_a, k_main_b]` closes every string's main contactor on the one decision and
+  // `precharge: [k_pre_a, k_pre_b]` releases every pre-charge contactor after the overlap; the first is primary.
+  std::vector<std::string> more_mains, more_precharges;
   std::string main;
   std::string resistor;
   double overlap = 0.0;  // s
@@ -115,6 +118,9 @@ struct SequenceSpec {
 
   /// Every contactor the sequence moves (start_closed, then main) with the place it is named.
   std::vector<std::pair<std::string, SourceMark>> moved_contactors() const;
+  /// Every main contactor (`main` first) and every pre-charge contactor (`precharge` first).
+  std::vector<std::string> mains() const;
+  std::vector<std::string> precharges() const;
   /// The same names alone.
   std::vector<std::string> moved_names() const;
 

@@ -40,7 +40,8 @@ int reading_index(const Circuit& circuit, int sensor) {
 SequenceController::SequenceController(const Circuit& circuit, netlist::SequenceSpec spec)
     : circuit_(circuit), spec_(std::move(spec)) {
   main_ = contactor_index(circuit, spec_.main, spec_.mark);
-  precharge_ = contactor_index(circuit, spec_.precharge, spec_.mark);
+  for (const auto& name : spec_.mains()) mains_.push_back(contactor_index(circuit, name, spec_.mark));
+  for (const auto& name : spec_.precharges()) precharges_.push_back(contactor_index(circuit, name, spec_.mark));
   for (const auto& name : spec_.start_closed) start_closed_.push_back(contactor_index(circuit, name, spec_.mark));
   for (const auto& step : spec_.weld_check) {
     weld_steps_.emplace_back();
@@ -362,23 +363,32 @@ void SequenceController::charging_sample(double t, double pack, double link, std
 void SequenceController::decide(double t, std::vector<Command>& commands, std::vector<TimelineEntry>& timeline) {
   AttemptRecord& record = history_.back();
   record.decision = t;
-  timeline.push_back(TimelineEntry{t, fmt::format("decide to close {}", spec_.main), record.reason});
-  double touch = t;
-  schedule_close(main_, t, "closing decision", commands, touch);
-  record.main_closed = touch;
-  auto pre = timing_of(circuit_, precharge_);
-  double coil_off = touch + spec_.overlap;
-  record.released = coil_off + pre.opening_delay;
-  loads_.moment(netlist::LoadMoment::MainClosed, touch, record.number);
+  std::string mains;
+  for (const auto& name : spec_.mains()) mains += (mains.empty() ? "" : ", ") + name;
+  timeline.push_back(TimelineEntry{t, fmt::format("decide to close {}", mains), record.reason});
+  double last_touch = t;
+  for (int part : mains_) {
+    double touch = t;
+    schedule_close(part, t, "closing decision", commands, touch);
+    if (part == main_) record.main_closed = touch;
+    last_touch = std::max(last_touch, touch);
+  }
+  // Every pre-charge coil is released the overlap after the last main contacts touched.
+  const double coil_off = last_touch + spec_.overlap;
+  record.released = coil_off;
+  for (int part : precharges_) {
+    const double opening = timing_of(circuit_, part).opening_delay;
+    record.released = std::max(record.released, coil_off + opening);
+    commands.push_back(Command{coil_off + opening, part, netlist::Action::Open,
+                               fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
+                                           opening > 0.0 ? fmt::format(", then opening delay {}", format_si(opening, "s"))
+                                                         : "")});
+    energised_.erase(std::remove(energised_.begin(), energised_.end(), part), energised_.end());
+  }
+  loads_.moment(netlist::LoadMoment::MainClosed, record.main_closed, record.number);
   loads_.moment(netlist::LoadMoment::PrechargeOpened, record.released, record.number);
-  commands.push_back(Command{record.released, precharge_, netlist::Action::Open,
-                             fmt::format("overlap {} after the main contacts closed{}", format_si(spec_.overlap, "s"),
-                                         pre.opening_delay > 0.0
-                                             ? fmt::format(", then opening delay {}", format_si(pre.opening_delay, "s"))
-                                             : "")});
-  // From here the BMS holds the main coil and the other start_closed coils; the pre-charge one is let go.
-  energised_.erase(std::remove(energised_.begin(), energised_.end(), precharge_), energised_.end());
-  energised_.push_back(main_);
+  // From here the BMS holds the main coils and the other start_closed coils.
+  for (int part : mains_) energised_.push_back(part);
   if (spec_.closure_check) {
     verify_at_ = record.released + spec_.closure_check->after;
     phase_ = Phase::Verifying;

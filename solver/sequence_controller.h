@@ -86,7 +86,8 @@ class SequenceController final : public Supervisor {
 
   const Circuit& circuit_;
   netlist::SequenceSpec spec_;
-  int main_ = -1, precharge_ = -1;
+  int main_ = -1;                                 // the primary main contactor
+  std::vector<int> mains_, precharges_;           // all of them (parallel strings), primary first
   std::vector<int> start_closed_;
   std::vector<std::vector<int>> weld_steps_;  // the coils of each weld-check step
   int pack_plus_ = -1, pack_minus_ = -1, link_plus_ = -1, link_minus_ = -1;

@@ -245,9 +245,14 @@ class Plan {
       p.document.apply({name + ".stuck", "closed", at_});
     }
     for (const auto& name : sequence_.moved_names()) {
-      const bool main = name == sequence_.main;
+      const auto mains = sequence_.mains();
+      const bool main = std::find(mains.begin(), mains.end(), name) != mains.end();
       Planned& p = add("failed_" + name, fmt::format("{} fails to close: its contacts never touch", name),
                        main ? netlist::SequenceOutcome::MainFailed : caught_);
+      if (main && mains.size() > 1) {
+        p.row.note = "parallel strings: the others hold the link up, so no voltage check can see one string left "
+                     "out; only that string's own current can";
+      }
       if (main && !sequence_.closure_check) {
         not_applicable(p, "the sequence has no closure_check, so nothing notices the main contacts never touched "
                           "(the load then drains the link once the pre-charge path opens)");
