@@ -168,17 +168,32 @@ std::string part_definition(const std::string& metric) {
            "curve used (1 = melted open)";
   }
   if (metric == "average_power") {
-    return "heat dissipated in the part over the run divided by the run's length (the mean a continuous power "
-           "rating is judged against)";
+    return "heat dissipated in the part over the run divided by the run's length (it depends on the length "
+           "chosen; a continuous power rating is judged against duty_average_power)";
+  }
+  if (metric == "duty_average_power") {
+    return "heat dissipated over the key-cycle duty divided by the duty's length (sequence.key_cycles): the mean a "
+           "continuous power rating is judged against; not reached without a stated duty";
   }
   throw std::logic_error(fmt::format("part metric '{}' has no definition", metric));
 }
 }  // namespace
 
-MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit) {
+double duty_length(const solver::SequenceReport& report) {
+  const auto& cycles = report.spec.key_cycles;
+  const solver::AttemptRecord* last = report.last();
+  if (last == nullptr || report.cycles != cycles.count || std::isnan(last->main_closed)) return kNaN;
+  if (cycles.on_time <= 0.0) return kNaN;  // no key_cycles block: no duty stated
+  const double first_start = report.history.front().start;
+  return (last->main_closed - first_start) + cycles.on_time + cycles.off_time;
+}
+
+MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit,
+                       double duty) {
   MetricSet m;
   if (result.steps.row_count() == 0) return m;
-  for (const auto& part : all_resistive_metrics(circuit, result, audit)) {
+  for (auto part : all_resistive_metrics(circuit, result, audit)) {
+    part.duty_average_power = duty > 0.0 ? part.energy / duty : kNaN;
     for (const auto& metric : part.named()) {
       m.add(part.part + "." + metric.name, metric.value, metric.unit, part_definition(metric.name));
     }

@@ -15,6 +15,7 @@
 //   <part>.peak_temperature [degC] where the part has a temperature.
 // Names are whole words: I²t is "current_squared_time" for the sequence and for every part alike.
 // A metric that does not apply to the run (no closure, no fault) has the value NaN ("not reached").
+#include <cmath>
 #include <optional>
 #include <string>
 #include <vector>
@@ -63,7 +64,12 @@ MetricSet sequence_metrics(const solver::Waveform& waveform, const solver::Seque
                            const StallDiagnostic& stall);
 
 /// Per-part metrics of the resistive parts (from analysis/part_metrics.h), with definitions.
-MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit);
+/// `duty` (s): the length of the stated key-cycle duty, which duty_average_power divides by; NaN: none stated.
+MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& result, const EnergyAudit& audit,
+                       double duty = std::nan(""));
+/// The length of the key-cycle duty a sequence ran (sequence.key_cycles): from the first cycle's start to the
+/// last one's, plus the last cycle's charge, its on_time and the off_time; NaN without key cycles or a closure.
+double duty_length(const solver::SequenceReport& report);
 
 /// The constant-power loads of the circuit (rated power, resistive floor), for the stall diagnostic.
 std::vector<ConstantPowerLoad> constant_power_loads(const solver::Circuit& circuit);

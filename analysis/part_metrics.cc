@@ -16,6 +16,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"current_squared_time", "A²s", current_squared_time});
   list.push_back({"peak_voltage", "V", peak_voltage});
   list.push_back({"average_power", "W", average_power});
+  list.push_back({"duty_average_power", "W", duty_average_power});
   if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
   return list;
 }

@@ -14,15 +14,18 @@
 //   energy                J     heat absorbed over the run, from the part's integrated energy account
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
-//   average_power         W     heat absorbed over the run divided by the run's length: the duty-cycle mean
-//                               that a continuous power rating is judged against (a pulse is judged by
-//                               energy and peak temperature, not by its peak power)
+//   average_power         W     heat absorbed over the run divided by the run's length (depends on the chosen
+//                               run length: for reading, not for judging)
+//   duty_average_power    W     heat absorbed over the key-cycle duty (sequence.key_cycles) divided by the duty's
+//                               length: the mean a continuous power rating is judged against (a pulse is judged
+//                               by energy and peak temperature, not by its peak power); NaN without a stated duty
 // Peaks are row maxima: a peak between two solver steps is missed by at most the change over one step.
 // I²t comes from the part's own integrated ∫i² dt state where it has one (electro-thermal parts, see
 // models/thermal_resistor.h), as accurate as the solver; otherwise from the trapezoid rule over the rows,
 // whose error for a current decaying as e^(−t/τ) is about (h/τ)²/12 of the integral per step of length h
 // (a few 0.1 % on solver rows, where h/τ stays near 0.1–0.3), exact at switching instants because each has a
 // row before and after.
+#include <cmath>
 #include <optional>
 #include <string>
 #include <vector>
@@ -51,6 +54,7 @@ struct ResistiveMetrics {
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
   double average_power = 0.0;              // W
+  double duty_average_power = std::nan("");  // W; NaN without a stated duty
 
   /// The values as named metrics, in the order listed in the header comment.
   std::vector<PartMetric> named() const;

@@ -14,7 +14,7 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
     evaluation.stall = diagnose_stall(result.steps, *report, constant_power_loads(circuit));
     evaluation.metrics.append(sequence_metrics(result.steps, *report, *evaluation.stall));
   }
-  evaluation.metrics.append(part_metrics(circuit, result, audit));
+  evaluation.metrics.append(part_metrics(circuit, result, audit, report ? duty_length(*report) : std::nan("")));
 
   std::vector<netlist::LimitSpec> limits = circuit.spec().limits;
   for (auto& rating : rating_limits(circuit)) limits.push_back(std::move(rating));

@@ -95,7 +95,8 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
                        length ? fmt::format("pulse length {}", netlist::format_si(*length, "s")) : std::string()});
   }
   if (auto p = block.optional("continuous_power", Dimension::power_(), Bound::Positive)) {
-    ratings.push_back({"average_power", "W", *p, "continuous rating, judged against the mean heat over the run"});
+    ratings.push_back({"duty_average_power", "W", *p,
+                       "continuous rating, judged against the mean heat over the key-cycle duty (sequence.key_cycles)"});
   }
   if (auto v = block.optional("max_voltage", Dimension::voltage(), Bound::Positive)) {
     ratings.push_back({"peak_voltage", "V", *v, "maximum voltage across the part"});

@@ -30,7 +30,7 @@
 //     max_temperature: 220 degC   -> metric "peak_temperature" (degC)
 //     pulse_energy: 150 J         -> metric "energy" (J); pulse_length (s) goes into the note
 //     pulse_length: 100 ms
-//     continuous_power: 10 W      -> metric "average_power" (W): the mean heat over the run
+//     continuous_power: 10 W      -> metric "duty_average_power" (W): the mean heat over the key-cycle duty
 //     max_voltage: 1000 V         -> metric "peak_voltage" (V)
 #include <memory>
 #include <optional>

@@ -26,7 +26,7 @@ std::string duty_case(int cycles) {
          "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 400 V}\n"
          "  - {name: k_pre, kind: contactor, nodes: [plus, mid], closed_resistance: 1 mOhm}\n"
          "  - {name: r_pre, kind: resistor, nodes: [mid, link], resistance: 100 Ohm,\n"
-         "     thermal: {heat_capacity: 20 J/K, thermal_resistance: 3 K/W}}\n"
+         "     thermal: {heat_capacity: 20 J/K, thermal_resistance: 3 K/W}, ratings: {continuous_power: 1 W}}\n"
          "  - {name: k_main, kind: contactor, nodes: [plus, link], closed_resistance: 1 mOhm, closing_delay: 10 ms}\n"
          "  - {name: c_link, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}\n"
          "  - {name: bleed, kind: resistor, nodes: [link, gnd], resistance: 5 kOhm}\n"
@@ -106,6 +106,19 @@ TEST(KeyCycles, EachCycleClosesAndTheResistorHeatsTowardsThePeriodicState) {
   const double peak = duty.evaluation.metrics.value("r_pre.peak_temperature") - 25.0;
   // The pulses last about 0.4 s against τ = 60 s: the network cools by under 1 % of the rise while one lasts.
   EXPECT_NEAR(peak, rise, 0.01 * rise);
+  // The continuous rating is judged over the duty, not the run: the heat of all cycles over their length — the
+  // last cycle's start plus its charge, on_time and off_time — here about E/P, whatever run.duration says.
+  const auto& last = duty.report.history.back();
+  const double duty_length = (starts.back() - starts.front()) + (last.main_closed - last.start) + 5.0 + 40.0;
+  EXPECT_NEAR(duty.evaluation.metrics.value("r_pre.duty_average_power"), energy / duty_length, 1e-12 * energy);
+  EXPECT_NEAR(duty_length, n * period, 10e-3);  // the key-off waits for a 10 ms sample
+  bool judged = false;
+  for (const auto& limit : duty.evaluation.limits) {
+    if (limit.metric != "r_pre.duty_average_power") continue;
+    judged = limit.judged;
+    EXPECT_FALSE(limit.pass);  // about 1.8 W against the 1 W rating
+  }
+  EXPECT_TRUE(judged);
   // A single cycle heats it by E/C only: the duty is what the rating must take.
   EXPECT_GT(peak, 1.5 * per_cycle / heat_capacity);
 }

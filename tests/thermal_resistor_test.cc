@@ -351,7 +351,7 @@ TEST(ThermalResistor, RatingsCarryMetricNamesUnitsAndNotes) {
   EXPECT_EQ(ratings[1].metric, "energy");
   EXPECT_EQ(ratings[1].unit, "J");
   EXPECT_TRUE(contains(ratings[1].note, "100 ms")) << ratings[1].note;
-  EXPECT_EQ(ratings[2].metric, "average_power");
+  EXPECT_EQ(ratings[2].metric, "duty_average_power");
   EXPECT_EQ(ratings[2].unit, "W");
   EXPECT_TRUE(contains(ratings[2].note, "continuous")) << ratings[2].note;
   EXPECT_EQ(ratings[3].metric, "peak_voltage");
