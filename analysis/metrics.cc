@@ -163,6 +163,7 @@ std::string part_definition(const std::string& metric) {
   if (metric == "energy") return "heat dissipated in the part over the run (the solver's energy account)";
   if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
   if (metric == "peak_voltage") return "largest |voltage| across the part";
+  if (metric == "peak_current") return "largest |current| through the part";
   if (metric == "peak_melt") {
     return "largest melting integral of the fuse over the run: the share of its melting I²t or time-current "
            "curve used (1 = melted open)";

@@ -17,6 +17,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"peak_voltage", "V", peak_voltage});
   list.push_back({"average_power", "W", average_power});
   list.push_back({"duty_average_power", "W", duty_average_power});
+  list.push_back({"peak_current", "A", peak_current});
   if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
   return list;
 }
@@ -74,6 +75,7 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     metrics.peak_power = peak_absolute(rows, rows.column(p.name() + ".heat_power"));
     if (p.stores_energy()) metrics.peak_stored_power = peak_absolute(rows, rows.column(p.name() + ".stored_power"));
     metrics.peak_voltage = peak_absolute(rows, voltage);
+    metrics.peak_current = peak_absolute(rows, current);
     int temperature = rows.column(p.name() + ".temperature");
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
     int melt = rows.column(p.name() + ".melt");

@@ -14,6 +14,7 @@
 //   energy                J     heat absorbed over the run, from the part's integrated energy account
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
+//   peak_current          A     largest |i| over the recorded rows
 //   average_power         W     heat absorbed over the run divided by the run's length (depends on the chosen
 //                               run length: for reading, not for judging)
 //   duty_average_power    W     heat absorbed over the key-cycle duty (sequence.key_cycles) divided by the duty's
@@ -53,6 +54,7 @@ struct ResistiveMetrics {
   double current_squared_time = 0.0;       // A²·s
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
+  double peak_current = 0.0;               // A
   double average_power = 0.0;              // W
   double duty_average_power = std::nan("");  // W; NaN without a stated duty
 

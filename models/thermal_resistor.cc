@@ -101,6 +101,10 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
   if (auto v = block.optional("max_voltage", Dimension::voltage(), Bound::Positive)) {
     ratings.push_back({"peak_voltage", "V", *v, "maximum voltage across the part"});
   }
+  if (auto i = block.optional("max_current", Dimension::current(), Bound::Positive)) {
+    ratings.push_back({"peak_current", "A", *i,
+                       "maximum current through the part (an NTC's inrush when it restarts hot)"});
+  }
   block.finish();
   return ratings;
 }

@@ -32,6 +32,7 @@
 //     pulse_length: 100 ms
 //     continuous_power: 10 W      -> metric "duty_average_power" (W): the mean heat over the key-cycle duty
 //     max_voltage: 1000 V         -> metric "peak_voltage" (V)
+//     max_current: 20 A           -> metric "peak_current" (A): e.g. an NTC's hot-restart inrush
 #include <memory>
 #include <optional>
 #include <string>

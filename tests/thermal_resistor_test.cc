@@ -256,6 +256,31 @@ TEST(ThermalResistor, NtcBetaAndSteinhartHartFormsAgreeInTheCircuit) {
   }
 }
 
+// An NTC restarting hot: still at 120 °C from the last pre-charge, its resistance is R25·exp[B·(1/T − 1/T25)]
+// ([R-NTC-beta]) and the inrush at the first instant is V/(R_hot + R_source) (Ohm); judged against the part's
+// max_current, the hot restart fails where a cold start (V/R25 = 20 A) would pass.
+TEST(ThermalResistor, NtcHotRestartInrushIsJudgedAgainstItsMaximumCurrent) {
+  const double r25 = 20.0, b = 3500.0, t_hot = 120.0 + kCelsius, t25 = 298.15;
+  const double r_hot = r25 * std::exp(b * (1.0 / t_hot - 1.0 / t25));
+  const double inrush = 400.0 / (r_hot + 0.1);
+  Circuit circuit(case_from(source_across(
+      "  - {name: ntc, kind: ntc_thermistor, nodes: [plus, mid], resistance_at_25degC: 20 Ohm, b_value: 3500 K,\n"
+      "     thermal: {heat_capacity: 10 J/K, thermal_resistance: 5 K/W, initial_temperature: 120 degC},\n"
+      "     ratings: {max_current: 30 A}}\n"
+      "  - {name: link, kind: capacitor, nodes: [mid, gnd], capacitance: 1 mF}\n",
+      "400 V", "100 mOhm", "20 ms")));
+  Result result = run_tight(circuit);
+  auto audit = linkrise::analysis::audit_energy(circuit, result);
+  auto all = linkrise::analysis::all_resistive_metrics(circuit, result, audit);
+  ASSERT_EQ(all.size(), 1u);
+  EXPECT_NEAR(all[0].peak_current, inrush, 1e-9 * inrush);
+  EXPECT_GT(inrush, 30.0);  // 400 V over 1.17 Ohm hot (+ 0.1 Ohm source): 314 A
+  auto ratings = circuit.part(circuit.find_part("ntc")).ratings();
+  ASSERT_EQ(ratings.size(), 1u);
+  EXPECT_EQ(ratings[0].metric, "peak_current");
+  EXPECT_NEAR(ratings[0].value, 30.0, 1e-12);
+}
+
 // Two-node and Foster networks in a circuit: at constant power the element rises by P·(R12 + R2a) at steady
 // state; a Foster network follows Z_th(t) = Σ R_i·(1 − e^(−t/τ_i)) exactly ([R-thermal-network]).
 TEST(ThermalResistor, TwoNodeAndFosterNetworksUnderConstantPower) {
