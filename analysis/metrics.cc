@@ -164,6 +164,12 @@ std::string part_definition(const std::string& metric) {
   if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
   if (metric == "peak_voltage") return "largest |voltage| across the part";
   if (metric == "peak_current") return "largest |current| through the part";
+  if (metric == "pulse_curve_use") {
+    return "the worst pulse's share of what the part's data-sheet pulse curve permits at its equivalent rectangular "
+           "length E/P_peak (the repetitive curve when the run has several pulses; 100 % = at the curve)";
+  }
+  if (metric == "worst_pulse_start") return "when the pulse that used most of the pulse curve began";
+  if (metric == "worst_pulse_length") return "that pulse's equivalent rectangular length E/P_peak";
   if (metric == "peak_melt") {
     return "largest melting integral of the fuse over the run: the share of its melting I²t or time-current "
            "curve used (1 = melted open)";

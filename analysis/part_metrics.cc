@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "analysis/pulses.h"
 #include "models/thermal_resistor.h"
 
 namespace linkrise::analysis {
@@ -19,6 +20,11 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"duty_average_power", "W", duty_average_power});
   list.push_back({"peak_current", "A", peak_current});
   if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
+  if (pulse_curve_use) {
+    list.push_back({"pulse_curve_use", "1", *pulse_curve_use});
+    list.push_back({"worst_pulse_start", "s", *worst_pulse_start});
+    list.push_back({"worst_pulse_length", "s", *worst_pulse_length});
+  }
   return list;
 }
 
@@ -80,6 +86,15 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
     int melt = rows.column(p.name() + ".melt");
     if (melt >= 0) metrics.peak_melt = peak_value(rows, melt);
+    const auto curves = p.pulse_curves();
+    const int heat = rows.column(p.name() + ".heat_power");
+    if (!curves.empty() && heat >= 0) {
+      if (auto judged = judge_pulses(split_pulses(rows.times(), rows.series(heat)), curves)) {
+        metrics.pulse_curve_use = judged->use;
+        metrics.worst_pulse_start = judged->pulse.start;
+        metrics.worst_pulse_length = judged->pulse.length();
+      }
+    }
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;
   if (result.end_time > 0.0) metrics.average_power = metrics.energy / result.end_time;

@@ -15,6 +15,10 @@
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
 //   peak_current          A     largest |i| over the recorded rows
+//   pulse_curve_use       1     the worst pulse's share of what the part's data-sheet pulse curve permits at its
+//                               equivalent rectangular length (analysis/pulses.h); parts with a curve only, with
+//   worst_pulse_start     s     when that pulse began, and
+//   worst_pulse_length    s     its equivalent rectangular length E/P_peak
 //   average_power         W     heat absorbed over the run divided by the run's length (depends on the chosen
 //                               run length: for reading, not for judging)
 //   duty_average_power    W     heat absorbed over the key-cycle duty (sequence.key_cycles) divided by the duty's
@@ -55,6 +59,7 @@ struct ResistiveMetrics {
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
   double peak_current = 0.0;               // A
+  std::optional<double> pulse_curve_use, worst_pulse_start, worst_pulse_length;  // parts with a pulse curve
   double average_power = 0.0;              // W
   double duty_average_power = std::nan("");  // W; NaN without a stated duty
 

@@ -17,6 +17,7 @@
 #include <string>
 #include <vector>
 
+#include "models/pulse_curve.h"
 #include "netlist/case.h"
 #include "netlist/parameter_reader.h"
 
@@ -256,6 +257,8 @@ class Part {
   bool linear_network() const { return do_linear_network(); }
   PowerChannels power_channels() const { return do_power_channels(); }
   std::vector<Rating> ratings() const { return do_ratings(); }
+  /// The data sheet's pulse curves (resistive parts with them in their ratings block; none otherwise).
+  std::vector<PulseCurve> pulse_curves() const { return do_pulse_curves(); }
 
   Role role() const { return do_role(); }
   /// Actuation data of a switching part; std::nullopt for every other role.
@@ -311,6 +314,7 @@ class Part {
   virtual bool do_linear_network() const { return true; }
   virtual PowerChannels do_power_channels() const = 0;
   virtual std::vector<Rating> do_ratings() const { return {}; }
+  virtual std::vector<PulseCurve> do_pulse_curves() const { return {}; }
   virtual Role do_role() const = 0;
   virtual std::optional<Actuation> do_actuation() const { return std::nullopt; }
   virtual std::optional<LoadDemand> do_load_demand() const { return std::nullopt; }

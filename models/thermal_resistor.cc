@@ -80,7 +80,27 @@ std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
   return network_or_fail(ThermalNetwork::create(p), block, "heat_capacity");
 }
 
-std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
+// One pulse curve under `key`, if given: rows [length, energy or peak power], lengths increasing, values above 0.
+std::optional<PulseCurve> read_pulse_curve(netlist::ParameterReader& block, const std::string& key) {
+  if (!block.has(key)) return std::nullopt;
+  PulseCurve curve;
+  curve.repetitive = key.rfind("repetitive_", 0) == 0;
+  curve.measure = key.find("power") != std::string::npos ? PulseCurve::Measure::PeakPower : PulseCurve::Measure::Energy;
+  const Dimension value = curve.measure == PulseCurve::Measure::Energy ? Dimension::energy() : Dimension::power_();
+  for (const auto& row : block.table(key, {Dimension::time(), value})) {
+    const std::size_t n = curve.lengths.size() + 1;
+    if (!(row[0] > 0.0) || !(row[1] > 0.0)) block.fail(key, fmt::format("row {}: length and value must be above zero", n));
+    if (n > 1 && !(row[0] > curve.lengths.back())) {
+      block.fail(key, fmt::format("row {}: the pulse length must increase from row to row", n));
+    }
+    curve.lengths.push_back(row[0]);
+    curve.values.push_back(row[1]);
+  }
+  if (curve.lengths.empty()) block.fail(key, "lists no rows", "give rows [pulse length, permitted value]");
+  return curve;
+}
+
+std::vector<Rating> read_ratings(netlist::ParameterReader& block, std::vector<PulseCurve>& curves) {
   std::vector<Rating> ratings;
   if (auto t = block.optional("max_temperature", Dimension::temperature(), Bound::Positive)) {
     ratings.push_back({"peak_temperature", "degC", *t - kelvin_offset, "maximum element temperature"});
@@ -104,6 +124,18 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block) {
   if (auto i = block.optional("max_current", Dimension::current(), Bound::Positive)) {
     ratings.push_back({"peak_current", "A", *i,
                        "maximum current through the part (an NTC's inrush when it restarts hot)"});
+  }
+  std::string keys;
+  for (const auto& key : pulse_curve_keys()) {
+    if (auto curve = read_pulse_curve(block, key)) {
+      curves.push_back(*curve);
+      keys += (keys.empty() ? "" : ", ") + key;
+    }
+  }
+  if (!curves.empty()) {
+    ratings.push_back({"pulse_curve_use", "1", 1.0,
+                       fmt::format("data-sheet pulse curve ({}): the worst pulse's share of what the curve permits at "
+                                   "its equivalent rectangular length", keys)});
   }
   block.finish();
   return ratings;
@@ -160,6 +192,7 @@ class ThermalResistor final : public Part {
   Link do_link() const override { return Link::Conductive; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   std::vector<Rating> do_ratings() const override { return options_.ratings; }
+  std::vector<PulseCurve> do_pulse_curves() const override { return options_.pulse_curves; }
   Role do_role() const override { return Role::Resistive; }
   bool do_has_thermal_model() const override { return options_.network.has_value(); }
   std::optional<DefiningValue> do_defining_value() const override { return defining_; }
@@ -244,7 +277,7 @@ ThermalOptions read_thermal_options(netlist::ParameterReader& reader) {
     block.finish();
   }
   if (auto ratings = reader.block("ratings")) {
-    options.ratings = read_ratings(*ratings);
+    options.ratings = read_ratings(*ratings, options.pulse_curves);
   }
   return options;
 }

@@ -33,6 +33,9 @@
 //     continuous_power: 10 W      -> metric "duty_average_power" (W): the mean heat over the key-cycle duty
 //     max_voltage: 1000 V         -> metric "peak_voltage" (V)
 //     max_current: 20 A           -> metric "peak_current" (A): e.g. an NTC's hot-restart inrush
+//     pulse_energy_curve: [[1 ms, 20 J], [100 ms, 120 J], [1 s, 400 J]]   # or pulse_power_curve (W), and the
+//     repetitive_pulse_energy_curve: [...]   # repetitive_ forms -> metric "pulse_curve_use" (1) <= 100 %: the
+//                                            # worst pulse's share of what the curve permits (models/pulse_curve.h)
 #include <memory>
 #include <optional>
 #include <string>
@@ -50,6 +53,7 @@ struct ThermalOptions {
   double initial_temperature = 0.0;  // K; used only when has_initial_temperature
   bool has_initial_temperature = false;
   std::vector<Rating> ratings;
+  std::vector<PulseCurve> pulse_curves;
 };
 
 /// Reads the `thermal` and `ratings` blocks of a part (both optional). Throws netlist::InputError.

@@ -1,0 +1,96 @@
+// Pulses judged against a resistor's data-sheet pulse curve (analysis/pulses.h, models/pulse_curve.h).
+// Closed forms ([R-RC-energy], docs/references.md): an RC pre-charge heats its resistor with P0·e^(−2t/τ),
+// P0 = V²/R, τ = R·C, so the pulse carries E = P0·τ/2 — ½·C·V² — and its equivalent rectangular length E/P0 is τ/2.
+#include "analysis/pulses.h"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <vector>
+
+#include "analysis/energy_audit.h"
+#include "analysis/part_metrics.h"
+#include "tests/circuit_fixture.h"
+
+namespace {
+using linkrise::analysis::judge_pulses;
+using linkrise::analysis::split_pulses;
+using linkrise::models::PulseCurve;
+
+// P0·e^(−2(t − t0)/τ) from each start on a fine grid, zero before the first.
+std::vector<double> exponential_pulses(const std::vector<double>& times, const std::vector<double>& starts,
+                                       double p0, double tau) {
+  std::vector<double> power(times.size(), 0.0);
+  for (std::size_t r = 0; r < times.size(); ++r) {
+    for (double start : starts) {
+      if (times[r] >= start && times[r] < start + 20.0 * tau) power[r] = p0 * std::exp(-2.0 * (times[r] - start) / tau);
+    }
+  }
+  return power;
+}
+
+TEST(Pulses, AnRcPulseIsHalfCvSquaredOverHalfATimeConstant) {
+  const double p0 = 1600.0, tau = 0.1;
+  std::vector<double> times;
+  for (int k = 0; k <= 400000; ++k) times.push_back(k * 1e-5);  // 4 s in 10 µs rows
+  auto pulses = split_pulses(times, exponential_pulses(times, {0.5, 2.5}, p0, tau));
+  ASSERT_EQ(pulses.size(), 2u);
+  for (const auto& pulse : pulses) {
+    // The tail below 1e-4 of the peak is left out: 1e-4 of the energy at most.
+    EXPECT_NEAR(pulse.energy, p0 * tau / 2.0, 2e-4 * p0 * tau / 2.0);
+    EXPECT_NEAR(pulse.peak_power, p0, 1e-9);
+    EXPECT_NEAR(pulse.length(), tau / 2.0, 2e-4 * tau / 2.0);
+  }
+  EXPECT_NEAR(pulses[0].start, 0.5, 1e-5);
+  EXPECT_NEAR(pulses[1].start, 2.5, 1e-5);
+}
+
+TEST(Pulses, CurveIsReadLogLogAndTheRepetitiveOneAppliesToRepeatedPulses) {
+  PulseCurve single{PulseCurve::Measure::Energy, false, {10e-3, 100e-3}, {40.0, 160.0}};
+  PulseCurve repetitive{PulseCurve::Measure::Energy, true, {10e-3, 100e-3}, {10.0, 40.0}};
+  // Log-log between rows: 40·(50/10)^(ln 4/ln 10) J at 50 ms; the first value below the table; the last
+  // segment's slope beyond it.
+  const double slope = std::log(4.0) / std::log(10.0);
+  EXPECT_NEAR(single.permitted(50e-3), 40.0 * std::pow(5.0, slope), 1e-9);
+  EXPECT_NEAR(single.permitted(1e-3), 40.0, 1e-12);
+  EXPECT_NEAR(single.permitted(1.0), 160.0 * std::pow(10.0, slope), 1e-9);
+  linkrise::analysis::Pulse one{0.0, 0.3, 80.0, 1600.0};  // 50 ms equivalent
+  auto alone = judge_pulses({one}, {single, repetitive});
+  ASSERT_TRUE(alone.has_value());
+  EXPECT_EQ(alone->curve, "pulse_energy_curve");
+  EXPECT_NEAR(alone->use, 80.0 / single.permitted(50e-3), 1e-12);
+  linkrise::analysis::Pulse two{2.0, 2.3, 60.0, 1600.0};
+  auto both = judge_pulses({one, two}, {single, repetitive});
+  ASSERT_TRUE(both.has_value());
+  EXPECT_EQ(both->curve, "repetitive_pulse_energy_curve");
+  EXPECT_EQ(both->count, 2);
+  EXPECT_NEAR(both->pulse.start, 0.0, 1e-12);  // the larger one
+  EXPECT_NEAR(both->use, 80.0 / repetitive.permitted(50e-3), 1e-12);
+}
+
+// 400 V into 1 mF through 100 Ohm: 80 J in an equivalent 50 ms pulse, where the part's curve permits
+// 40·5^(ln 4/ln 10) = 105 J: 76 % of the curve, while a plain 600 J pulse_energy rating hides how close it is.
+TEST(Pulses, APrechargeIsJudgedAgainstThePartsCurveInTheCircuit) {
+  linkrise::testing::Simulation sim(
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 400 V}\n"
+      "  - {name: r_pre, kind: resistor, nodes: [plus, link], resistance: 100 Ohm,\n"
+      "     ratings: {pulse_energy: 600 J, pulse_energy_curve: [[10 ms, 40 J], [100 ms, 160 J]]}}\n"
+      "  - {name: link, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}\n"
+      "run: {duration: 2 s}\n");
+  sim.tight(1e-10, 1e-10);
+  auto result = sim.run();
+  auto audit = linkrise::analysis::audit_energy(sim.circuit, result);
+  auto all = linkrise::analysis::all_resistive_metrics(sim.circuit, result, audit);
+  ASSERT_EQ(all.size(), 1u);
+  ASSERT_TRUE(all[0].pulse_curve_use.has_value());
+  const double permitted = 40.0 * std::pow(5.0, std::log(4.0) / std::log(10.0));
+  EXPECT_NEAR(*all[0].pulse_curve_use, 80.0 / permitted, 2e-3 * 80.0 / permitted);
+  EXPECT_NEAR(*all[0].worst_pulse_length, 0.05, 2e-3 * 0.05);
+  EXPECT_NEAR(*all[0].worst_pulse_start, 0.0, 1e-12);
+  auto ratings = sim.circuit.part(sim.circuit.find_part("r_pre")).ratings();
+  ASSERT_EQ(ratings.back().metric, "pulse_curve_use");
+  EXPECT_NEAR(ratings.back().value, 1.0, 1e-12);
+}
+}  // namespace
