@@ -164,6 +164,10 @@ std::string part_definition(const std::string& metric) {
   if (metric == "current_squared_time") return "I²t: ∫ i² dt of the part's current over the run";
   if (metric == "peak_voltage") return "largest |voltage| across the part";
   if (metric == "peak_current") return "largest |current| through the part";
+  if (metric == "peak_pulse_energy") {
+    return "the largest heat of one pulse (a stretch of heat power above 1e-4 of its peak: an attempt, a bounce, "
+           "a trip); what a PTC's energy per switching is judged against";
+  }
   if (metric == "pulse_curve_use") {
     return "the worst pulse's share of what the part's data-sheet pulse curve permits at its equivalent rectangular "
            "length E/P_peak (the repetitive curve when the run has several pulses; 100 % = at the curve)";

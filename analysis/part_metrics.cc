@@ -19,6 +19,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"average_power", "W", average_power});
   list.push_back({"duty_average_power", "W", duty_average_power});
   list.push_back({"peak_current", "A", peak_current});
+  list.push_back({"peak_pulse_energy", "J", peak_pulse_energy});
   if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
   if (pulse_curve_use) {
     list.push_back({"pulse_curve_use", "1", *pulse_curve_use});
@@ -88,8 +89,10 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     if (melt >= 0) metrics.peak_melt = peak_value(rows, melt);
     const auto curves = p.pulse_curves();
     const int heat = rows.column(p.name() + ".heat_power");
-    if (!curves.empty() && heat >= 0) {
-      if (auto judged = judge_pulses(split_pulses(rows.times(), rows.series(heat)), curves)) {
+    const auto pulses = heat >= 0 ? split_pulses(rows.times(), rows.series(heat)) : std::vector<Pulse>{};
+    for (const auto& pulse : pulses) metrics.peak_pulse_energy = std::max(metrics.peak_pulse_energy, pulse.energy);
+    if (!curves.empty()) {
+      if (auto judged = judge_pulses(pulses, curves)) {
         metrics.pulse_curve_use = judged->use;
         metrics.worst_pulse_start = judged->pulse.start;
         metrics.worst_pulse_length = judged->pulse.length();

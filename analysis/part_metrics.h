@@ -15,6 +15,8 @@
 //   current_squared_time  A²·s  ∫ i² dt (I²t)
 //   peak_voltage          V     largest |v| over the recorded rows
 //   peak_current          A     largest |i| over the recorded rows
+//   peak_pulse_energy     J     the largest energy of one pulse (analysis/pulses.h): what a PTC's energy per
+//                               switching is judged against
 //   pulse_curve_use       1     the worst pulse's share of what the part's data-sheet pulse curve permits at its
 //                               equivalent rectangular length (analysis/pulses.h); parts with a curve only, with
 //   worst_pulse_start     s     when that pulse began, and
@@ -59,6 +61,7 @@ struct ResistiveMetrics {
   bool current_squared_integrated = false; // true: from the part's ∫i² dt state or the solver's quadrature; false: trapezoid over rows
   double peak_voltage = 0.0;               // V
   double peak_current = 0.0;               // A
+  double peak_pulse_energy = 0.0;          // J
   std::optional<double> pulse_curve_use, worst_pulse_start, worst_pulse_length;  // parts with a pulse curve
   double average_power = 0.0;              // W
   double duty_average_power = std::nan("");  // W; NaN without a stated duty

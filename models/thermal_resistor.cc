@@ -125,6 +125,12 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block, std::vector<Pu
     ratings.push_back({"peak_current", "A", *i,
                        "maximum current through the part (an NTC's inrush when it restarts hot)"});
   }
+  if (auto e = block.optional("max_switching_energy", Dimension::energy(), Bound::Positive)) {
+    ratings.push_back({"peak_pulse_energy", "J", *e, "energy per switching (a PTC's limit for one trip)"});
+  }
+  if (auto v = block.optional("max_switching_voltage", Dimension::voltage(), Bound::Positive)) {
+    ratings.push_back({"peak_voltage", "V", *v, "maximum switching voltage (across a PTC when it trips)"});
+  }
   std::string keys;
   for (const auto& key : pulse_curve_keys()) {
     if (auto curve = read_pulse_curve(block, key)) {

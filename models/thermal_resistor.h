@@ -33,6 +33,8 @@
 //     continuous_power: 10 W      -> metric "duty_average_power" (W): the mean heat over the key-cycle duty
 //     max_voltage: 1000 V         -> metric "peak_voltage" (V)
 //     max_current: 20 A           -> metric "peak_current" (A): e.g. an NTC's hot-restart inrush
+//     max_switching_energy: 400 J -> metric "peak_pulse_energy" (J): a PTC's energy per switching
+//     max_switching_voltage: 800 V -> metric "peak_voltage" (V): a PTC's voltage when it trips
 //     pulse_energy_curve: [[1 ms, 20 J], [100 ms, 120 J], [1 s, 400 J]]   # or pulse_power_curve (W), and the
 //     repetitive_pulse_energy_curve: [...]   # repetitive_ forms -> metric "pulse_curve_use" (1) <= 100 %: the
 //                                            # worst pulse's share of what the curve permits (models/pulse_curve.h)

@@ -89,6 +89,8 @@ TEST(Pulses, APrechargeIsJudgedAgainstThePartsCurveInTheCircuit) {
   EXPECT_NEAR(*all[0].pulse_curve_use, 80.0 / permitted, 2e-3 * 80.0 / permitted);
   EXPECT_NEAR(*all[0].worst_pulse_length, 0.05, 2e-3 * 0.05);
   EXPECT_NEAR(*all[0].worst_pulse_start, 0.0, 1e-12);
+  // One pulse: its energy is the RC charge's ½·C·V² = 80 J ([R-RC-energy]).
+  EXPECT_NEAR(all[0].peak_pulse_energy, 80.0, 2e-3 * 80.0);
   auto ratings = sim.circuit.part(sim.circuit.find_part("r_pre")).ratings();
   ASSERT_EQ(ratings.back().metric, "pulse_curve_use");
   EXPECT_NEAR(ratings.back().value, 1.0, 1e-12);
