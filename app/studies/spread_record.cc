@@ -57,7 +57,13 @@ Enum from_word(const std::string& text, std::initializer_list<Enum> choices, con
   throw std::invalid_argument(fmt::format("'{}' is not a known word here", text));
 }
 
-PointResult read_point(const json& entry, std::size_t columns) {
+void check_width(const PointResult& point, std::size_t columns) {
+  if (!point.values.empty() && point.values.size() != columns) {
+    throw std::invalid_argument(fmt::format("a sample has {} values for {} columns", point.values.size(), columns));
+  }
+}
+
+PointResult read_point(const json& entry) {
   using Status = CaseEvaluation::Status;
   PointResult point;
   point.status = from_word(entry.at("status").get<std::string>(),
@@ -67,13 +73,10 @@ PointResult read_point(const json& entry, std::size_t columns) {
   point.verdict = from_word(entry.at("verdict").get<std::string>(), {analysis::Verdict::Pass, analysis::Verdict::Fail},
                             &analysis::verdict_word);
   for (const auto& value : entry.at("values")) point.values.push_back(exact_value(value));
-  if (!point.values.empty() && point.values.size() != columns) {
-    throw std::invalid_argument(fmt::format("a sample has {} values for {} columns", point.values.size(), columns));
-  }
   return point;
 }
 
-SpreadRecord record_from(const json& file, const std::filesystem::path& folder) {
+SpreadRecord record_from(const json& file, std::vector<PointResult> samples, const std::filesystem::path& folder) {
   if (file.at("record").get<std::string>() != kKind || file.at("format").get<int>() != kFormat) {
     throw std::invalid_argument(fmt::format("not a '{}' record of format {}", kKind, kFormat));
   }
@@ -98,8 +101,11 @@ SpreadRecord record_from(const json& file, const std::filesystem::path& folder) 
   for (const auto& column : file.at("columns")) {
     record.columns.push_back({column.at("name").get<std::string>(), column.at("unit").get<std::string>()});
   }
-  record.nominal = read_point(file.at("nominal"), record.columns.size());
-  for (const auto& entry : file.at("samples")) record.points.push_back(read_point(entry, record.columns.size()));
+  if (!file.contains("samples")) throw std::invalid_argument("the record has no samples");
+  record.nominal = read_point(file.at("nominal"));
+  record.points = std::move(samples);
+  check_width(record.nominal, record.columns.size());
+  for (const auto& point : record.points) check_width(point, record.columns.size());
   if (record.points.size() != record.range.size()) {
     throw std::invalid_argument(fmt::format("{} samples for a shard of {}", record.points.size(), record.range.size()));
   }
@@ -135,22 +141,28 @@ std::string spread_record_json(const Spread& spread, const std::string& case_tex
                                const std::vector<std::string>& settings) {
   json columns = json::array();
   for (const auto& column : spread.results.columns) columns.push_back({{"name", column.name}, {"unit", column.unit}});
-  json samples = json::array();
-  for (const auto& point : spread.results.points) samples.push_back(point_json(point));
-  return json_text(with_file_head({{"record", kKind},
-                                   {"format", kFormat},
-                                   {"case_identity", case_identity(case_text, settings)},
-                                   {"case_text", case_text},
-                                   {"settings", settings},
-                                   {"mode", spread.plan.corners ? "corners" : "monte_carlo"},
-                                   {"seed", spread.plan.seed},
-                                   {"population", spread.population},
-                                   {"shard", {{"k", spread.plan.shard}, {"n", spread.plan.shards},
-                                              {"first", spread.range.begin}, {"count", spread.range.size()}}},
-                                   {"columns", columns},
-                                   {"nominal", point_json(spread.nominal.points.at(0))},
-                                   {"samples", samples}},
-                                  spread.title, spread.case_file));
+  const json head = with_file_head({{"record", kKind},
+                                    {"format", kFormat},
+                                    {"case_identity", case_identity(case_text, settings)},
+                                    {"case_text", case_text},
+                                    {"settings", settings},
+                                    {"mode", spread.plan.corners ? "corners" : "monte_carlo"},
+                                    {"seed", spread.plan.seed},
+                                    {"population", spread.population},
+                                    {"shard", {{"k", spread.plan.shard}, {"n", spread.plan.shards},
+                                               {"first", spread.range.begin}, {"count", spread.range.size()}}},
+                                    {"columns", columns},
+                                    {"nominal", point_json(spread.nominal.points.at(0))}},
+                                   spread.title, spread.case_file);
+  // The samples last, one line each, written one at a time: no JSON tree of the whole population in memory.
+  std::string text = json_text(head);
+  text.resize(text.rfind('}'));
+  while (!text.empty() && text.back() == '\n') text.pop_back();
+  text += ",\n  \"samples\": [";
+  const auto& points = spread.results.points;
+  for (std::size_t p = 0; p < points.size(); ++p) text += (p == 0 ? "\n    " : ",\n    ") + point_json(points[p]).dump();
+  text += points.empty() ? "]\n}\n" : "\n  ]\n}\n";
+  return text;
 }
 
 SpreadRecord read_spread_record(const std::filesystem::path& folder) {
@@ -163,7 +175,18 @@ SpreadRecord read_spread_record(const std::filesystem::path& folder) {
                      "name the folders `linkrise spread ... --shard k/n -o FOLDER` wrote");
   }
   try {
-    return record_from(json::parse(in), folder);
+    // Each sample is turned into its point as soon as it is read and dropped from the tree, so the whole
+    // population is never a JSON tree in memory.
+    std::vector<PointResult> samples;
+    std::string top_key;
+    const auto take_samples = [&](int depth, json::parse_event_t event, json& parsed) {
+      if (depth == 1 && event == json::parse_event_t::key) top_key = parsed.get<std::string>();
+      if (depth != 2 || event != json::parse_event_t::object_end || top_key != "samples") return true;
+      samples.push_back(read_point(parsed));
+      return false;
+    };
+    json file = json::parse(in, take_samples);
+    return record_from(file, std::move(samples), folder);
   } catch (const std::exception& error) {
     throw InputError(mark, fmt::format("{} is not a readable shard record: {}", file.string(), error.what()),
                      "run the shard again with this version of linkrise");
