@@ -3,8 +3,10 @@
 #include "app/cluster/ranks.h"
 
 #include <algorithm>
+#include <chrono>
 #include <cstdint>
 #include <cstdlib>
+#include <thread>
 
 #include <mpi.h>
 
@@ -23,6 +25,19 @@ bool started_by_launcher() {
 
 // Below MPI's int counts, with room to spare.
 constexpr std::uint64_t kPiece = std::uint64_t{1} << 30;
+
+// Waits until every rank has come, asleep between looks: MPI's blocking calls spin on a core while they wait,
+// which would take it from the threads of ranks still computing (several ranks on one machine, or a machine
+// shared with other work). A point takes milliseconds, so looking every millisecond costs nothing.
+void wait_for_every_rank() {
+  MPI_Request request = MPI_REQUEST_NULL;
+  MPI_Ibarrier(MPI_COMM_WORLD, &request);
+  for (int done = 0;;) {
+    MPI_Test(&request, &done, MPI_STATUS_IGNORE);
+    if (done) return;
+    std::this_thread::sleep_for(std::chrono::milliseconds(1));
+  }
+}
 
 }  // namespace
 
@@ -57,6 +72,7 @@ std::vector<std::string> exchange_bytes(const std::string& mine) {
   const int ranks = rank_count();
   if (ranks == 1) return {mine};
   // Every rank's size to every rank, then each rank's bytes broadcast from it in pieces.
+  wait_for_every_rank();
   std::uint64_t size = mine.size();
   std::vector<std::uint64_t> sizes(static_cast<std::size_t>(ranks));
   MPI_Allgather(&size, 1, MPI_UINT64_T, sizes.data(), 1, MPI_UINT64_T, MPI_COMM_WORLD);
