@@ -188,7 +188,7 @@ SpreadRecord read_spread_record(const std::filesystem::path& folder) {
     json file = json::parse(in, take_samples);
     return record_from(file, std::move(samples), folder);
   } catch (const std::exception& error) {
-    throw InputError(mark, fmt::format("{} is not a readable shard record: {}", file.string(), error.what()),
+    throw InputError(mark, fmt::format("this is not a readable shard record: {}", error.what()),
                      "run the shard again with this version of linkrise");
   }
 }
