@@ -1,10 +1,11 @@
 #!/usr/bin/env bash
 # Installs the Debian packages linkrise needs to build and test, only when some are missing. clang and its
-# runtimes (libclang-rt-14-dev: AddressSanitizer, UndefinedBehaviorSanitizer, libFuzzer) build the checking build.
+# runtimes (libclang-rt-14-dev: AddressSanitizer, UndefinedBehaviorSanitizer, libFuzzer) build the checking build;
+# Open MPI (libopenmpi-dev, and openmpi-bin for mpirun) the MPI build that `make build` configures.
 set -euo pipefail
 packages=(build-essential cmake libeigen3-dev libsundials-dev libyaml-cpp-dev libgtest-dev libcli11-dev
   nlohmann-json3-dev libfmt-dev libbenchmark-dev libgsl-dev chromium fonts-liberation libpng-dev
-  clang libclang-rt-14-dev ${LINKRISE_EXTRA_PACKAGES:-})
+  clang libclang-rt-14-dev libopenmpi-dev openmpi-bin ${LINKRISE_EXTRA_PACKAGES:-})
 missing=()
 for package in "${packages[@]}"; do
   if ! dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed"; then

@@ -1,8 +1,10 @@
 // linkrise command line: each subcommand lives in its own app/commands/<name>_command.cc.
+#include <cstdio>
 #include <iostream>
 
 #include <CLI/CLI.hpp>
 
+#include "app/cluster/ranks.h"
 #include "app/commands/check_command.h"
 #include "app/commands/exit_codes.h"
 #include "app/commands/faults_command.h"
@@ -11,7 +13,9 @@
 #include "app/cli/parse_errors.h"
 #include "app/cli/study_commands.h"
 
-int main(int argc, char** argv) {
+namespace {
+
+int run_linkrise(int argc, char** argv) {
   using namespace linkrise::app;
   using linkrise::kVersion;
   CLI::App cli{"linkrise — simulate and judge the pre-charge of battery-pack DC links"};
@@ -69,8 +73,30 @@ int main(int argc, char** argv) {
     if (faults_cli->parsed()) return faults_command(faults);
     if (auto code = studies.dispatch()) return *code;
   } catch (const std::exception& error) {
-    std::cerr << "linkrise: " << error.what() << "\n";
+    // Unexpected, so perhaps this rank's alone: end the whole job rather than leave the others waiting.
+    if (rank_count() > 1) {
+      std::fprintf(stderr, "linkrise (rank %d of %d): %s\n", rank_index(), rank_count(), error.what());
+    } else {
+      std::fprintf(stderr, "linkrise: %s\n", error.what());
+    }
+    end_job(kExitInputError);
     return kExitInputError;
   }
   return kExitOk;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  using namespace linkrise::app;
+  // Started by an MPI launcher, every rank runs this same command; the first rank alone speaks (app/cluster/ranks.h).
+  RankSession session(argc, argv);
+  if (!first_rank()) {
+    std::cout.rdbuf(nullptr);
+    std::cerr.rdbuf(nullptr);
+  }
+  const int code = run_linkrise(argc, argv);
+  // The first rank reports the outcome; the others end with 0, since a launcher stops the whole job when a rank
+  // ends otherwise — perhaps before the first rank has written its files.
+  return first_rank() ? code : kExitOk;
 }

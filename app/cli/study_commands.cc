@@ -54,6 +54,14 @@ StudyCommands::StudyCommands(CLI::App& cli) {
   spread_cli_->add_option("case", spread_.case_file, "case file (YAML) with a tolerances block")->required();
   add_population(spread_cli_, spread_);
 
+  merge_cli_ = cli.add_subcommand("merge", "combine the output folders of a spread's shards (--shard k/n) into one "
+                                           "study");
+  merge_cli_->add_option("folders", merge_.folders, "the shards' output folders, in any order")->required();
+  merge_cli_->add_option("--metrics", merge_.metrics, "metrics for the terminal tables, comma-separated");
+  merge_cli_->add_option("-o,--output", merge_.output_directory, "output directory")->capture_default_str();
+  merge_cli_->add_flag("-q,--quiet", merge_.quiet, "print nothing on success");
+  merge_cli_->add_option("--report", merge_.report, "also write a self-contained HTML report to this file");
+
   window_cli_ = cli.add_subcommand(
       "window", "recommend the BMS minimum time and timeout from the spread, then verify them on the fault scenarios");
   window_cli_->add_option("case", window_.spread.case_file, "case file (YAML) with sequence and tolerances blocks")
@@ -105,6 +113,7 @@ std::optional<int> StudyCommands::dispatch() const {
   if (compare_cli_->parsed()) return compare_command(compare_);
   if (sweep_cli_->parsed()) return sweep_command(sweep_);
   if (spread_cli_->parsed()) return spread_command(spread_);
+  if (merge_cli_->parsed()) return merge_command(merge_);
   if (window_cli_->parsed()) return window_command(window_);
   if (size_cli_->parsed()) return size_command(size_);
   if (fit_cli_->parsed()) return fit_command(fit_);

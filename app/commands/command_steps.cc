@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "app/cluster/ranks.h"
 #include "app/output/output_files.h"
 #include "netlist/input_error.h"
 
@@ -27,6 +28,8 @@ std::string listing(const CommandOutput& output, const OutputSet* set) {
 }
 
 int write_and_print(bool quiet, const CommandOutput& output) {
+  // In an MPI job every rank computed the same output; the first writes it (app/cluster/ranks.h).
+  if (!first_rank()) return output.exit_code;
   std::optional<OutputSet> set;
   if (!output.files.empty()) {
     set.emplace(output.directory);

@@ -53,7 +53,8 @@ class CommandFailure : public std::runtime_error {
   int exit_code_;
 };
 
-/// Runs `compute`, then writes, commits and prints what it returned; returns the process exit code. Bad input
+/// Runs `compute`, then writes, commits and prints what it returned (in an MPI job, the first rank alone writes);
+/// returns the process exit code. Bad input
 /// (netlist::InputError) prints the error and returns kExitInputError; a CommandFailure returns its code.
 int carry_out(bool quiet, const std::function<CommandOutput()>& compute);
 

@@ -17,7 +17,8 @@
 #include "app/output/decimation.h"
 #include "app/output/json_fields.h"
 #include "app/studies/faults_json.h"
-#include "app/studies/study_pool.h"
+#include "app/studies/rank_pool.h"
+#include "app/studies/result_transfer.h"
 #include "app/studies/study_run.h"
 #include "models/registry.h"
 #include "netlist/case_document.h"
@@ -544,10 +545,23 @@ DetectionMatrix detection_matrix(netlist::CaseDocument document, int jobs, Scena
     }
     if (!p.spec->sequence) throw std::logic_error("scenario lost its sequence block");
   }
-  // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread count.
-  for_each_index(planned.size(), jobs, [&](std::size_t i) {
-    if (planned[i].row.applicable) run_row(planned[i]);
-  });
+  // The studies' pool: each row writes its own slot, so the matrix does not depend on the thread or rank count.
+  const PointTransfer transfer{[&](std::size_t i, ByteWriter& out) {
+                                 save_row(out, planned[i].row);
+                                 save_path(out, planned[i].path);
+                                 save_stall(out, planned[i].run_stall);
+                               },
+                               [&](std::size_t i, ByteReader& in) {
+                                 planned[i].row = load_row(in);
+                                 planned[i].path = load_path(in);
+                                 planned[i].run_stall = load_stall(in);
+                               }};
+  for_each_index_on_ranks(
+      planned.size(), jobs,
+      [&](std::size_t i) {
+        if (planned[i].row.applicable) run_row(planned[i]);
+      },
+      transfer);
   const Planned& nominal_row = planned.front();  // select_rows keeps it first
   for (auto& p : planned) {
     if (!p.expect_from_stall || !p.row.applicable || p.row.solver_failed) continue;

@@ -33,6 +33,7 @@
 
 namespace linkrise::app {
 
+// Every field travels between the ranks of an MPI job: a new one joins save_row in app/studies/result_transfer.cc.
 struct DetectionRow {
   /// How the row ended, in words: the sequence outcome, "not_applicable" or "solver_failure".
   std::string actual_word() const;

@@ -15,7 +15,8 @@
 #include "app/output/text_format.h"
 #include "app/studies/faults_json.h"
 #include "app/studies/spread.h"
-#include "app/studies/study_pool.h"
+#include "app/studies/rank_pool.h"
+#include "app/studies/result_transfer.h"
 #include "app/studies/study_run.h"
 #include "netlist/case_document.h"
 #include "netlist/catalogue_spec.h"
@@ -116,13 +117,16 @@ class DesignJudge {
                    const std::string& label) {
     const std::size_t count = population(spec);
     std::vector<CaseEvaluation> evaluations(count + 1);
-    for_each_index(
+    const PointTransfer transfer{
+        [&](std::size_t i, ByteWriter& out) { save_evaluation(out, evaluations[i]); },
+        [&](std::size_t i, ByteReader& in) { evaluations[i] = load_evaluation(in); }};
+    for_each_index_on_ranks(
         count + 1, jobs_,
         [&](std::size_t i) {
           evaluations[i] = evaluate_case_document(
               i == 0 ? design : design.with(spread_overrides(spec.tolerances, plan(), i - 1)));
         },
-        progress_ ? label : "");
+        transfer, progress_ ? label : "");
     sizing_.runs += count + 1;
     std::vector<std::vector<double>> sampled;  // per constraint, the samples' margins (Monte Carlo)
     for (std::size_t i = 0; i < evaluations.size(); ++i) {

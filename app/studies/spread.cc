@@ -179,11 +179,16 @@ Spread run_spread(const netlist::CaseDocument& base, const SpreadPlan& plan, int
     return label;
   });
 
+  summarise_spread(spread, nominal);
+  return spread;
+}
+
+void summarise_spread(Spread& spread, const netlist::Case& nominal) {
+  spread.statistics.clear();
   for (std::size_t c = 0; c < spread.results.columns.size(); ++c) {
     spread.statistics.push_back(metric_spread(spread.results, c));
   }
   spread.headline = headline_metrics(nominal, spread.results.columns);
-  return spread;
 }
 
 std::string sample_parameters(const Spread& spread, std::size_t point) {

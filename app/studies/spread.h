@@ -84,6 +84,10 @@ Spread run_spread(const std::string& case_file, const std::vector<netlist::Overr
 Spread run_spread(const netlist::CaseDocument& base, const SpreadPlan& plan, int jobs,
                   const std::string& progress_label = "");
 
+/// The statistics per metric and the headline of a spread whose points are in place (after run_spread's pool,
+/// or gathered from shards by merge_spread). `nominal` is the case without tolerances.
+void summarise_spread(Spread& spread, const netlist::Case& nominal);
+
 std::string spread_text(const Spread& spread, const std::vector<std::string>& metrics);
 std::string spread_csv(const Spread& spread);
 /// spread.json as text.

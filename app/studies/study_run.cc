@@ -8,7 +8,8 @@
 #include <fmt/format.h>
 
 #include "app/studies/study_parameters.h"
-#include "app/studies/study_pool.h"
+#include "app/studies/rank_pool.h"
+#include "app/studies/result_transfer.h"
 #include "solver/waveform.h"
 #include "netlist/input_error.h"
 
@@ -91,7 +92,16 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
   StudyResults results;
   results.points.resize(count);
   std::vector<std::vector<MetricValue>> raw(fixed_columns ? 0 : count);
-  for_each_index(
+  // Between ranks travel the point and, until the columns are known, its named metrics.
+  const PointTransfer transfer{[&](std::size_t i, ByteWriter& out) {
+                                 save_point(out, results.points[i]);
+                                 if (!fixed_columns) save_metrics(out, raw[i]);
+                               },
+                               [&](std::size_t i, ByteReader& in) {
+                                 results.points[i] = load_point(in);
+                                 if (!fixed_columns) raw[i] = load_metrics(in);
+                               }};
+  for_each_index_on_ranks(
       count, jobs,
       [&](std::size_t i) {
         // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
@@ -108,7 +118,7 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
           raw[i] = std::move(evaluation.metrics);
         }
       },
-      progress_label);
+      transfer, progress_label);
   if (fixed_columns) {
     results.columns = *fixed_columns;
     return results;

@@ -52,8 +52,8 @@ struct StudyResults {
 /// The case document of point i (the base case with the point's overrides or replacements).
 using DocumentOf = std::function<netlist::CaseDocument(std::size_t)>;
 
-/// Evaluates `count` points on `jobs` threads (0: one per core); results are in index order and independent of
-/// the thread count. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
+/// Evaluates `count` points on `jobs` threads (0: one per core) of every rank of an MPI job (app/studies/rank_pool.h);
+/// results are in index order and independent of the thread and rank counts. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
 /// keeps the memory per sample to one number per column); otherwise they are the union over the points in
 /// point order. document_of may throw InputError (an override naming an unknown path); it is rethrown.
 StudyResults run_study(std::size_t count, const DocumentOf& document_of, int jobs,
