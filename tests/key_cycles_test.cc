@@ -10,12 +10,9 @@
 #include <string>
 #include <vector>
 
-#include "analysis/energy_audit.h"
-#include "analysis/verdict.h"
-#include "tests/circuit_fixture.h"
+#include "tests/sequence_fixture.h"
 
 namespace {
-using linkrise::testing::Simulation;
 
 // 400 V, 100 Ohm pre-charge resistor with a one-node thermal model (20 J/K, 3 K/W: τ = 60 s), 1 mF link with a
 // 5 kOhm bleed (discharge τ = 5 s, so a 40 s key-off leaves e^(−8) of the voltage), closing at 95 %.
@@ -45,17 +42,10 @@ std::string duty_case(int cycles) {
          "run: {duration: " + std::to_string(46 * cycles) + " s}\n";
 }
 
-struct Duty {
-  explicit Duty(int cycles) : sim(duty_case(cycles)) {
-    sim.tight(1e-9, 1e-9);
-    controller.emplace(sim.circuit, *sim.circuit.spec().sequence);
-    linkrise::solver::attach(*controller, sim.options);
-    result = sim.run();
-    EXPECT_NE(result.outcome, linkrise::solver::Outcome::SolverFailure) << result.message;
-    report = controller->report(result.end_time);
-    auto audit = linkrise::analysis::audit_energy(sim.circuit, result);
-    evaluation = linkrise::analysis::evaluate(sim.circuit, result, audit, &report);
-  }
+// A run of the duty at rtol = atol = 1e-9.
+struct Duty : linkrise::testing::SequenceRun {
+  explicit Duty(int cycles) : SequenceRun(duty_case(cycles), 1e-9, 1e-9) {}
+  // When each attempt started ("attempt N starts").
   std::vector<double> starts() const {
     std::vector<double> times;
     for (const auto& entry : result.timeline) {
@@ -65,11 +55,6 @@ struct Duty {
     }
     return times;
   }
-  Simulation sim;
-  std::optional<linkrise::solver::SequenceController> controller;
-  linkrise::solver::Result result;
-  linkrise::solver::SequenceReport report;
-  linkrise::analysis::Evaluation evaluation;
 };
 
 TEST(KeyCycles, EachCycleClosesAndTheResistorHeatsTowardsThePeriodicState) {
@@ -129,12 +114,8 @@ TEST(KeyCycles, EachCycleClosesAndTheResistorHeatsTowardsThePeriodicState) {
 TEST(KeyCycles, RetriesCountPerCycle) {
   std::string text = duty_case(2);
   text.replace(text.find("  timeout: 2 s\n"), 14, "  timeout: 250 ms\n  attempts: 2\n  cool_down: 100 ms\n");
-  Simulation sim(text);
-  sim.tight(1e-9, 1e-9);
-  linkrise::solver::SequenceController controller(sim.circuit, *sim.circuit.spec().sequence);
-  linkrise::solver::attach(controller, sim.options);
-  auto result = sim.run();
-  auto report = controller.report(result.end_time);
+  linkrise::testing::SequenceRun run(text, 1e-9, 1e-9);
+  const auto& report = run.report;
   EXPECT_EQ(report.outcome, linkrise::netlist::SequenceOutcome::Closed);
   ASSERT_EQ(report.attempts, 4);
   EXPECT_EQ(report.cycles, 2);

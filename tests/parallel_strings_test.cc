@@ -8,13 +8,9 @@
 
 #include <string>
 
-#include "analysis/energy_audit.h"
-#include "analysis/verdict.h"
-#include "tests/circuit_fixture.h"
+#include "tests/sequence_fixture.h"
 
 namespace {
-using linkrise::testing::Simulation;
-
 // Two strings as Thevenin sources (404 V and 396 V, 0.1 Ohm each) with their own 1 mOhm main contactors onto a
 // 1 mF link, pre-charged through string a's 100 Ohm path.
 const char* kTwoStrings =
@@ -41,16 +37,11 @@ const char* kTwoStrings =
     "run: {duration: 0.6 s}\n";
 
 TEST(ParallelStrings, BothMainsCloseOnOneDecisionAndTheStringsEqualise) {
-  Simulation sim(kTwoStrings);
-  sim.tight(1e-10, 1e-10);
-  linkrise::solver::SequenceController controller(sim.circuit, *sim.circuit.spec().sequence);
-  linkrise::solver::attach(controller, sim.options);
-  auto result = sim.run();
-  ASSERT_NE(result.outcome, linkrise::solver::Outcome::SolverFailure) << result.message;
-  auto report = controller.report(result.end_time);
+  linkrise::testing::SequenceRun run(kTwoStrings);
+  const auto& result = run.result;
+  const auto& report = run.report;
   ASSERT_EQ(report.outcome, linkrise::netlist::SequenceOutcome::Closed);
-  auto audit = linkrise::analysis::audit_energy(sim.circuit, result);
-  auto evaluation = linkrise::analysis::evaluate(sim.circuit, result, audit, &report);
+  const auto& evaluation = run.evaluation;
   // Millman: the link settles at (404/0.101 + 396/0.101)/(2/0.101) = 400 V, and string b takes
   // (400 − 396)/0.101 = 39.60 A back; the link's 50 µs settling is monotone, so that is also the peak. While the
   // pre-charge path still parallels string a (the 20 ms overlap) string a's resistance is 0.101 ∥ 100.001 Ohm,

@@ -10,42 +10,22 @@
 #include <string>
 
 #include "netlist/sequence_spec.h"
-#include "tests/circuit_fixture.h"
+#include "tests/sequence_fixture.h"
 
 namespace {
 using linkrise::netlist::SequenceOutcome;
-using linkrise::solver::Result;
-using linkrise::solver::SequenceReport;
-using linkrise::testing::Simulation;
 
 constexpr double kPeriod = 1e-3;  // s, the BMS sample period of every case here
 constexpr double kTime = 1e-12;   // s: sample times are exact by construction
 
-struct Checked {
-  explicit Checked(const std::string& yaml) : sim(yaml) {
-    sim.tight(1e-10, 1e-10);
-    controller.emplace(sim.circuit, *sim.circuit.spec().sequence);
-    linkrise::solver::attach(*controller, sim.options);
-    result = sim.run();
-    EXPECT_NE(result.outcome, linkrise::solver::Outcome::SolverFailure) << result.message;
-    report = controller->report(result.end_time);
-  }
-  double when(const std::string& event) const {
-    for (const auto& entry : result.timeline) {
-      if (entry.event == event) return entry.time;
-    }
-    return NAN;
-  }
-  std::string timeline() const {
-    std::string text;
-    for (const auto& entry : result.timeline) text += entry.event + " @ " + std::to_string(entry.time) + "\n";
-    return text;
-  }
-  Simulation sim;
-  std::optional<linkrise::solver::SequenceController> controller;
-  Result result;
-  SequenceReport report;
-};
+using Checked = linkrise::testing::SequenceRun;
+
+// The timeline as text, for failure messages.
+std::string timeline(const Checked& run) {
+  std::string text;
+  for (const auto& entry : run.result.timeline) text += entry.event + " @ " + std::to_string(entry.time) + "\n";
+  return text;
+}
 
 // The first sample k·period at or after `time` (samples start at 0 s), refusing crossings too near a sample.
 double first_sample_after(double time) {
@@ -95,9 +75,9 @@ const std::string kWeldCheck =
 // before any coil moves — not too_fast.
 TEST(SequenceChecks, ALinkAlreadyChargedIsALiveBus) {
   Checked run(rack(kRatio + "  minimum_time: 50 ms\n", "", "", "", "", ", initial_voltage: 390 V"));
-  EXPECT_EQ(run.report.outcome, SequenceOutcome::LiveBus) << run.timeline();
+  EXPECT_EQ(run.report.outcome, SequenceOutcome::LiveBus) << timeline(run);
   EXPECT_NEAR(run.report.first_fault_time, 0.0, kTime);
-  EXPECT_TRUE(std::isnan(run.when("close k_pre"))) << run.timeline();
+  EXPECT_TRUE(std::isnan(run.when("close k_pre"))) << timeline(run);
 }
 
 // A 480 V source through 100 Ohm on the link beside the pre-charge path: once k_neg touches, the link heads for
@@ -109,7 +89,7 @@ TEST(SequenceChecks, ALinkAboveThePackIsALiveBusNotAClosure) {
   Checked run(rack("  close_when: {ratio: 95 %, max_rate: 10 V/s}\n", "", "", "",
                    "  - {name: charger, kind: dc_source, nodes: [charger_plus, gnd], voltage: 480 V}\n"
                    "  - {name: r_charger, kind: resistor, nodes: [charger_plus, link_plus], resistance: 100 Ohm}\n"));
-  ASSERT_EQ(run.report.outcome, SequenceOutcome::LiveBus) << run.timeline();
+  ASSERT_EQ(run.report.outcome, SequenceOutcome::LiveBus) << timeline(run);
   // Before k_neg touches (2.5 ms) the link is open on its minus side; from then on three conductances feed it.
   const double g = 1.0 / 100.0 + 1.0 / 100.0 + 1.0 / 2000.0;
   const double level = (400.0 / 100.0 + 480.0 / 100.0) / g, tau = 1e-3 / g;
@@ -121,7 +101,7 @@ TEST(SequenceChecks, ALinkAboveThePackIsALiveBusNotAClosure) {
 // the next step — then the pre-charge — begins at the first sample after they parted.
 TEST(SequenceChecks, WeldCheckStepsThenPrechargeOnASoundCircuit) {
   Checked run(rack(kRatio + kWeldCheck));
-  EXPECT_EQ(run.report.outcome, SequenceOutcome::Closed) << run.timeline();
+  EXPECT_EQ(run.report.outcome, SequenceOutcome::Closed) << timeline(run);
   EXPECT_NEAR(run.when("weld check 1 of 2"), 0.0, kTime);
   EXPECT_NEAR(run.when("weld check 2 of 2"), 22e-3, kTime);  // 20 ms hold, parted at 21.5 ms
   EXPECT_NEAR(run.when("pre-charge 1 starts"), 44e-3, kTime);
@@ -141,19 +121,19 @@ TEST(SequenceChecks, WeldCheckCatchesEachWeldedContactor) {
   const double through_resistor = -tau * std::log(1.0 - 40.0 / thevenin);
   {
     Checked run(rack(kRatio + kWeldCheck, "", "", ", stuck: closed"));
-    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << run.timeline();
+    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << timeline(run);
     EXPECT_NEAR(run.report.first_fault_time, first_sample_after(2.5e-3), kTime);
     EXPECT_NE(run.report.history.front().reason.find("k_pre or k_main"), std::string::npos)
         << run.report.history.front().reason;
   }
   {
     Checked run(rack(kRatio + kWeldCheck, "", ", stuck: closed"));
-    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << run.timeline();
+    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << timeline(run);
     EXPECT_NEAR(run.report.first_fault_time, first_sample_after(2.5e-3 + through_resistor), kTime);
   }
   {
     Checked run(rack(kRatio + kWeldCheck, ", stuck: closed"));
-    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << run.timeline();
+    EXPECT_EQ(run.report.outcome, SequenceOutcome::Welded) << timeline(run);
     EXPECT_NEAR(run.report.first_fault_time, first_sample_after(22e-3 + 2.5e-3 + through_resistor), kTime);
     EXPECT_NE(run.report.history.front().reason.find("weld check 2"), std::string::npos);
   }
@@ -166,12 +146,12 @@ TEST(SequenceChecks, ClosureCheckCatchesAMainContactorThatNeverClosed) {
   const std::string check = kRatio + "  closure_check: {after: 300 ms, above: 90 %}\n";
   {
     Checked sound(rack(check));
-    EXPECT_EQ(sound.report.outcome, SequenceOutcome::Closed) << sound.timeline();
+    EXPECT_EQ(sound.report.outcome, SequenceOutcome::Closed) << timeline(sound);
     // The release is a sample plus 2.5 ms + 10 ms + 1.5 ms: itself on a sample, and so is the check.
     EXPECT_NEAR(sound.when("closure verified"), sound.report.history.front().released + 0.3, 1e-9);
   }
   Checked failed(rack(check, "", "", ", stuck: open"));
-  ASSERT_EQ(failed.report.outcome, SequenceOutcome::MainFailed) << failed.timeline();
+  ASSERT_EQ(failed.report.outcome, SequenceOutcome::MainFailed) << timeline(failed);
   const auto& attempt = failed.report.history.front();
   EXPECT_NEAR(failed.report.first_fault_time, attempt.released + 0.3, 1e-9);
   EXPECT_NE(attempt.reason.find("k_main did not close"), std::string::npos) << attempt.reason;

@@ -10,8 +10,7 @@
 #include <cmath>
 #include <string>
 
-#include "solver/sequence_controller.h"
-#include "tests/circuit_fixture.h"
+#include "tests/sequence_fixture.h"
 
 namespace {
 using linkrise::testing::Simulation;
@@ -47,18 +46,10 @@ std::string sensed_case(const std::string& sensor, const std::string& duration =
 
 // The time of the BMS decision to close the main contactor in a run of `yaml`.
 double decision_time(const std::string& yaml) {
-  Simulation sim(yaml);
-  sim.tight();
-  auto spec = sim.circuit.spec().sequence;
-  linkrise::solver::SequenceController controller(sim.circuit, *spec);
-  linkrise::solver::attach(controller, sim.options);
-  auto result = sim.run();
-  EXPECT_NE(result.outcome, linkrise::solver::Outcome::SolverFailure) << result.message;
-  for (const auto& entry : result.timeline) {
-    if (entry.event == "decide to close k_main") return entry.time;
-  }
-  ADD_FAILURE() << "no decision to close";
-  return NAN;
+  linkrise::testing::SequenceRun run(yaml, 1e-10, 1e-12);
+  const double decided = run.when("decide to close k_main");
+  EXPECT_FALSE(std::isnan(decided)) << "no decision to close";
+  return decided;
 }
 
 // The first BMS sample (at k·period) at or after `time`.
