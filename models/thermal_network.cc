@@ -236,4 +236,45 @@ double adiabatic_temperature_rise(double energy, double mass, double specific_he
   return energy / (mass * specific_heat);
 }
 
+bool ThermalNetwork::has_body() const { return std::holds_alternative<TwoNodeParameters>(parameters_); }
+
+double ThermalNetwork::body_temperature(std::span<const double> x, double ambient) const {
+  return has_body() ? x[1] : element_temperature(x, ambient);
+}
+
+namespace {
+// ∫₀ᵗ e^(λs) ds, continuous through λ = 0 (an adiabatic mode).
+double mode_integral(double lambda, double t) {
+  return std::fabs(lambda * t) < 1e-8 ? t * (1.0 + 0.5 * lambda * t) : std::expm1(lambda * t) / lambda;
+}
+}  // namespace
+
+double ThermalNetwork::thermal_impedance(double t) const {
+  return std::visit(
+      Overloaded{[&](const OneNodeParameters& p) {
+                   if (std::isinf(p.thermal_resistance)) return t / p.heat_capacity;
+                   return -p.thermal_resistance * std::expm1(-t / (p.thermal_resistance * p.heat_capacity));
+                 },
+                 [&](const TwoNodeParameters& p) {
+                   // θ' = A·θ + b·P with b = (1/C1, 0): θ1(t) = Σ_k e1ᵀ·P_k·b · ∫₀ᵗ e^(λ_k s) ds, where
+                   // P_1 = (A − λ2·I)/(λ1 − λ2), P_2 = (A − λ1·I)/(λ2 − λ1) (Sylvester; the eigenvalues of this
+                   // A are real and distinct: it is similar to a symmetric matrix with a non-zero off-diagonal).
+                   const double inner = 1.0 / p.element_to_body_resistance, outer = 1.0 / p.body_to_ambient_resistance;
+                   const double a11 = -inner / p.element_heat_capacity, a22 = -(inner + outer) / p.body_heat_capacity;
+                   const double a12 = inner / p.element_heat_capacity, a21 = inner / p.body_heat_capacity;
+                   const double half_trace = 0.5 * (a11 + a22);
+                   const double root = std::sqrt(0.25 * (a11 - a22) * (a11 - a22) + a12 * a21);
+                   const double l1 = half_trace + root, l2 = half_trace - root;
+                   const double b1 = 1.0 / p.element_heat_capacity;
+                   return (a11 - l2) * b1 / (l1 - l2) * mode_integral(l1, t) +
+                          (a11 - l1) * b1 / (l2 - l1) * mode_integral(l2, t);
+                 },
+                 [&](const std::vector<FosterTerm>& terms) {
+                   double z = 0.0;
+                   for (const auto& term : terms) z -= term.thermal_resistance * std::expm1(-t / term.time_constant);
+                   return z;
+                 }},
+      parameters_);
+}
+
 }  // namespace linkrise::models

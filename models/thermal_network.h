@@ -93,6 +93,17 @@ class ThermalNetwork {
   // Element-to-ambient resistance at steady state (K/W); +infinity when adiabatic.
   double total_thermal_resistance() const;
 
+  // The body (housing) node of a two-node network: true only for form (b).
+  bool has_body() const;
+  // Its temperature (K); the element temperature for networks without a body node.
+  double body_temperature(std::span<const double> states, double ambient) const;
+
+  // The element's thermal impedance Z_th(t) (K/W): its rise above ambient t seconds after a constant power step
+  // of 1 W from rest, in closed form — (a) R·(1 − e^(−t/RC)) (t/C adiabatic); (b) the two eigenmodes of the
+  // 2×2 system (Sylvester's formula); (c) Σ R_i·(1 − e^(−t/τ_i)). A data sheet's pulse curve states the same
+  // quantity: Z_th(t) = (T_max − T_amb)/P_max(t) (models/pulse_curve.h).
+  double thermal_impedance(double seconds) const;
+
  private:
   using Parameters = std::variant<OneNodeParameters, TwoNodeParameters, std::vector<FosterTerm>>;
   template <typename Specific>
