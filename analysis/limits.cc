@@ -39,6 +39,7 @@ std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit) {
       limit.mark = rating.mark.file.empty() && rating.mark.line <= 0 ? part.mark() : rating.mark;
       limit.maximum_mark = limit.mark;
       limit.entry = rating.entry.empty() ? "ratings" : rating.entry;
+      limit.protection = rating.protection;
       limits.push_back(std::move(limit));
     }
   }
@@ -72,6 +73,7 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
       j.rated_part = limit.rated_part;
       j.origin = limit.entry.empty() ? std::string() : fmt::format("{} at {}", limit.entry, mark.to_string());
       j.detail = metric->detail;
+      j.protection = limit.protection;
       j.limit = in_metric_unit(bound, metric->unit);
       j.value = metric->value;
       j.required_margin = limit.margin;

@@ -81,9 +81,11 @@ class Fuse final : public Part {
   Role do_role() const override { return Role::Conductor; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   std::vector<Rating> do_ratings() const override {
-    return {{"peak_melt", "1", derating_,
-             fmt::format("{:g} % of the melting integral (pulse derating)", 100.0 * derating_),
-             "melting_i2t × pulse_derating", rating_mark_}};
+    Rating melt{"peak_melt", "1", derating_,
+                fmt::format("{:g} % of the melting integral (pulse derating)", 100.0 * derating_),
+                "melting_i2t × pulse_derating", rating_mark_};
+    melt.protection = true;
+    return {melt};
   }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     const double g = conductance(point, layout);

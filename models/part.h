@@ -233,6 +233,9 @@ struct Rating {
   std::string note;  // e.g. pulse length the energy rating applies to
   std::string entry;  // the data-sheet entry it was read from, e.g. "ratings.max_temperature"; empty: the part's
   netlist::SourceMark mark;  // where that entry is written (empty file: the part's own block)
+  // A protective device's operating point (a fuse's melting integral): in a fault scenario, reaching it is the
+  // protection doing its job, so the detection matrix reports its margin but does not fail the row for it.
+  bool protection = false;
 
   Rating() = default;
   Rating(std::string metric_, std::string unit_, double value_, std::string note_ = "", std::string entry_ = "",

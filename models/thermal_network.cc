@@ -4,6 +4,9 @@
 #include <cmath>
 #include <cstdio>
 
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_roots.h>
+
 #include "models/number_text.h"
 
 namespace linkrise::models {
@@ -236,6 +239,17 @@ double adiabatic_temperature_rise(double energy, double mass, double specific_he
   return energy / (mass * specific_heat);
 }
 
+double ThermalNetwork::element_heat_capacity() const {
+  return std::visit(Overloaded{[](const OneNodeParameters& p) { return p.heat_capacity; },
+                               [](const TwoNodeParameters& p) { return p.element_heat_capacity; },
+                               [](const std::vector<FosterTerm>& terms) {
+                                 double slope = 0.0;
+                                 for (const auto& term : terms) slope += term.thermal_resistance / term.time_constant;
+                                 return 1.0 / slope;
+                               }},
+                    parameters_);
+}
+
 bool ThermalNetwork::has_body() const { return std::holds_alternative<TwoNodeParameters>(parameters_); }
 
 double ThermalNetwork::body_temperature(std::span<const double> x, double ambient) const {
@@ -275,6 +289,38 @@ double ThermalNetwork::thermal_impedance(double t) const {
                    return z;
                  }},
       parameters_);
+}
+
+std::optional<double> element_capacity_meeting(TwoNodeParameters rest, double seconds, double impedance) {
+  struct Target {
+    TwoNodeParameters network;
+    double seconds, impedance;
+  } target{rest, seconds, impedance};
+  auto gap = [](double log_capacity, void* data) {
+    auto* t = static_cast<Target*>(data);
+    t->network.element_heat_capacity = std::exp(log_capacity);
+    auto network = ThermalNetwork::create(t->network);
+    return std::get<ThermalNetwork>(network).thermal_impedance(t->seconds) - t->impedance;
+  };
+  // Bracket: at the adiabatic capacity t/Z the model runs cooler than the target (Z_th ≤ t/C1); a million times
+  // smaller the element is nearly massless and Z_th is the body path's.
+  const double upper = std::log(seconds / impedance), lower = upper - std::log(1e6);
+  gsl_function function{gap, &target};
+  if (gap(lower, &target) <= 0.0) return std::nullopt;
+  if (gap(upper, &target) >= 0.0) return std::exp(upper);
+  gsl_root_fsolver* solver = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+  gsl_root_fsolver_set(solver, &function, lower, upper);
+  double root = upper;
+  for (int iteration = 0; iteration < 200; ++iteration) {
+    gsl_root_fsolver_iterate(solver);
+    root = gsl_root_fsolver_root(solver);
+    if (gsl_root_test_interval(gsl_root_fsolver_x_lower(solver), gsl_root_fsolver_x_upper(solver), 0.0, 1e-12) !=
+        GSL_CONTINUE) {
+      break;
+    }
+  }
+  gsl_root_fsolver_free(solver);
+  return std::exp(root);
 }
 
 }  // namespace linkrise::models

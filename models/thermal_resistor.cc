@@ -39,8 +39,10 @@ double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::stri
   return reader.required(key, Dimension::thermal_resistance(), Bound::Positive);
 }
 
-// `element_heat_capacity: from_pulse_curve`: the capacity the part's own pulse curve and max_temperature fix.
-double capacity_from_curve(netlist::ParameterReader& block, ThermalOptions& options) {
+// `element_heat_capacity: from_pulse_curve`: the element heat capacity for which the two-node network meets the
+// part's own pulse curve at its most demanding row and runs at or above it at every other row (Z_th falls as C1
+// grows, so the smallest C1 over the rows is conservative everywhere; models/pulse_curve.h).
+double capacity_from_curve(netlist::ParameterReader& block, ThermalOptions& options, TwoNodeParameters rest) {
   block.accept("element_heat_capacity");
   if (options.pulse_curves.empty() || !options.max_temperature) {
     block.fail("element_heat_capacity", "is 'from_pulse_curve', but the ratings give no pulse curve and max_temperature",
@@ -50,13 +52,30 @@ double capacity_from_curve(netlist::ParameterReader& block, ThermalOptions& opti
   const PulseCurve& curve = options.pulse_curves.front();
   const double rise = *options.max_temperature - pulse_curve_ambient_kelvin;
   if (!(rise > 0.0)) block.fail("element_heat_capacity", "needs a max_temperature above the curve's 25 degC");
+  std::optional<double> smallest;
   std::size_t row = 0;
-  const double capacity = element_heat_capacity_from_curve(curve, rise, &row);
-  options.element_capacity_origin =
-      fmt::format("from ratings.{} row {} ({} at {}) and max_temperature: P·t/(T_max − 25 degC), the adiabatic limit",
-                  curve.key(), row + 1, netlist::format_si(curve.values[row], curve.measure == PulseCurve::Measure::Energy ? "J" : "W"),
-                  netlist::format_si(curve.lengths[row], "s"));
-  return capacity;
+  std::string unmet;  // rows no element capacity can meet: the body path keeps the element cooler than the curve
+  for (std::size_t k = 0; k < curve.lengths.size(); ++k) {
+    auto capacity = element_capacity_meeting(rest, curve.lengths[k], curve_thermal_impedance(curve, k, rise));
+    if (!capacity) unmet += fmt::format("{}{}", unmet.empty() ? "" : ", ", k + 1);
+    if (capacity && (!smallest || *capacity < *smallest)) smallest = capacity, row = k;
+  }
+  if (!smallest) {
+    block.fail("element_heat_capacity", "cannot meet the pulse curve: the body path alone heats the element more "
+                                        "than any row allows",
+               "check element_to_body_resistance and the body values against the data sheet, or give the element "
+               "heat capacity");
+  }
+  options.element_capacity_origin = fmt::format(
+      "the two-node network meets ratings.{} row {} ({} in {}) from 25 degC to max_temperature and runs at or above "
+      "the curve at every other row{}",
+      curve.key(), row + 1,
+      netlist::format_si(curve.values[row], curve.measure == PulseCurve::Measure::Energy ? "J" : "W"),
+      netlist::format_si(curve.lengths[row], "s"),
+      unmet.empty() ? std::string()
+                    : fmt::format(" but row(s) {}, which no element capacity meets with these body values (the model "
+                                  "runs cooler there)", unmet));
+  return *smallest;
 }
 
 std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block, ThermalOptions& options) {
@@ -87,14 +106,14 @@ std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block, Ther
                  "give either heat_capacity + thermal_resistance, or the four two-node values");
     }
     TwoNodeParameters p{};
-    p.element_heat_capacity =
-        block.is_word("element_heat_capacity", "from_pulse_curve")
-            ? capacity_from_curve(block, options)
-            : block.required("element_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     p.element_to_body_resistance =
         block.required("element_to_body_resistance", Dimension::thermal_resistance(), Bound::Positive);
     p.body_heat_capacity = block.required("body_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     p.body_to_ambient_resistance = resistance_or_adiabatic(block, "body_to_ambient_resistance", true);
+    p.element_heat_capacity =
+        block.is_word("element_heat_capacity", "from_pulse_curve")
+            ? capacity_from_curve(block, options, p)
+            : block.required("element_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     return network_or_fail(ThermalNetwork::create(p), block, "element_heat_capacity");
   }
   OneNodeParameters p{};
@@ -278,10 +297,14 @@ class ThermalResistor final : public Part {
     if (!(rise > 0.0)) return values;
     std::size_t row = 0;
     const double capacity = element_heat_capacity_from_curve(curve, rise, &row);
-    values.push_back({"element heat capacity from the pulse curve", capacity, "J/K",
-                      options_.element_capacity_origin.empty()
-                          ? fmt::format("ratings.{} row {} and max_temperature: P·t/(T_max − 25 degC)", curve.key(), row + 1)
-                          : "used as the model's element heat capacity (" + options_.element_capacity_origin + ")"});
+    if (options_.element_capacity_origin.empty()) {
+      values.push_back({"element heat capacity bound from the pulse curve", capacity, "J/K",
+                        fmt::format("ratings.{} row {} and max_temperature: P·t/(T_max − 25 degC), the adiabatic "
+                                    "upper bound", curve.key(), row + 1)});
+    } else {
+      values.push_back({"element heat capacity from the pulse curve", options_.network->element_heat_capacity(),
+                        "J/K", options_.element_capacity_origin});
+    }
     double lowest = std::numeric_limits<double>::infinity();
     std::size_t lowest_row = 0;
     for (std::size_t k = 0; k < curve.lengths.size(); ++k) {

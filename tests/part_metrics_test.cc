@@ -165,7 +165,11 @@ TEST(PartMetrics, PrechargeComparisonCasesShowTheTechnologies) {
   Outcome fixed = run("precharge_fixed.yaml"), ptc = run("precharge_ptc.yaml"), ntc = run("precharge_ntc.yaml");
   EXPECT_LT(ntc.charge_time, fixed.charge_time);
   EXPECT_LT(fixed.charge_time, ptc.charge_time);
-  EXPECT_GT(ptc.peak_temperature, fixed.peak_temperature);
+  // The wire-wound part's small element (its heat capacity from its pulse curve) runs hotter than the PTC, which
+  // reaches its switch region (reference temperature 100 degC) and limits itself there.
+  EXPECT_GT(fixed.peak_temperature, ptc.peak_temperature);
+  EXPECT_GT(ptc.peak_temperature, 100.0);
+  EXPECT_LT(ptc.peak_temperature, 100.0 + 20.0);
   EXPECT_GT(ptc.peak_temperature, ntc.peak_temperature);
   EXPECT_GT(std::fabs(fixed.energy - ntc.energy), 1.0);
   EXPECT_GT(std::fabs(fixed.energy - ptc.energy), 0.5);

@@ -430,7 +430,7 @@ void run_row(Planned& p) {
   for (const auto& limit : evaluation.limits) {
     if (limit.rated_part.empty()) continue;
     row.rating_margins.emplace_back(constraint_name(limit), constraint_margin(limit));
-    if (limit.judged && !limit.pass) {
+    if (limit.judged && !limit.pass && !limit.protection) {  // a fuse melting in a fault is protection at work
       row.ratings_held = false;
       if (limit.relative_margin < worst) {
         worst = limit.relative_margin;
