@@ -28,6 +28,10 @@ namespace linkrise::app {
 /// combination of them, as a voltage alone fixes only R·C of an RC charge.
 inline constexpr double kConfoundedCorrelation = 0.95;
 
+/// Capture rows per run: a run reports one block of the capture's rows (65536 rows of two signals: 2 MB), so the
+/// fit never holds a run's output, or a Jacobian, for the whole capture.
+inline constexpr std::size_t kFitBlockRows = 65536;
+
 struct FitRequest {
   std::string case_file;
   std::vector<netlist::Override> settings;
@@ -35,6 +39,7 @@ struct FitRequest {
   /// Where the fitted case will be written: its measured block then names the capture relative to that folder,
   /// so the fitted case finds it; empty: the path is kept as written.
   std::string fitted_case_folder;
+  std::size_t block_rows = kFitBlockRows;  // the tests cut short captures into several blocks with it
 };
 
 struct FittedParameter {
@@ -46,12 +51,19 @@ struct FittedParameter {
   bool at_bound = false;  // within 0.1 % of the bound range of a bound: the interval is not meaningful there
 };
 
+/// A curve thinned for a plot, in case time (SI values).
+struct FitCurve {
+  std::vector<double> times, values;
+};
+
 struct FittedSignal {
   std::string name, unit;
   double sigma = 0.0;          // its weight's scale, SI
   double residual_rms = 0.0;   // SI
   std::size_t capture_column = 0;
-  std::vector<double> simulated;  // at the capture's times, at the solution
+  // At the solution, thinned for the report's plots (peak-preserving, at most 8192 points each): a capture of a
+  // million rows is never held as a simulated copy.
+  FitCurve measured, simulated, residual;  // residual: simulated − measured
 };
 
 struct FitResult {
@@ -93,6 +105,11 @@ class FitProblem {
   void residuals(const std::vector<double>& p, double* out);
   /// d residual_i / d p_k by central differences (one-sided at a bound) into out[i·m + k], m parameters.
   void jacobian(const std::vector<double>& p, double* out);
+  /// Jᵀ·w (m values) and JᵀJ (m × m, row-major) at p for w of residual_count() values, block by block: J is
+  /// never held for more than one block of rows.
+  void normal_equations(const std::vector<double>& p, const double* weights, double* jtw, double* jtj);
+  /// J·d (residual_count() values) at p for d of m values, block by block.
+  void jacobian_times(const std::vector<double>& p, const double* direction, double* out);
 
   struct Impl;
   Impl& impl() { return *impl_; }
