@@ -6,9 +6,11 @@
 // solver reports every matched signal at the capture's times shifted by the time offset (case time = capture
 // time + offset), from CVODE's dense output (solver::Options::output_times). Each residual is
 // (simulated − measured)/σ of its signal (the fit block's noise, else the span of the measured signal).
-// GSL's gsl_multifit_nlinear (trust region, Levenberg–Marquardt, QR) minimises the sum of squares in internal
-// variables u with p = min + (max − min)/(1 + e^(−u)), so the bounds hold and parameters of any size are alike.
-// The Jacobian is taken by central differences in p (one-sided at a bound), two runs per parameter.
+// GSL's gsl_multilarge_nlinear (trust region, Levenberg–Marquardt on the normal equations, Cholesky) minimises
+// the sum of squares in internal variables u with p = min + (max − min)/(1 + e^(−u)), so the bounds hold and
+// parameters of any size are alike. The Jacobian is taken by central differences in p (one-sided at a bound),
+// two runs per parameter; JᵀJ and Jᵀr are summed block by block of capture rows (a run per block, with output at
+// those rows only), so neither J nor a run's output is ever held for the whole capture.
 // At the solution: the covariance s²·(JᵀJ)⁻¹ with J in p and s² = Σr²/(n − m) (n residuals, m parameters),
 // standard errors, 95 % intervals p ± t(0.975, n − m)·se, the correlation matrix; two parameters with
 // |r| > kConfoundedCorrelation are reported as not told apart by the capture.
