@@ -404,13 +404,13 @@ TEST(Fit, ANoiseEntryForAnUnknownSignalOrInTheWrongUnitIsRefused) {
 // A million rows and two signals, fitted by the linkrise binary in its own process so its peak memory is its
 // own (getrusage of the child). The capture's numbers take B = 24 MB (time and two signals, one double each);
 // a residual vector of the 2·10⁶ values takes N = 16 MB. By design the fit holds the capture once and three
-// and a half residual-sized vectors: GSL's residuals, its trial residuals and its weight vector (allocated
-// zeroed, so touched; three), and at the end one signal's simulated values while the report's curves are
-// thinned (a half). Runs and Jacobian rows live one block of 65536 rows at a time: one run's output (2 MB),
-// the block's residuals at both sides of a difference (2 MB) and its Jacobian rows (1 MB per parameter).
-// Budget: 16 MB for the program itself (a fit of the 2000-row demo peaks at 10 MB) + B + 3.5·N + 6 MB = 102 MB
-// (measured: 84 MB). The dense design before it (J and its QR copy, ten n-vectors, a run's output for every
-// row) peaked at 204 MB; a run's output for every row would add 2·N.
+// residual-sized vectors: GSL's residuals, its trial residuals and its weight vector (allocated zeroed, so
+// touched). Runs, Jacobian rows and the report's thinned curves live one block of 65536 rows at a time: one
+// run's output (2 MB), the block's residuals at both sides of a difference (2 MB) and its Jacobian rows (1 MB
+// per parameter). Budget: 16 MB for the program itself (a fit of the 2000-row demo peaks at 10 MB) + B + 3·N
+// + 6 MB = 94 MB (measured: 85 MB). The dense design before it (J and its QR copy, ten n-vectors, a run's
+// output for every row) peaked at 204 MB; a run's output for every row would add 2·N, simulated copies for the
+// report N.
 // AddressSanitizer keeps shadow memory and a quarantine of freed blocks, so a peak measured under it says nothing
 // about the program's own budget: the checking build skips this test, the release build runs it.
 #if defined(__SANITIZE_ADDRESS__)
@@ -454,7 +454,7 @@ fit:
   const double peak_megabytes = static_cast<double>(usage.ru_maxrss) / 1024.0;  // kB on Linux
   const double mebibyte = 1024.0 * 1024.0;
   const double capture_megabytes = rows * 3 * 8 / mebibyte, residual_megabytes = rows * 2 * 8 / mebibyte;
-  EXPECT_LT(peak_megabytes, 16.0 + capture_megabytes + 3.5 * residual_megabytes + 6.0);
+  EXPECT_LT(peak_megabytes, 16.0 + capture_megabytes + 3.0 * residual_megabytes + 6.0);
   std::filesystem::remove(capture);
 }
 

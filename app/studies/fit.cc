@@ -611,24 +611,32 @@ void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& call
   summarise(fit, covariance(region.work()->JTJ, slopes, fit.residual_variance));
 }
 
-// A series at the capture's times thinned for a plot (peak-preserving: each of kPlotColumns columns keeps its
-// first, lowest, highest and last sample), in case time.
-FitCurve thinned(const std::vector<double>& times, const std::vector<double>& values, double offset) {
+// A series at the capture's rows, value(r) at row r, thinned for a plot (peak-preserving: each of kPlotColumns
+// columns of the whole capture keeps its first, lowest, highest and last sample), in case time. Thinned block by
+// block, so no series of the capture's length is made (a column that straddles two blocks keeps up to eight).
+FitCurve thinned(const std::vector<double>& times, const std::function<double(std::size_t)>& value, double offset,
+                 std::size_t block_rows) {
   FitCurve curve;
-  for (const Point& point : decimate_min_max(times, values, times.front(), times.back(), kPlotColumns)) {
-    curve.times.push_back(point.x + offset);
-    curve.values.push_back(point.y);
+  std::vector<double> x, y;
+  for (std::size_t first = 0; first < times.size(); first += block_rows) {
+    const std::size_t count = std::min(block_rows, times.size() - first);
+    x.assign(times.begin() + static_cast<std::ptrdiff_t>(first),
+             times.begin() + static_cast<std::ptrdiff_t>(first + count));
+    y.resize(count);
+    for (std::size_t r = 0; r < count; ++r) y[r] = value(first + r);
+    for (const Point& point : decimate_min_max(x, y, times.front(), times.back(), kPlotColumns)) {
+      curve.times.push_back(point.x + offset);
+      curve.values.push_back(point.y);
+    }
   }
   return curve;
 }
 
 // Per signal: the residual RMS over the rows used, and for the report the measured curve, the simulated one at
-// the solution (measured + σ·residual) and their difference, thinned: one scratch series of the capture's length
-// at a time.
+// the solution (measured + σ·residual) and their difference, thinned.
 void take_signals(FitResult& fit, const FitProblem::Impl& impl, const gsl_vector* residual) {
   const double used_rows = static_cast<double>(impl.rows - fit.left_out_rows);
   const auto& times = impl.measured.capture.times;
-  std::vector<double> scratch(impl.rows);
   for (std::size_t s = 0; s < impl.columns.size(); ++s) {
     FittedSignal signal;
     signal.name = impl.measured.signals[s].name;
@@ -639,14 +647,16 @@ void take_signals(FitResult& fit, const FitProblem::Impl& impl, const gsl_vector
     double squares = 0.0;
     for (std::size_t r = 0; r < impl.rows; ++r) {
       const double scaled = gsl_vector_get(residual, s * impl.rows + r);
-      scratch[r] = values[r] + scaled * signal.sigma;
       squares += scaled * scaled;
     }
     signal.residual_rms = signal.sigma * std::sqrt(squares / used_rows);
-    signal.measured = thinned(times, values, fit.time_offset);
-    signal.simulated = thinned(times, scratch, fit.time_offset);
-    for (std::size_t r = 0; r < impl.rows; ++r) scratch[r] -= values[r];
-    signal.residual = thinned(times, scratch, fit.time_offset);
+    const auto simulated = [&](std::size_t r) {
+      return values[r] + gsl_vector_get(residual, s * impl.rows + r) * signal.sigma;
+    };
+    signal.measured = thinned(times, [&](std::size_t r) { return values[r]; }, fit.time_offset, impl.block_rows);
+    signal.simulated = thinned(times, simulated, fit.time_offset, impl.block_rows);
+    signal.residual = thinned(times, [&](std::size_t r) { return simulated(r) - values[r]; }, fit.time_offset,
+                              impl.block_rows);
     fit.signals.push_back(std::move(signal));
   }
 }

@@ -63,7 +63,7 @@ struct FittedSignal {
   double sigma = 0.0;          // its weight's scale, SI
   double residual_rms = 0.0;   // SI
   std::size_t capture_column = 0;
-  // At the solution, thinned for the report's plots (peak-preserving, at most 8192 points each): a capture of a
+  // At the solution, thinned for the report's plots (peak-preserving, a few thousand points each): a capture of a
   // million rows is never held as a simulated copy.
   FitCurve measured, simulated, residual;  // residual: simulated − measured
 };
