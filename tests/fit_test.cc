@@ -257,7 +257,8 @@ TEST(Fit, NormalEquationsBuiltBlockByBlockEqualThoseOfTheWholeJacobian) {
   const std::string capture = temp_path("fit_rc_blocks.csv");
   write_capture(capture, rc_channels(1.0, 0.01), -2e-3, 0.7, 3e-4, 13);
   FitRequest request;
-  request.case_file = write_rc_case("fit_rc_blocks.yaml", capture, true, "  noise: {link_plus: 1 V, r_pre.current: 10 mA}\n");
+  request.case_file =
+      write_rc_case("fit_rc_blocks.yaml", capture, true, "  noise: {link_plus: 1 V, r_pre.current: 10 mA}\n");
   FitProblem whole(request);
   request.block_rows = 500;
   FitProblem blocks(request);
@@ -401,16 +402,16 @@ TEST(Fit, ANoiseEntryForAnUnknownSignalOrInTheWrongUnitIsRefused) {
             std::string::npos);
 }
 
-// A million rows and two signals, fitted by the linkrise binary in its own process so its peak memory is its
-// own (getrusage of the child). The capture's numbers take B = 24 MB (time and two signals, one double each);
-// a residual vector of the 2·10⁶ values takes N = 16 MB. By design the fit holds the capture once and three
-// residual-sized vectors: GSL's residuals, its trial residuals and its weight vector (allocated zeroed, so
-// touched). Runs, Jacobian rows and the report's thinned curves live one block of 65536 rows at a time: one
-// run's output (2 MB), the block's residuals at both sides of a difference (2 MB) and its Jacobian rows (1 MB
-// per parameter). Budget: 16 MB for the program itself (a fit of the 2000-row demo peaks at 10 MB) + B + 3·N
-// + 6 MB = 94 MB (measured: 85 MB). The dense design before it (J and its QR copy, ten n-vectors, a run's
-// output for every row) peaked at 204 MB; a run's output for every row would add 2·N, simulated copies for the
-// report N.
+// A million rows and two signals, fitted by the linkrise binary in its own process with the report, so its peak
+// memory is its own (getrusage of the child). The capture's numbers take B = 24 MB (time and two signals, one
+// double each); a residual vector of the 2·10⁶ values takes N = 16 MB. By design the fit holds the capture once
+// and three residual-sized vectors: GSL's residuals, its trial residuals and its weight vector (allocated
+// zeroed, so touched). Runs, Jacobian rows and the report's thinned curves live one block of 65536 rows at a
+// time: one run's output (2 MB), the block's residuals at both sides of a difference (2 MB) and its Jacobian
+// rows (1 MB per parameter). Budget: 16 MB for the program itself (a fit of the 2000-row demo peaks at 10 MB)
+// + B + 3·N + 6 MB = 94 MB (measured: 85 MB). The dense design before it (J and its QR copy, ten n-vectors, a
+// run's output for every row) peaked at 204 MB; a run's output for every row would add 2·N, simulated copies
+// for the report N.
 // AddressSanitizer keeps shadow memory and a quarantine of freed blocks, so a peak measured under it says nothing
 // about the program's own budget: the checking build skips this test, the release build runs it.
 #if defined(__SANITIZE_ADDRESS__)
@@ -433,7 +434,8 @@ fit:
     link.capacitance: {start: 1.5 mF, min: 0.3 mF, max: 5 mF}
 )");
   const std::string output = temp_path("fit_million_out");
-  std::vector<std::string> words{LINKRISE_BINARY, "fit", case_file, "-o", output, "-q"};
+  const std::string report = temp_path("fit_million_report.html");
+  std::vector<std::string> words{LINKRISE_BINARY, "fit", case_file, "-o", output, "--report", report, "-q"};
   std::vector<char*> argv;
   for (auto& word : words) argv.push_back(word.data());
   argv.push_back(nullptr);
@@ -455,7 +457,11 @@ fit:
   const double mebibyte = 1024.0 * 1024.0;
   const double capture_megabytes = rows * 3 * 8 / mebibyte, residual_megabytes = rows * 2 * 8 / mebibyte;
   EXPECT_LT(peak_megabytes, 16.0 + capture_megabytes + 3.0 * residual_megabytes + 6.0);
+  // The report draws thinned curves: six of a few thousand points (measured 178 kB in all); the million rows
+  // of six curves drawn whole would take tens of megabytes.
+  EXPECT_LT(std::filesystem::file_size(report), 1u << 20);
   std::filesystem::remove(capture);
+  std::filesystem::remove(report);
 }
 
 // The stored demo: its capture was made by scripts/make-fit-demo-capture.sh from the values below plus noise

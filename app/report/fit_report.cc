@@ -74,8 +74,8 @@ std::string fit_report_html(const FitResult& fit) {
   report.facts({{"capture", fmt::format("{} ({} rows, {} signals, {} values; {} rows beside switching instants "
                                         "left out)", fit.capture_file, fit.rows, fit.signals.size(),
                                         fit.residual_count, fit.left_out_rows)},
-                {"method", "weighted nonlinear least squares (Levenberg–Marquardt on the normal equations, GSL), bounds by a "
-                           "logistic map, Jacobian by central differences"},
+                {"method", "weighted nonlinear least squares (Levenberg–Marquardt on the normal equations, GSL), "
+                           "bounds by a logistic map, Jacobian by central differences"},
                 {"stopped", fmt::format("{} after {} iterations ({} runs)", fit.stop_reason, fit.iterations,
                                         fit.simulations)},
                 {"time offset", netlist::format_si(fit.time_offset, "s") + " (case time at the capture's zero)"}});

@@ -348,7 +348,7 @@ void FitProblem::normal_equations(const std::vector<double>& p, const double* we
     for (std::size_t s = 0; s < impl_->columns.size(); ++s) {
       for (std::size_t r = 0; r < count; ++r) {
         const double* row = jac + (s * count + r) * m;
-        const double w = weights[s * rows + first + r];
+        const double w = weights != nullptr ? weights[s * rows + first + r] : 0.0;
         for (std::size_t a = 0; a < m; ++a) {
           jtw[a] += row[a] * w;
           for (std::size_t b = 0; b <= a; ++b) jtj[a * m + b] += row[a] * row[b];
@@ -430,8 +430,7 @@ int normal_callback(CBLAS_TRANSPOSE_t transpose, const gsl_vector* u, const gsl_
     }
     if (in != nullptr && in->stride != 1) throw std::logic_error("the residual vector is not contiguous");
     std::vector<double> jtw(m), jtj(m * m);
-    const std::vector<double> none(in == nullptr ? c->problem->residual_count() : 0, 0.0);
-    c->problem->normal_equations(p, in != nullptr ? in->data : none.data(), jtw.data(), jtj.data());
+    c->problem->normal_equations(p, in != nullptr ? in->data : nullptr, jtw.data(), jtj.data());
     for (std::size_t a = 0; a < m; ++a) {
       if (out != nullptr) gsl_vector_set(out, a, slopes[a] * jtw[a]);
       for (std::size_t b = 0; b < m && normal != nullptr; ++b) {

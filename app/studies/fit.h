@@ -107,8 +107,8 @@ class FitProblem {
   void residuals(const std::vector<double>& p, double* out);
   /// d residual_i / d p_k by central differences (one-sided at a bound) into out[i·m + k], m parameters.
   void jacobian(const std::vector<double>& p, double* out);
-  /// Jᵀ·w (m values) and JᵀJ (m × m, row-major) at p for w of residual_count() values, block by block: J is
-  /// never held for more than one block of rows.
+  /// Jᵀ·w (m values) and JᵀJ (m × m, row-major) at p for w of residual_count() values (null: Jᵀ·w = 0), block
+  /// by block: J is never held for more than one block of rows.
   void normal_equations(const std::vector<double>& p, const double* weights, double* jtw, double* jtj);
   /// J·d (residual_count() values) at p for d of m values, block by block.
   void jacobian_times(const std::vector<double>& p, const double* direction, double* out);
