@@ -45,7 +45,7 @@ double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::stri
 double capacity_from_curve(netlist::ParameterReader& block, ThermalOptions& options, TwoNodeParameters rest) {
   block.accept("element_heat_capacity");
   if (options.pulse_curves.empty() || !options.max_temperature) {
-    block.fail("element_heat_capacity", "is 'from_pulse_curve', but the ratings give no pulse curve and max_temperature",
+    block.fail("element_heat_capacity", "is 'from_pulse_curve', which needs both a pulse curve and max_temperature in the part's ratings",
                "add 'pulse_energy_curve' (or 'pulse_power_curve') and 'max_temperature' to the part's ratings, or "
                "give the element heat capacity, e.g. '2 J/K'");
   }

@@ -481,7 +481,7 @@ TEST(ThermalResistor, ThePulseCurveFixesTheElementHeatCapacity) {
       " thermal: {element_heat_capacity: from_pulse_curve, element_to_body_resistance: 2 K/W,"
       " body_heat_capacity: 20 J/K, body_to_ambient_resistance: 3 K/W}, ratings: {max_temperature: 175 degC}}\n",
       "1 V", "0 Ohm", "1 ms"));
-  EXPECT_TRUE(contains(error.what(), "no pulse curve")) << error.what();
+  EXPECT_TRUE(contains(error.what(), "needs both a pulse curve and max_temperature")) << error.what();
 }
 
 // --- Analytic Jacobian against central differences ---------------------------------------------------------------
