@@ -118,7 +118,7 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
       [&](std::size_t i) {
         // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
         thread_local solver::Waveform row_store;
-        CaseEvaluation evaluation = evaluate_case_document(document_of(i), &row_store);
+        CaseEvaluation evaluation = evaluate_case_document(at_study_accuracy(document_of(i)), &row_store);
         PointResult& point = results.points[i];
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);
