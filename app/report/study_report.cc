@@ -540,8 +540,7 @@ std::string spread_report_html(const Spread& spread, const std::vector<std::stri
                 {"study", study_description(spread)},
                 {"outcomes", outcome_counts(spread.results)},
                 {"failed verdicts", fmt::format("{}", failed)},
-                {"accuracy", spread.results.accuracy.study_rtol > 0.0 ? accuracy_text(spread.results.accuracy)
-                                                                      : "the shards' (merged: see their terminal output)"}});
+                {"accuracy", accuracy_text(spread.results.accuracy)}});
   add_tolerances_table(report, spread);
   add_spread_body(report, spread, metrics);
   report.safety_section();
