@@ -135,6 +135,7 @@ RunSpec read_run(const Tree& block) {
   // Units and form are the reader's; the ranges are check_run's alone.
   read_length(reader, run);
   run.relative_tolerance = reader.quantity("rtol", Dimension::none(), Bound::Any, run.relative_tolerance);
+  run.absolute_tolerance_given = reader.has("atol");
   run.absolute_tolerance = reader.quantity("atol", Dimension::none(), Bound::Any, run.absolute_tolerance);
   run.max_step = reader.quantity("max_step", Dimension::time(), Bound::Any, run.max_step);
   run.sample = reader.optional("sample", Dimension::time(), Bound::Any);

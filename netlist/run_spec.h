@@ -41,6 +41,7 @@ struct RunSpec {
   bool follows_sequence() const { return settle.has_value(); }
   double relative_tolerance = 1e-7;    // CVODE rtol
   double absolute_tolerance = 1e-8;    // CVODE atol, in each state's SI unit (scaled per state kind)
+  bool absolute_tolerance_given = false;  // false: states held to rtol of the case's scales, at least atol
   double max_step = 0.0;               // s; 0 means no limit
   std::optional<double> sample;        // s; uniform output grid from dense output
   long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps

@@ -5,7 +5,7 @@
 set -euo pipefail
 packages=(build-essential cmake libeigen3-dev libsundials-dev libyaml-cpp-dev libgtest-dev libcli11-dev
   nlohmann-json3-dev libfmt-dev libbenchmark-dev libgsl-dev chromium fonts-liberation libpng-dev
-  clang libclang-rt-14-dev libopenmpi-dev openmpi-bin ${LINKRISE_EXTRA_PACKAGES:-})
+  clang libclang-rt-14-dev libopenmpi-dev openmpi-bin valgrind ${LINKRISE_EXTRA_PACKAGES:-})
 missing=()
 for package in "${packages[@]}"; do
   if ! dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed"; then

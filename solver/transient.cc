@@ -13,6 +13,7 @@
 #include <sunlinsol/sunlinsol_dense.h>
 #include <sunmatrix/sunmatrix_dense.h>
 
+#include "solver/absolute_tolerances.h"
 #include "solver/equations.h"
 #include "solver/fast_states.h"
 #include "solver/failure_diagnosis.h"
@@ -60,6 +61,7 @@ Options options_from(const Circuit& circuit) {
   options.duration = spec.run.duration;
   options.relative_tolerance = spec.run.relative_tolerance;
   options.absolute_tolerance = spec.run.absolute_tolerance;
+  options.scale_absolute_tolerance = !spec.run.absolute_tolerance_given;
   options.max_step = spec.run.max_step;
   options.max_steps = spec.run.max_steps;
   options.settle_fast_states = spec.run.settle_fast_states;
@@ -87,6 +89,7 @@ struct CvodeHandles {
   N_Vector scratch = nullptr;
   N_Vector tolerances = nullptr;
   N_Vector accounts = nullptr;          // energy accounts and ∫i² dt, integrated as quadratures
+  N_Vector account_tolerances = nullptr;  // their absolute tolerances (solver/absolute_tolerances.h)
   SUNMatrix matrix = nullptr;
   SUNLinearSolver linear_solver = nullptr;
   void* memory = nullptr;
@@ -99,6 +102,7 @@ struct CvodeHandles {
     if (scratch) N_VDestroy(scratch);
     if (tolerances) N_VDestroy(tolerances);
     if (accounts) N_VDestroy(accounts);
+    if (account_tolerances) N_VDestroy(account_tolerances);
     if (context) SUNContext_Free(&context);
   }
 };
@@ -308,12 +312,15 @@ class Driver {
   void restart(double t) {
     const double slow_time = settle(t);
     reinitialise(t);
+    current_squared_tolerances(t);
     // CVODE's own first-step estimate differences f along a step that leaves the slow manifold, so it sees
     // the settled fast mode and starts a thousand times too short. On the manifold the first-order local
     // error of a step h is about h²/2 · |x|/τ_S², within rtol for h = sqrt(2·rtol)·τ_S; a tenth of that.
     const double first_step = slow_time > 0.0 ? 0.1 * std::sqrt(2.0 * options_.relative_tolerance) * slow_time : 0.0;
     check(CVodeSetInitStep(handles_.memory, first_step), "CVodeSetInitStep", t);
   }
+  // The ∫i² dt quadratures' tolerances from each part's resistance at the new modes (solver/absolute_tolerances.h).
+  void current_squared_tolerances(double t);
   // Fast states to quasi-steady; returns the slowest remaining time constant τ_S, or 0 when nothing moved.
   double settle(double t);
   void record_skipped_peaks(double t, const SkippedTransient& transient);
@@ -355,6 +362,7 @@ class Driver {
   std::vector<double> peak_kept_;  // the states of a step row while the peak search uses the scratch vector
   std::vector<Command> pending_;
   CvodeHandles handles_;
+  ToleranceScales scales_;  // the case's (solver/absolute_tolerances.h), from the initial operating point
   Result result_;
   double recorded_until_ = 0.0;
   long next_grid_index_ = 0;
@@ -391,14 +399,18 @@ void Driver::create_vectors(double t0) {
   check_pointer(handles_.scratch, "N_VNew_Serial");
   handles_.tolerances = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.tolerances, "N_VNew_Serial");
-  const auto& info = circuit_.state_info();
   double* tolerance = N_VGetArrayPointer(handles_.tolerances);
-  for (int i = 0; i < n_; ++i) {
-    tolerance[i] = options_.absolute_tolerance * (i < static_cast<int>(info.size()) ? info[i].tolerance_scale : 1.0);
-  }
+  std::fill(tolerance, tolerance + n_, options_.absolute_tolerance);
+  scales_ = case_scales(circuit_, unknowns_.data());
+  const auto per_state = state_tolerances(circuit_, options_.relative_tolerance, options_.absolute_tolerance,
+                                          options_.scale_absolute_tolerance, scales_);
+  std::copy(per_state.begin(), per_state.end(), tolerance);
   if (accounts_ > 0) {
     handles_.accounts = N_VNew_Serial(accounts_, handles_.context);
     check_pointer(handles_.accounts, "N_VNew_Serial");
+    handles_.account_tolerances = N_VNew_Serial(accounts_, handles_.context);
+    check_pointer(handles_.account_tolerances, "N_VNew_Serial");
+    N_VConst(options_.absolute_tolerance, handles_.account_tolerances);
     check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
@@ -418,8 +430,8 @@ void Driver::initialise_cvode(double t0) {
     // Quadratures stay out of the Newton system and out of the error test: they are as accurate as the
     // states they are integrated from, and the dense matrix stays the size of the part states.
     check(CVodeQuadInit(handles_.memory, quadrature_callback, handles_.accounts), "CVodeQuadInit", t0);
-    check(CVodeQuadSStolerances(handles_.memory, options_.relative_tolerance, options_.absolute_tolerance),
-          "CVodeQuadSStolerances", t0);
+    check(CVodeQuadSVtolerances(handles_.memory, options_.relative_tolerance, handles_.account_tolerances),
+          "CVodeQuadSVtolerances", t0);
     check(CVodeSetQuadErrCon(handles_.memory, SUNTRUE), "CVodeSetQuadErrCon", t0);
   }
   check(CVodeSetUserData(handles_.memory, this), "CVodeSetUserData", t0);
@@ -611,6 +623,27 @@ void Driver::take_sample(double sample_time) {
     pending_.insert(position, command);
   }
   last_sample_ = sample_time;
+}
+
+// A part's resistance at the new modes is its heat over its current squared; a part carrying no current keeps
+// the tolerance it had (at the start: the energy accounts' own).
+void Driver::current_squared_tolerances(double t) {
+  const auto& parts = circuit_.current_squared_parts();
+  if (parts.empty()) return;
+  solve_at(t, x());
+  models::Point point = equations_.point(t, x(), modes_.data(), unknowns_.data());
+  double* tolerance = N_VGetArrayPointer(handles_.account_tolerances);
+  const std::size_t first = circuit_.energy_accounts().size();
+  for (std::size_t k = 0; k < parts.size(); ++k) {
+    const models::Part& part = circuit_.part(parts[k]);
+    const double current = part.current(point, circuit_.layout(parts[k]));
+    const double heat = part.powers(point, circuit_.layout(parts[k])).heat;
+    if (!(current * current > 0.0) || !(heat > 0.0)) continue;
+    tolerance[first + k] = current_squared_tolerance(options_.relative_tolerance, options_.absolute_tolerance,
+                                                     scales_, heat / (current * current));
+  }
+  check(CVodeQuadSVtolerances(handles_.memory, options_.relative_tolerance, handles_.account_tolerances),
+        "CVodeQuadSVtolerances", t);
 }
 
 // The rows before and just after the switching hold the fast transient's start; the row recorded here its end

@@ -74,6 +74,9 @@ struct Options {
   double duration = 1.0;
   double relative_tolerance = 1e-7;
   double absolute_tolerance = 1e-8;
+  // True: part states in volts, amperes and kelvin are held to rtol of the case's scales (at least atol);
+  // false: every state to atol times its tolerance scale (solver/absolute_tolerances.h).
+  bool scale_absolute_tolerance = false;
   double max_step = 0.0;
   std::optional<double> sample;  // uniform output grid
   // Output at given times instead of the uniform grid: Result::samples gets one row per entry, from CVODE's

@@ -29,6 +29,7 @@ struct Simulation {
   Simulation& tight(double rtol = 1e-10, double atol = 1e-12) {
     options.relative_tolerance = rtol;
     options.absolute_tolerance = atol;
+    options.scale_absolute_tolerance = false;  // an explicit atol, as `atol:` in a run block
     return *this;
   }
   solver::Result run() const { return solver::simulate(circuit, options); }

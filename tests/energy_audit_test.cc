@@ -20,8 +20,8 @@ TEST(EnergyAudit, DemoCaseResidualAtDefaultTolerances) {
   auto result = linkrise::solver::simulate(circuit, linkrise::solver::options_from(circuit));
   ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
   auto audit = audit_energy(circuit, result);
-  // The project's target (README, Outputs): residual ≤ 1e-6 of the largest term at default tolerances.
-  EXPECT_LE(audit.relative_residual, 1e-6);
+  // The project's target (README, Outputs): residual ≤ 10 × rtol of the largest term at the run's tolerances.
+  EXPECT_LE(audit.relative_residual, 10 * circuit.spec().run.relative_tolerance);
   EXPECT_GT(audit.delivered, 100.0);  // the link really charged (hundreds of joules)
   EXPECT_GT(audit.to_loads, 0.0);     // the auxiliary converter ran
   // The residual is the balance of the per-part accounts [energy conservation].
@@ -49,7 +49,7 @@ TEST(EnergyAudit, DemoCaseResidualAtDefaultTolerances) {
 namespace {
 // RC charge from 0 V to V (docs/references.md [R-RC-energy]): the source delivers C·V², the
 // capacitor stores ½·C·V², the resistor dissipates ½·C·V² (independent of R). 1 mF to 400 V → 80 J each.
-void check_rc_halves(double rtol, double atol, double term_tolerance) {
+void check_rc_halves(double rtol, double atol, double term_tolerance, double residual_tolerance) {
   linkrise::testing::Simulation sim(
       "ground: gnd\n"
       "parts:\n"
@@ -68,18 +68,20 @@ void check_rc_halves(double rtol, double atol, double term_tolerance) {
   EXPECT_NEAR(audit.dissipated, half, term_tolerance * half);
   EXPECT_NEAR(audit.parts[1].dissipated, half, term_tolerance * half);
   EXPECT_EQ(audit.to_loads, 0.0);
-  // The residual target (≤ 1e-6) holds at any tolerance of 1e-7 or tighter.
-  EXPECT_LE(audit.relative_residual, 1e-6);
+  EXPECT_LE(audit.relative_residual, residual_tolerance);
 }
 }  // namespace
 
 TEST(EnergyAudit, RcChargeSplitsTheSourceEnergyInHalvesAtDefaultTolerances) {
   // Defaults rtol 1e-7, atol 1e-8: each term within 100 rtol.
-  check_rc_halves(1e-7, 1e-8, 1e-5);
+  // The residual target: ≤ 10 × rtol at the run's own tolerances.
+  check_rc_halves(1e-7, 1e-8, 1e-5, 10 * 1e-7);
 }
 
 TEST(EnergyAudit, RcChargeSplitsTheSourceEnergyInHalvesAtTightTolerances) {
-  check_rc_halves(1e-10, 1e-12, 1e-8);
+  // At rtol 1e-10 the residual is 1.6e-9 (16 × rtol), measured: the target holds from the default down to
+  // about rtol 1e-9, and tighter runs are the yardstick, not judged by it.
+  check_rc_halves(1e-10, 1e-12, 1e-8, 20 * 1e-10);
 }
 
 TEST(EnergyAudit, CircuitWithoutDynamicStatesStillIntegratesItsAccounts) {

@@ -35,6 +35,7 @@ void apply_run_options(const RunArguments& arguments, netlist::RunSpec& run) {
   }
   if (arguments.absolute_tolerance) {
     run.absolute_tolerance = *arguments.absolute_tolerance;
+    run.absolute_tolerance_given = true;
     run.marks.atol = netlist::SourceMark{"option --atol", 0, 0};
   }
   netlist::require_valid_run(run);

@@ -33,6 +33,7 @@ void add_overview(HtmlReport& report, const Sizing& sizing) {
   report.facts({{"sized", sizing.path},
                 {"range searched", fmt::format("{} … {}", shown(sizing, sizing.spec.lower), shown(sizing, sizing.spec.upper))},
                 {"each value judged at", sizing.spread_text},
+                {"accuracy", accuracy_text(sizing.accuracy)},
                 {"fault scenarios", scenarios.empty() ? "none" : scenarios},
                 {"values evaluated", std::to_string(sizing.points.size())},
                 {"simulations", std::to_string(sizing.runs)}});

@@ -55,7 +55,8 @@ void add_compare_overview(HtmlReport& report, const VariantComparison& compariso
                 {"case title", comparison.title},
                 {"variants", fmt::format("{} (the nominal case and {} from the case's variants block)", points.size(),
                                          points.empty() ? 0 : points.size() - 1)},
-                {"metrics compared", fmt::format("{}", comparison.results.columns.size())}});
+                {"metrics compared", fmt::format("{}", comparison.results.columns.size())},
+                {"accuracy", accuracy_text(comparison.results.accuracy)}});
 }
 
 void add_variant_verdicts(HtmlReport& report, const VariantComparison& comparison) {
@@ -279,6 +280,7 @@ void add_window_overview(HtmlReport& report, const FaultWindow& window, const Sp
                 {"case title", spread.title},
                 {"spread", study_description(spread) + ", the case's fault window opened wide while sampling"},
                 {"closed", fmt::format("{} of {}", window.closed, spread.results.points.size())},
+                {"accuracy", accuracy_text(spread.results.accuracy)},
                 {"fastest to the closing level", extreme_text(spread, window.fastest_point, window.fastest)},
                 {"slowest decision to close", extreme_text(spread, window.slowest_point, window.slowest)},
                 {"margin", fmt::format("{:g} %", window.margin * 100.0)},
@@ -399,6 +401,7 @@ void add_sweep_overview(HtmlReport& report, const Sweep& sweep) {
   facts.emplace_back("points", fmt::format("{}{}", points.size(),
                                            sweep.parameters.size() == 2 ? " (every combination, the first varies slowest)" : ""));
   facts.emplace_back("outcomes", outcome_counts(sweep.results));
+  facts.emplace_back("accuracy", accuracy_text(sweep.results.accuracy));
   report.facts(facts);
 }
 
@@ -536,7 +539,8 @@ std::string spread_report_html(const Spread& spread, const std::vector<std::stri
                 {"case title", spread.title},
                 {"study", study_description(spread)},
                 {"outcomes", outcome_counts(spread.results)},
-                {"failed verdicts", fmt::format("{}", failed)}});
+                {"failed verdicts", fmt::format("{}", failed)},
+                {"accuracy", accuracy_text(spread.results.accuracy)}});
   add_tolerances_table(report, spread);
   add_spread_body(report, spread, metrics);
   report.safety_section();

@@ -64,6 +64,7 @@ VariantComparison compare_variants(const std::string& case_file, const std::vect
     comparison.notes.push_back(variant.note);
   }
   comparison.results = run_study(documents.size(), [&](std::size_t i) { return documents[i]; }, jobs);
+  comparison.results.accuracy = check_study_accuracy(base);
   comparison.headline = headline_metrics(nominal, comparison.results.columns);
   reject_input_errors(comparison.results, case_file,
                       [&](std::size_t i) { return i == 0 ? std::string("the nominal case") : fmt::format("variant '{}'", comparison.names[i]); });
@@ -108,6 +109,7 @@ std::string faults_table(const VariantComparison& comparison) {
 
 std::string comparison_text(const VariantComparison& comparison, bool all_metrics) {
   std::string out = fmt::format("linkrise compare — {}\n", comparison.title);
+  out += fmt::format("  accuracy: {}\n", accuracy_text(comparison.results.accuracy));
   std::vector<std::string> header{"metric"};
   for (const auto& name : comparison.names) header.push_back(name);
   std::vector<std::vector<std::string>> rows;

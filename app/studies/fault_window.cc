@@ -131,6 +131,7 @@ std::string window_text(const FaultWindow& window, const Spread& spread) {
                      spread.results.points.size(), spread.plan.corners ? "corners" : "Monte Carlo samples",
                      window.closed);
   if (!spread.plan.corners) out += fmt::format("          seed {}\n", spread.plan.seed);
+  out += fmt::format("  accuracy: {}\n", accuracy_text(spread.results.accuracy));
   for (const auto& t : spread.tolerances) out += fmt::format("    {:<28} {}\n", t.path, t.description);
   if (window.fastest_point >= 0) {
     out += fmt::format("  fastest to the closing level  {:>10}  ({} {}: {})\n", display_seconds(window.fastest),

@@ -124,7 +124,7 @@ class DesignJudge {
         count + 1, jobs_,
         [&](std::size_t i) {
           evaluations[i] = evaluate_case_document(
-              i == 0 ? design : design.with(spread_overrides(spec.tolerances, plan(), i - 1)));
+              at_study_accuracy(i == 0 ? design : design.with(spread_overrides(spec.tolerances, plan(), i - 1))));
         },
         transfer, progress_ ? label : "");
     sizing_.runs += count + 1;
@@ -566,6 +566,7 @@ Sizing size_part(const SizingRequest& request) {
     }
   }
   sizing.points = table.points();
+  sizing.accuracy = check_study_accuracy(base);
   return sizing;
 }
 
@@ -641,6 +642,7 @@ std::string choice_lines(const SizingChoice& choice) {
 std::string sizing_text(const Sizing& sizing) {
   std::string out = fmt::format("linkrise size — {}\n", sizing.title);
   out += fmt::format("  sized     {} over {} values, each at {}\n", sizing.path, sizing.points.size(), sizing.spread_text);
+  out += fmt::format("  accuracy  {}\n", accuracy_text(sizing.accuracy));
   if (!sizing.scenarios.empty()) {
     std::string list;
     for (const auto& s : sizing.scenarios) list += (list.empty() ? "" : ", ") + s;

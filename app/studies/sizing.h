@@ -105,6 +105,7 @@ struct Sizing {
   std::string case_file, title, path, unit;
   netlist::SizingSpec spec;                 // as resolved (block and command line)
   std::string spread_text;                  // "nominal and 32 tolerance corners"
+  StudyAccuracy accuracy;                   // the spreads' rtol and the nominal case's agreement check
   std::vector<std::string> scenarios;       // the fault scenarios that count
   std::vector<std::string> constraints;
   std::vector<SizingPoint> points;   // every value evaluated, ascending

@@ -179,6 +179,7 @@ Spread run_spread(const netlist::CaseDocument& base, const SpreadPlan& plan, int
     return label;
   });
 
+  spread.results.accuracy = check_study_accuracy(base);
   summarise_spread(spread, nominal);
   return spread;
 }
@@ -212,6 +213,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
   if (spread.plan.shards > 1) out += fmt::format(", shard {}/{}", spread.plan.shard, spread.plan.shards);
   out += "\n  tolerances:\n";
   for (const auto& t : spread.tolerances) out += fmt::format("    {:<28} {}\n", t.path, t.description);
+  out += fmt::format("  accuracy: {}\n", accuracy_text(spread.results.accuracy));
 
   out += fmt::format("  outcomes: {}; verdict failed in {} of {}\n", spread.results.outcome_counts(), spread.failed(),
                      spread.results.points.size());

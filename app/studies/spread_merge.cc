@@ -136,6 +136,8 @@ Spread merge_spread(std::vector<SpreadRecord> records) {
   for (auto& record : records) {
     for (auto& point : record.points) spread.results.points.push_back(std::move(point));
   }
+  // The shards ran their samples at the study accuracy; the check is the single run's, from the same document.
+  spread.results.accuracy = check_study_accuracy(base);
   summarise_spread(spread, nominal);
   return spread;
 }

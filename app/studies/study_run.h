@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "app/evaluation/case_evaluation.h"
+#include "app/studies/study_accuracy.h"
 #include "netlist/overrides.h"
 #include "netlist/case.h"
 #include "netlist/case_document.h"
@@ -37,6 +38,7 @@ struct PointResult {
 struct StudyResults {
   std::vector<MetricColumn> columns;
   std::vector<PointResult> points;
+  StudyAccuracy accuracy;  // the points' rtol and the nominal case's agreement check (set by the study)
   /// Column index of a metric, or -1.
   int column(const std::string& name) const;
   /// The value of a metric at a point (NaN when absent).
@@ -52,7 +54,7 @@ struct StudyResults {
 /// The case document of point i (the base case with the point's overrides or replacements).
 using DocumentOf = std::function<netlist::CaseDocument(std::size_t)>;
 
-/// Evaluates `count` points on `jobs` threads (0: one per core) of every rank of an MPI job (app/studies/rank_pool.h);
+/// Evaluates `count` points, each at the study accuracy (app/studies/study_accuracy.h), on `jobs` threads (0: one per core) of every rank of an MPI job (app/studies/rank_pool.h);
 /// results are in index order and independent of the thread and rank counts. With `fixed_columns` the metric columns are those (a metric outside them is dropped, which
 /// keeps the memory per sample to one number per column); otherwise they are the union over the points in
 /// point order. document_of may throw InputError (an override naming an unknown path); it is rethrown.

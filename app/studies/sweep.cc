@@ -56,12 +56,14 @@ Sweep run_sweep(const std::string& case_file, const std::vector<netlist::Overrid
     for (const auto& change : sweep.overrides(i)) label += fmt::format(" ({} = {})", change.path, change.value);
     return label;
   });
+  sweep.results.accuracy = check_study_accuracy(base);
   sweep.headline = headline_metrics(nominal, sweep.results.columns);
   return sweep;
 }
 
 std::string sweep_text(const Sweep& sweep, const std::vector<std::string>& metrics) {
   std::string out = fmt::format("linkrise sweep — {}\n", sweep.title);
+  out += fmt::format("  accuracy: {}\n", accuracy_text(sweep.results.accuracy));
   std::vector<std::string> header{"point"};
   for (const auto& parameter : sweep.parameters) header.push_back(parameter.path);
   for (const auto& metric : metrics) header.push_back(metric);

@@ -1,0 +1,37 @@
+// Peak memory of a Monte Carlo spread: the process's peak resident set (getrusage) after run_spread of
+// cases/study_precharge_window.yaml, as the counter peak_rss_MB. The peak is the process's own, so run one size
+// per process:
+//   linkrise_bench --benchmark_filter='SpreadMemory/100000$'
+// Target (README, Performance): at most 64 MB at 100 000 samples.
+#include <sys/resource.h>
+
+#include <benchmark/benchmark.h>
+
+#include "app/studies/spread.h"
+
+namespace {
+
+double peak_rss_megabytes() {
+  rusage usage{};
+  getrusage(RUSAGE_SELF, &usage);
+  return static_cast<double>(usage.ru_maxrss) / 1024.0;  // ru_maxrss is in KiB on Linux
+}
+
+void SpreadMemory(benchmark::State& state) {
+  const std::string file = LINKRISE_SOURCE_DIR "/cases/study_precharge_window.yaml";
+  linkrise::app::SpreadPlan plan;
+  plan.samples = static_cast<std::size_t>(state.range(0));
+  plan.seed = 1;
+  std::size_t metrics = 0;
+  for (auto _ : state) {
+    linkrise::app::Spread spread = linkrise::app::run_spread(file, {}, plan, 2);
+    metrics = spread.results.columns.size();
+    benchmark::DoNotOptimize(spread.statistics.data());
+  }
+  state.counters["peak_rss_MB"] = peak_rss_megabytes();
+  state.counters["metrics"] = static_cast<double>(metrics);
+}
+
+BENCHMARK(SpreadMemory)->Arg(500)->Arg(3000)->Arg(100000)->Iterations(1)->UseRealTime()->Unit(benchmark::kSecond);
+
+}  // namespace
