@@ -170,7 +170,8 @@ TEST(PartMetrics, PrechargeComparisonCasesShowTheTechnologies) {
   EXPECT_GT(fixed.peak_temperature, ptc.peak_temperature);
   EXPECT_GT(ptc.peak_temperature, 100.0);
   EXPECT_LT(ptc.peak_temperature, 100.0 + 20.0);
-  EXPECT_GT(ptc.peak_temperature, ntc.peak_temperature);
+  // The NTC's disc has nothing to stop it: its resistance falls as it heats, so it runs past the PTC.
+  EXPECT_GT(ntc.peak_temperature, ptc.peak_temperature);
   EXPECT_GT(std::fabs(fixed.energy - ntc.energy), 1.0);
   EXPECT_GT(std::fabs(fixed.energy - ptc.energy), 0.5);
 }
