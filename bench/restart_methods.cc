@@ -7,12 +7,18 @@
 // ending 1 ns after it the modes after the closure. From there each method integrates the first 1 ms and 10 ms
 // with the case's tolerances (rtol 1e-7, atol 1e-8, absolute tolerances per state as the product sets them),
 // the analytic Jacobian and a dense linear solver; the network unknowns are solved inside the RHS, as
-// solver/transient.cc does. The peak k_main current is taken where the product takes it (at the step ends) and
-// from each method's dense output (16 points per step); the yardstick is CVODE at rtol 1e-10.
+// solver/transient.cc does. The peak k_main current is taken at the step ends and from each method's dense
+// output (16 points per step; the product's in-step peak search also uses the dense output); the yardstick is
+// CVODE at rtol 1e-10 with the absolute tolerances a thousand times tighter.
 //
-// Left out on purpose: the energy-account and ∫i² dt quadratures (CVODES integrates them outside the Newton
-// system; ARKODE 5 has no quadratures, so they would join the error-tested state), root functions and the
-// fast-state settling (nothing settles at this closure: its fastest mode, 15 µs, is the one the peak needs).
+// Rows "+ quadratures"/"+ accounts" also integrate the energy accounts and ∫i² dt, error-tested as a product
+// run does: CVODES as quadratures outside the Newton system; ARKODE 5 has none, so they join its state (and
+// its Newton system, with zero Jacobian rows). Left out: root functions and the fast-state settling (nothing
+// settles at this closure: its fastest mode, 15 µs, is the one the peak needs). Counts (steps, RHS, Newton
+// iterations of the integrator, network Newton iterations inside the RHS) come from an unprobed run; the CPU
+// time is the best of the repetitions (argument 2, default 20) of that run, without the probing.
+//
+// Usage: linkrise_restart_methods [CASE] [REPETITIONS]; CASE needs a `sequence:` block with a main contactor.
 #include <arkode/arkode_arkstep.h>
 #include <cvodes/cvodes.h>
 #include <nvector/nvector_serial.h>
@@ -51,6 +57,8 @@ struct Restart {
   std::vector<double> states;  // part states only
   std::vector<int> modes;
   std::vector<double> tolerances;  // the case's absolute tolerances per part state
+  std::vector<double> accounts;    // the quadratures (energy accounts, ∫i² dt) at the same time
+  double account_tolerance = 0.0;  // their absolute tolerance (the run's atol, as the product starts them)
   int main_part = -1;
 };
 
@@ -77,6 +85,7 @@ Restart find_restart(const Circuit& circuit, const linkrise::netlist::Case& spec
   auto before = run_until(circuit, spec, restart.time - 1e-9);
   auto after = run_until(circuit, spec, restart.time + 1e-9);
   restart.states.assign(before.final_states.begin(), before.final_states.begin() + circuit.part_state_count());
+  restart.accounts.assign(before.final_states.begin() + circuit.part_state_count(), before.final_states.end());
   restart.modes = after.final_modes;
   restart.time -= 1e-9;  // where the states are
 
@@ -88,26 +97,46 @@ Restart find_restart(const Circuit& circuit, const linkrise::netlist::Case& spec
     throw std::runtime_error("no initial operating point");
   }
   auto options = linkrise::solver::options_from(circuit);
+  restart.account_tolerance = options.absolute_tolerance;
   restart.tolerances = linkrise::solver::state_tolerances(
       circuit, options.relative_tolerance, options.absolute_tolerance, options.scale_absolute_tolerance,
       linkrise::solver::case_scales(circuit, unknowns.data()));
   return restart;
 }
 
-// The reduced ODE x' = f(x, y(x)) of one restart, shared by both integrators' callbacks.
+// The reduced ODE x' = f(x, y(x)) of one restart, shared by both integrators' callbacks. `joined`: the
+// quadratures follow the part states in x (ARKODE 5 has no quadratures); their Jacobian rows are left zero
+// (they feed nothing back, so Newton still converges on them, one iteration behind the states).
 class Problem {
  public:
-  Problem(const Circuit& circuit, const Restart& restart)
-      : circuit_(circuit), restart_(restart), equations_(circuit), unknowns_(circuit.unknown_count(), 0.0) {}
+  Problem(const Circuit& circuit, const Restart& restart, bool joined)
+      : circuit_(circuit), restart_(restart), equations_(circuit), unknowns_(circuit.unknown_count(), 0.0),
+        states_(circuit.part_state_count()), size_(joined ? circuit.ode_size() : states_),
+        part_block_(static_cast<std::size_t>(states_) * states_) {}
 
   int rates(double t, const double* x, double* dx) {
     if (!solved(t, x)) return 1;  // recoverable: the integrator retries with a smaller step
     equations_.state_rates(t, x, restart_.modes.data(), unknowns_.data(), dx);
+    if (size_ > states_) equations_.account_rates(t, x, restart_.modes.data(), unknowns_.data(), dx + states_);
+    return 0;
+  }
+  int account_rates(double t, const double* x, double* dq) {
+    if (!solved(t, x)) return 1;
+    equations_.account_rates(t, x, restart_.modes.data(), unknowns_.data(), dq);
     return 0;
   }
   int jacobian(double t, const double* x, double* matrix) {
     if (!solved(t, x)) return 1;
-    equations_.jacobian(t, x, restart_.modes.data(), unknowns_.data(), matrix);
+    if (size_ == states_) {
+      equations_.jacobian(t, x, restart_.modes.data(), unknowns_.data(), matrix);
+      return 0;
+    }
+    equations_.jacobian(t, x, restart_.modes.data(), unknowns_.data(), part_block_.data());
+    std::fill(matrix, matrix + static_cast<std::size_t>(size_) * size_, 0.0);
+    for (int column = 0; column < states_; ++column) {
+      std::copy(part_block_.begin() + column * states_, part_block_.begin() + (column + 1) * states_,
+                matrix + static_cast<std::size_t>(column) * size_);
+    }
     return 0;
   }
   double main_current(double t, const double* x) {
@@ -127,10 +156,16 @@ class Problem {
   const Restart& restart_;
   Equations equations_;
   std::vector<double> unknowns_;
+  int states_;
+  int size_;
+  std::vector<double> part_block_;
 };
 
 int rhs(double t, N_Vector x, N_Vector dx, void* user) {
   return static_cast<Problem*>(user)->rates(t, N_VGetArrayPointer(x), N_VGetArrayPointer(dx));
+}
+int quadrature(double t, N_Vector x, N_Vector dq, void* user) {
+  return static_cast<Problem*>(user)->account_rates(t, N_VGetArrayPointer(x), N_VGetArrayPointer(dq));
 }
 int jacobian(double t, N_Vector x, N_Vector, SUNMatrix matrix, void* user, N_Vector, N_Vector, N_Vector) {
   return static_cast<Problem*>(user)->jacobian(t, N_VGetArrayPointer(x), SUNDenseMatrix_Data(matrix));
@@ -147,6 +182,9 @@ struct Method {
   bool deduce = false;
   int predictor = 0;
   bool linear = false;
+  // The energy accounts and ∫i² dt integrated too, error-tested as the product does: CVODES quadratures
+  // (outside the Newton system), or for ARKODE joined to the state.
+  bool accounts = false;
 };
 
 struct Tally {
@@ -161,11 +199,18 @@ class Integrator {
  public:
   Integrator(const Method& method, Problem& problem, const Restart& restart) : method_(method) {
     check(SUNContext_Create(nullptr, &context_), "SUNContext_Create");
-    const int n = static_cast<int>(restart.states.size());
+    const int parts = static_cast<int>(restart.states.size());
+    const int quadratures = static_cast<int>(restart.accounts.size());
+    const bool joined = method.accounts && method.table >= 0;
+    const int n = joined ? parts + quadratures : parts;
     states_ = N_VNew_Serial(n, context_);
     tolerances_ = N_VNew_Serial(n, context_);
     std::copy(restart.states.begin(), restart.states.end(), N_VGetArrayPointer(states_));
-    for (int i = 0; i < n; ++i) N_VGetArrayPointer(tolerances_)[i] = restart.tolerances[i] * method.atol_factor;
+    for (int i = 0; i < parts; ++i) N_VGetArrayPointer(tolerances_)[i] = restart.tolerances[i] * method.atol_factor;
+    if (joined) {
+      std::copy(restart.accounts.begin(), restart.accounts.end(), N_VGetArrayPointer(states_) + parts);
+      for (int i = parts; i < n; ++i) N_VGetArrayPointer(tolerances_)[i] = restart.account_tolerance * method.atol_factor;
+    }
     matrix_ = SUNDenseMatrix(n, n, context_);
     solver_ = SUNLinSol_Dense(states_, matrix_, context_);
     if (method.table < 0) {
@@ -176,6 +221,14 @@ class Integrator {
       check(CVodeSetLinearSolver(memory_, solver_, matrix_), "CVodeSetLinearSolver");
       check(CVodeSetJacFn(memory_, jacobian), "CVodeSetJacFn");
       check(CVodeSetMaxNumSteps(memory_, 1000000), "CVodeSetMaxNumSteps");
+      if (method.accounts && quadratures > 0) {
+        accounts_ = N_VNew_Serial(quadratures, context_);
+        std::copy(restart.accounts.begin(), restart.accounts.end(), N_VGetArrayPointer(accounts_));
+        check(CVodeQuadInit(memory_, quadrature, accounts_), "CVodeQuadInit");
+        check(CVodeQuadSStolerances(memory_, method.rtol, restart.account_tolerance * method.atol_factor),
+              "CVodeQuadSStolerances");
+        check(CVodeSetQuadErrCon(memory_, SUNTRUE), "CVodeSetQuadErrCon");
+      }
     } else {
       memory_ = ARKStepCreate(nullptr, rhs, restart.time, states_, context_);
       check(ARKStepSetTableNum(memory_, static_cast<ARKODE_DIRKTableID>(method.table), ARKODE_ERK_NONE),
@@ -196,6 +249,7 @@ class Integrator {
     SUNMatDestroy(matrix_);
     N_VDestroy(states_);
     N_VDestroy(tolerances_);
+    if (accounts_ != nullptr) N_VDestroy(accounts_);
     SUNContext_Free(&context_);
   }
   Integrator(const Integrator&) = delete;
@@ -245,7 +299,7 @@ class Integrator {
  private:
   Method method_;
   SUNContext context_ = nullptr;
-  N_Vector states_ = nullptr, tolerances_ = nullptr;
+  N_Vector states_ = nullptr, tolerances_ = nullptr, accounts_ = nullptr;
   SUNMatrix matrix_ = nullptr;
   SUNLinearSolver solver_ = nullptr;
   void* memory_ = nullptr;
@@ -255,8 +309,9 @@ class Integrator {
 Tally measure(const Circuit& circuit, const Restart& restart, const Method& method, double span, int repetitions) {
   Tally tally;
   {
-    Problem problem(circuit, restart);
-    Problem probe_problem(circuit, restart);  // probing must not add to the counted network iterations
+    const bool joined = method.accounts && method.table >= 0;
+    Problem problem(circuit, restart, joined);
+    Problem probe_problem(circuit, restart, joined);  // probing must not add to the counted network iterations
     Integrator integrator(method, problem, restart);
     N_Vector sample = integrator.scratch();
     integrator.run(restart.time + span, [&](double before, double after, const double* x) {
@@ -274,7 +329,7 @@ Tally measure(const Circuit& circuit, const Restart& restart, const Method& meth
   double seconds = 1e9;
   for (int r = 0; r < repetitions; ++r) {
     const std::clock_t start = std::clock();
-    Problem problem(circuit, restart);
+    Problem problem(circuit, restart, method.accounts && method.table >= 0);
     Integrator integrator(method, problem, restart);
     integrator.run(restart.time + span, nullptr);
     seconds = std::min(seconds, static_cast<double>(std::clock() - start) / CLOCKS_PER_SEC);
@@ -298,8 +353,9 @@ int main(int argc, char** argv) {
     auto spec = linkrise::netlist::load_case(path);
     Circuit circuit(spec);
     const Restart restart = find_restart(circuit, spec);
-    std::printf("%s: %s closes at t = %.9g s; %d part states; CPU time best of %d\n", path.c_str(),
-                spec.sequence->main.c_str(), restart.time + 1e-9, circuit.part_state_count(), repetitions);
+    std::printf("%s: %s closes at t = %.9g s; %d part states, %d quadratures; CPU time best of %d\n",
+                path.c_str(), spec.sequence->main.c_str(), restart.time + 1e-9, circuit.part_state_count(),
+                circuit.quadrature_count(), repetitions);
     const std::vector<Method> methods = {
         {"CVODE BDF rtol 1e-10 (yardstick)", -1, 1e-10, 1e-3},
         {"CVODE BDF", -1, 1e-7, 1.0},
@@ -316,6 +372,10 @@ int main(int argc, char** argv) {
         {"CVODE BDF rtol 1e-6", -1, 1e-6, 10.0},
         {"ESDIRK436L2SA d+p1 rtol 1e-6", ARKODE_ESDIRK436L2SA_6_3_4, 1e-6, 10.0, true, 1},
         {"ESDIRK436L2SA d+p1 rtol 1e-5", ARKODE_ESDIRK436L2SA_6_3_4, 1e-5, 100.0, true, 1},
+        // With the energy accounts and ∫i² dt, as a product run integrates them.
+        {"CVODE BDF + quadratures", -1, 1e-7, 1.0, false, 0, false, true},
+        {"ESDIRK436L2SA d+p1 + accounts", ARKODE_ESDIRK436L2SA_6_3_4, 1e-7, 1.0, true, 1, false, true},
+        {"ARK548L2SA d+p1 + accounts", ARKODE_ARK548L2SA_DIRK_8_4_5, 1e-7, 1.0, true, 1, false, true},
         {"ESDIRK436L2SA linear (inexact)", ARKODE_ESDIRK436L2SA_6_3_4, 1e-7, 1.0, true, 1, true},
         {"ARK548L2SA linear (inexact)", ARKODE_ARK548L2SA_DIRK_8_4_5, 1e-7, 1.0, true, 1, true},
     };
