@@ -13,8 +13,9 @@
 //
 // Rows "+ quadratures"/"+ accounts" also integrate the energy accounts and ∫i² dt, error-tested as a product
 // run does: CVODES as quadratures outside the Newton system; ARKODE 5 has none, so they join its state (and
-// its Newton system, with zero Jacobian rows). Left out: root functions and the fast-state settling (nothing
-// settles at this closure: its fastest mode, 15 µs, is the one the peak needs). Counts (steps, RHS, Newton
+// its Newton system, with zero Jacobian rows). Left out: root functions and the fast-state settling (the first
+// line says how often the product's driver settled fast states at the closure: never on the stored cases
+// tried, whose fastest mode there, the 15 µs inrush, is the one the peak needs). Counts (steps, RHS, Newton
 // iterations of the integrator, network Newton iterations inside the RHS) come from an unprobed run; the CPU
 // time is the best of the repetitions (argument 2, default 20) of that run, without the probing.
 //
@@ -60,6 +61,7 @@ struct Restart {
   std::vector<double> accounts;    // the quadratures (energy accounts, ∫i² dt) at the same time
   double account_tolerance = 0.0;  // their absolute tolerance (the run's atol, as the product starts them)
   int main_part = -1;
+  long product_settlings = 0;  // fast-state settlings the product's driver made at this closure
 };
 
 linkrise::solver::Result run_until(const Circuit& circuit, const linkrise::netlist::Case& spec, double duration) {
@@ -87,6 +89,8 @@ Restart find_restart(const Circuit& circuit, const linkrise::netlist::Case& spec
   restart.states.assign(before.final_states.begin(), before.final_states.begin() + circuit.part_state_count());
   restart.accounts.assign(before.final_states.begin() + circuit.part_state_count(), before.final_states.end());
   restart.modes = after.final_modes;
+  restart.product_settlings = after.statistics.settlings - before.statistics.settlings;
+  if (restart.modes == before.final_modes) throw std::runtime_error("no mode changes at '" + event + "'");
   restart.time -= 1e-9;  // where the states are
 
   // The product's tolerance scales come from the initial operating point.
@@ -353,9 +357,10 @@ int main(int argc, char** argv) {
     auto spec = linkrise::netlist::load_case(path);
     Circuit circuit(spec);
     const Restart restart = find_restart(circuit, spec);
-    std::printf("%s: %s closes at t = %.9g s; %d part states, %d quadratures; CPU time best of %d\n",
+    std::printf("%s: %s closes at t = %.9g s; %d part states, %d quadratures; the product settled fast states "
+                "there %ld time(s); CPU time best of %d\n",
                 path.c_str(), spec.sequence->main.c_str(), restart.time + 1e-9, circuit.part_state_count(),
-                circuit.quadrature_count(), repetitions);
+                circuit.quadrature_count(), restart.product_settlings, repetitions);
     const std::vector<Method> methods = {
         {"CVODE BDF rtol 1e-10 (yardstick)", -1, 1e-10, 1e-3},
         {"CVODE BDF", -1, 1e-7, 1.0},
