@@ -72,6 +72,8 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
       j.source = limit.source;
       j.rated_part = limit.rated_part;
       j.origin = limit.entry.empty() ? std::string() : fmt::format("{} at {}", limit.entry, mark.to_string());
+      j.entry = limit.entry;
+      j.line = mark.line;
       j.detail = metric->detail;
       j.protection = limit.protection;
       j.limit = in_metric_unit(bound, metric->unit);

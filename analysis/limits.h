@@ -32,6 +32,8 @@ struct JudgedLimit {
   std::string source;  // "limits block" or "rating of <part>"
   std::string rated_part;  // the part whose rating this is; empty for the limits block
   std::string origin;  // the entry the bound was written as and where, e.g. "ratings.max_temperature at x.yaml:31:7"
+  std::string entry;   // that entry alone, e.g. "ratings.max_temperature"
+  int line = 0;        // its line in the case file (0: not from a file)
   bool protection = false;  // a protective device's operating point: a fault scenario may reach it
   std::string detail;  // what the run's value stands for, when the metric says (e.g. the pulse-curve rows it met)
   double limit = 0.0;

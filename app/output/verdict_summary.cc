@@ -122,12 +122,17 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
       ++hidden;
       continue;
     }
-    std::string limit_text, margin_text, mark;
+    std::string limit_text, margin_text, mark, from;
     double smallest = std::numeric_limits<double>::infinity();
     for (const auto& limit : evaluation.limits) {
       if (limit.metric != metric.name) continue;
       if (!limit_text.empty()) limit_text += ", ";
       limit_text += fmt::format("{} {}", analysis::bound_word(limit.bound), analysis::format_metric(limit.limit, limit.unit));
+      // Where the bound was written: the data-sheet entry (or the limits block) and its line in the case.
+      if (!limit.entry.empty() && from.find(limit.entry) == std::string::npos) {
+        from += (from.empty() ? "" : ", ") + (limit.line > 0 ? fmt::format("{} (line {})", limit.entry, limit.line)
+                                                              : limit.entry);
+      }
       // The tightest limit's margin, relative to its bound; a temperature's in K, since a fraction of a bound
       // in degC depends on where the scale has its zero.
       if (limit.judged && !(limit.relative_margin >= smallest)) {
@@ -138,11 +143,12 @@ std::string verdict_terminal(const analysis::Evaluation& evaluation, const solve
       }
       mark = !limit.judged ? "not judged" : limit.pass ? (mark == "FAIL" ? "FAIL" : "ok") : "FAIL";
     }
-    table += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", metric.name,
-                       analysis::format_metric(metric.value, metric.unit), limit_text, margin_text, mark);
+    table += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {:<10}  {}\n", metric.name,
+                       analysis::format_metric(metric.value, metric.unit), limit_text, margin_text, mark, from);
   }
   if (!table.empty()) {
-    out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {}\n", "metric", "value", "limit", "margin", "") + table;
+    out += fmt::format("  {:<34} {:>14}   {:<26} {:>9}  {:<10}  {}\n", "metric", "value", "limit", "margin", "", "from") +
+           table;
   }
   if (hidden > 0) {
     out += fmt::format("  ({} {}metrics without limits in summary.json)\n", hidden, table.empty() ? "" : "more ");
