@@ -477,6 +477,10 @@ void Driver::harvest_statistics(double t) {
 bool Driver::apply_commands(double t) {
   bool any = false;
   bool first = true;
+  // The circuit just before the switching: a contact that opens on a current arcs (models/contactor.h).
+  std::vector<int> modes_before;
+  std::vector<double> states_before, unknowns_before;
+  models::Point before;
   while (!pending_.empty() && pending_.front().time <= t) {
     Command command = pending_.front();
     pending_.erase(pending_.begin());
@@ -484,9 +488,14 @@ bool Driver::apply_commands(double t) {
       // The row before the switching, unless the step that reached t has just recorded it.
       if (result_.steps.row_count() == 0 || result_.steps.times().back() != t) record_step_row(t, x());
       first = false;
+      solve_at(t, x());
+      modes_before = modes_;
+      states_before.assign(x(), x() + states_);
+      unknowns_before = unknowns_;
+      before = equations_.point(t, states_before.data(), modes_before.data(), unknowns_before.data());
     }
     const auto& part = circuit_.part(command.part);
-    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x());
+    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x(), &before);
     if (!change.problem.empty()) throw SolverError(change.problem, t);
     ++result_.statistics.events;
     result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", netlist::action_word(command.action), part.name()), command.reason});

@@ -284,6 +284,6 @@ TEST(SequenceController, MainContactBouncesAsConfigured) {
   ASSERT_EQ(moves.size(), 5u);
   for (std::size_t k = 0; k < moves.size(); ++k) {
     EXPECT_NEAR(moves[k].first, touch + 0.5e-3 * static_cast<double>(k), kTime);
-    EXPECT_EQ(moves[k].second, k % 2 == 0 ? "close k_main" : "open k_main");
+    EXPECT_EQ(moves[k].second, k % 2 == 0 ? "close k_main" : "bounce k_main");
   }
 }
