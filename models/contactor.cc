@@ -240,6 +240,13 @@ class Contactor final : public Part {
     mode = parts_gradually() ? kClearing : kOpen;
     return {true, ""};
   }
+  // Right after a switching: an arc whose circuit cannot drive the minimum arc current through it goes out.
+  ModeChange do_settle(const Point& point, const Layout& layout, int* modes) const override {
+    int& mode = modes[layout.mode];
+    if (!arcing(mode) || arc_sign(mode) * do_current(point, layout) >= minimum_arc_current_) return {};
+    mode = parts_gradually() ? kClearing : kOpen;
+    return {true, ""};
+  }
   ModeChange do_command(netlist::Action action, const Layout& layout, int* modes, double* states,
                         const Point* before) const override {
     if (action != netlist::Action::Close && action != netlist::Action::Open && action != netlist::Action::Bounce) {

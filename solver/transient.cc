@@ -481,6 +481,7 @@ bool Driver::apply_commands(double t) {
   std::vector<int> modes_before;
   std::vector<double> states_before, unknowns_before;
   models::Point before;
+  std::vector<int> moved;  // switches whose modes the commands changed
   while (!pending_.empty() && pending_.front().time <= t) {
     Command command = pending_.front();
     pending_.erase(pending_.begin());
@@ -500,6 +501,14 @@ bool Driver::apply_commands(double t) {
     ++result_.statistics.events;
     result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", netlist::action_word(command.action), part.name()), command.reason});
     any = any || change.changed;
+    if (change.changed && part.role() == models::Role::Switch) moved.push_back(command.part);
+  }
+  if (!moved.empty()) {
+    // A contact that struck an arc may find the circuit unable to drive the minimum arc current through it (a
+    // parallel path took the current): it settles at once rather than through a root already crossed.
+    solve_at(t, x());
+    models::Point after = equations_.point(t, x(), modes_.data(), unknowns_.data());
+    for (int part : moved) circuit_.part(part).settle(after, circuit_.layout(part), modes_.data());
   }
   if (!first) record_step_row(t, x());  // the row after
   return any;

@@ -234,17 +234,17 @@ TEST(ContactorArc, BreakBelowTheMinimumArcCurrentIsClean) {
   EXPECT_NEAR(result.steps.value(result.steps.row_count() - 1, current), 100.0 / (1e3 + 100e6), 1e-12);
 }
 
-// An inductive current far below the minimum arc current (the microamperes open contacts pass: here 200 V over a
-// 100 MOhm leakage) leaves through the parting ramp: the gap rises to its share of the divider, 100 V across
-// 100 MOhm + 100 MOhm, and no further. An instant opening forces the 2 uA through the new 100 MOhm first: i·R_open
-// = 200 V, then settles (the mechanism of an opening's spike across an ideal gap; [R-Ohm-Joule], [R-RL-step]).
-TEST(ContactorArc, CleanInductiveBreakHasNoSpike) {
+// When the arc goes out at the minimum arc current, a cable inductance still carries 0.5 A. The clearing ramp
+// (from the arc's U/I_min up to the open resistance) lets it die while the gap voltage stays at about the source
+// voltage; an instant opening (parting_time 0) forces the 0.5 A through 100 MOhm: i·R_open = 50 MV
+// ([R-Ohm-Joule], [R-RL-step]).
+TEST(ContactorArc, ArcEndsWithoutASpikeAcrossTheGap) {
   auto peak_of = [](const std::string& parting) {
-    Simulation simulation(arc_circuit("200 V", parting,
-                                      "{name: l1, kind: inductor, nodes: [mid, leak], inductance: 1.5 uH, "
-                                      "resistance: 1 Ohm}\n"
-                                      "  - {name: r_leak, kind: resistor, nodes: [leak, gnd], resistance: 100 MOhm}",
-                                      "  - {at: 0.1 ms, open: k1}\n", "0.2 ms"));
+    Simulation simulation(arc_circuit("100 V", parting,
+                                      "{name: l1, kind: inductor, nodes: [mid, load], inductance: 1.5 uH, "
+                                      "resistance: 0.1 Ohm}\n"
+                                      "  - {name: r1, kind: resistor, nodes: [load, gnd], resistance: 10 Ohm}",
+                                      "  - {at: 0.1 ms, open: k1}\n", "1 ms"));
     auto result = simulation.run();
     EXPECT_EQ(result.outcome, linkrise::solver::Outcome::Completed) << result.message;
     int voltage = result.steps.column("k1.voltage");
@@ -253,8 +253,8 @@ TEST(ContactorArc, CleanInductiveBreakHasNoSpike) {
       peak = std::max(peak, std::fabs(result.steps.value(r, voltage)));
     return peak;
   };
-  EXPECT_NEAR(peak_of(""), 100.0, 1e-3);
-  EXPECT_GT(peak_of(", parting_time: 0 s"), 199.0);
+  EXPECT_LT(peak_of(""), 101.0);
+  EXPECT_GT(peak_of(", parting_time: 0 s"), 1e6);
 }
 
 // Every contactor mode's network derivatives (by the parting progress and the arc voltage) and its arc-energy
