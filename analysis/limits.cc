@@ -36,8 +36,10 @@ std::vector<netlist::LimitSpec> rating_limits(const solver::Circuit& circuit) {
       limit.rated_part = part.name();
       limit.source = rating.note.empty() ? fmt::format("rating of {}", part.name())
                                          : fmt::format("rating of {} ({})", part.name(), rating.note);
-      limit.mark = part.mark();
-      limit.maximum_mark = part.mark();
+      limit.mark = rating.mark.file.empty() && rating.mark.line <= 0 ? part.mark() : rating.mark;
+      limit.maximum_mark = limit.mark;
+      limit.entry = rating.entry.empty() ? "ratings" : rating.entry;
+      limit.protection = rating.protection;
       limits.push_back(std::move(limit));
     }
   }
@@ -69,6 +71,9 @@ std::vector<JudgedLimit> judge_limits(const std::vector<netlist::LimitSpec>& lim
       j.margin_unit = difference_unit(metric->unit);
       j.source = limit.source;
       j.rated_part = limit.rated_part;
+      j.origin = limit.entry.empty() ? std::string() : fmt::format("{} at {}", limit.entry, mark.to_string());
+      j.detail = metric->detail;
+      j.protection = limit.protection;
       j.limit = in_metric_unit(bound, metric->unit);
       j.value = metric->value;
       j.required_margin = limit.margin;

@@ -7,6 +7,9 @@
 // `margin:`). A metric that was not reached in the run (NaN, e.g.
 // the main current of a sequence that never closed) is reported as not judged and does not fail; the
 // sequence outcome judges that run.
+//
+// Limits of the case and ratings of parts are judged here alike, by every command (run, faults, compare, the
+// studies and the design search read the judged list), so a rating's verdict, margin and origin are one thing.
 #include <string>
 #include <vector>
 
@@ -28,6 +31,9 @@ struct JudgedLimit {
   std::string margin_unit;  // of the margin: difference_unit(unit), K for a temperature
   std::string source;  // "limits block" or "rating of <part>"
   std::string rated_part;  // the part whose rating this is; empty for the limits block
+  std::string origin;  // the entry the bound was written as and where, e.g. "ratings.max_temperature at x.yaml:31:7"
+  bool protection = false;  // a protective device's operating point: a fault scenario may reach it
+  std::string detail;  // what the run's value stands for, when the metric says (e.g. the pulse-curve rows it met)
   double limit = 0.0;
   double value = 0.0;
   double margin = 0.0;

@@ -11,8 +11,8 @@
 
 namespace linkrise::analysis {
 
-void MetricSet::add(std::string name, double value, std::string unit, std::string definition) {
-  list_.push_back(Metric{std::move(name), value, std::move(unit), std::move(definition)});
+void MetricSet::add(std::string name, double value, std::string unit, std::string definition, std::string detail) {
+  list_.push_back(Metric{std::move(name), value, std::move(unit), std::move(definition), std::move(detail)});
 }
 
 void MetricSet::append(const MetricSet& other) { list_.insert(list_.end(), other.list_.begin(), other.list_.end()); }
@@ -42,6 +42,7 @@ netlist::Dimension metric_dimension(const std::string& unit) {
   if (unit == "A") return Dimension::current();
   if (unit == "A²s") return Dimension::current().power(2) * Dimension::time();
   if (unit == "W") return Dimension::power_();
+  if (unit == "F") return Dimension::capacitance();
   if (unit == "J") return Dimension::energy();
   if (unit == "degC" || unit == "K") return Dimension::temperature();
   if (unit == "1") return Dimension::none();
@@ -156,6 +157,14 @@ namespace {
 // Definitions are for people reading a report: plain words, no pointers into the source.
 std::string part_definition(const std::string& metric) {
   if (metric == "peak_temperature") return "highest element temperature of the part over the run";
+  if (metric == "peak_body_temperature") {
+    return "highest body (housing) temperature of a two-node thermal network over the run";
+  }
+  if (metric == "switched_capacitance") {
+    return "the largest capacitance charged through the part in one pulse: the pulse's charge ∫|i| dt over the "
+           "largest |voltage| across the part during it (C for an RC charge from 0 to V); what a PTC's capacitance "
+           "per switching is judged against";
+  }
   if (metric == "peak_power") return "largest instantaneous heat power in the part (I²R; power into stored energy excluded)";
   if (metric == "peak_stored_power") {
     return "largest |instantaneous power into the part's stored energy| (e.g. a cable's ½·L·i²; not heat)";
@@ -218,7 +227,7 @@ MetricSet part_metrics(const solver::Circuit& circuit, const solver::Result& res
   for (auto part : all_resistive_metrics(circuit, result, audit)) {
     part.duty_average_power = duty > 0.0 ? part.energy / duty : kNaN;
     for (const auto& metric : part.named()) {
-      m.add(part.part + "." + metric.name, metric.value, metric.unit, part_definition(metric.name));
+      m.add(part.part + "." + metric.name, metric.value, metric.unit, part_definition(metric.name), metric.detail);
     }
   }
   return m;

@@ -34,11 +34,12 @@ struct Metric {
   double value = 0.0;  // NaN: not reached in this run
   std::string unit;
   std::string definition;
+  std::string detail;  // this run's particulars behind the value (e.g. which pulse-curve rows the worst pulse met)
 };
 
 class MetricSet {
  public:
-  void add(std::string name, double value, std::string unit, std::string definition);
+  void add(std::string name, double value, std::string unit, std::string definition, std::string detail = "");
   void append(const MetricSet& other);
   const Metric* find(const std::string& name) const;
   /// The value, or NaN when absent.

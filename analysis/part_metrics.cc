@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include <fmt/format.h>
+
 #include "analysis/pulses.h"
 #include "models/contactor.h"
 #include "models/thermal_resistor.h"
@@ -12,6 +14,7 @@ namespace linkrise::analysis {
 std::vector<PartMetric> ResistiveMetrics::named() const {
   std::vector<PartMetric> list;
   if (peak_temperature) list.push_back({"peak_temperature", "degC", *peak_temperature});
+  if (peak_body_temperature) list.push_back({"peak_body_temperature", "degC", *peak_body_temperature});
   list.push_back({"peak_power", "W", peak_power});
   if (peak_stored_power) list.push_back({"peak_stored_power", "W", *peak_stored_power});
   list.push_back({"energy", "J", energy});
@@ -21,9 +24,10 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
   list.push_back({"duty_average_power", "W", duty_average_power});
   list.push_back({"peak_current", "A", peak_current});
   list.push_back({"peak_pulse_energy", "J", peak_pulse_energy});
+  list.push_back({"switched_capacitance", "F", switched_capacitance});
   if (peak_melt) list.push_back({"peak_melt", "1", *peak_melt});
   if (pulse_curve_use) {
-    list.push_back({"pulse_curve_use", "1", *pulse_curve_use});
+    list.push_back({"pulse_curve_use", "1", *pulse_curve_use, pulse_curve_detail});
     list.push_back({"worst_pulse_start", "s", *worst_pulse_start});
     list.push_back({"worst_pulse_length", "s", *worst_pulse_length});
   }
@@ -73,6 +77,30 @@ double square_integral_trapezoid(const solver::Waveform& waveform, int column) {
 }
 
 namespace {
+// The charge of one pulse (trapezoid of |i| over its rows) over the largest |v| across the part during it.
+double switched_capacitance(const solver::Waveform& rows, int current, int voltage, const Pulse& pulse) {
+  double charge = 0.0, peak = 0.0;
+  for (std::size_t r = 0; r < rows.row_count(); ++r) {
+    const double t = rows.time(r);
+    if (t < pulse.start || t > pulse.end) continue;
+    peak = std::max(peak, std::fabs(rows.value(r, voltage)));
+    if (r > 0 && rows.time(r - 1) >= pulse.start) {
+      charge += 0.5 * (std::fabs(rows.value(r - 1, current)) + std::fabs(rows.value(r, current))) * (t - rows.time(r - 1));
+    }
+  }
+  return peak > 0.0 ? charge / peak : 0.0;
+}
+
+// The worst pulse and the data-sheet rows it was judged between, for the verdict.
+std::string describe(const PulseJudgement& judged) {
+  const char* unit = judged.pulse.peak_power > 0.0 && judged.curve.find("power") != std::string::npos ? "W" : "J";
+  const double taken = unit[0] == 'W' ? judged.pulse.peak_power : judged.pulse.energy;
+  return fmt::format("worst of {} pulse(s): {} at {}, equivalent length {}; ratings.{} {} permits {}", judged.count,
+                     netlist::format_si(taken, unit), netlist::format_si(judged.pulse.start, "s"),
+                     netlist::format_si(judged.pulse.length(), "s"), judged.curve, judged.rows,
+                     netlist::format_si(judged.permitted, unit));
+}
+
 // Index of the part's ∫i² dt state in the ODE vector, or -1.
 int current_squared_state(const solver::Circuit& circuit, int part) {
   int first = circuit.layout(part).state;
@@ -100,17 +128,24 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
     metrics.peak_current = peak_absolute(rows, current);
     int temperature = rows.column(p.name() + ".temperature");
     if (temperature >= 0) metrics.peak_temperature = peak_value(rows, temperature);
+    int body = rows.column(p.name() + ".body_temperature");
+    if (body >= 0) metrics.peak_body_temperature = peak_value(rows, body);
     int melt = rows.column(p.name() + ".melt");
     if (melt >= 0) metrics.peak_melt = peak_value(rows, melt);
     const auto curves = p.pulse_curves();
     const int heat = rows.column(p.name() + ".heat_power");
     const auto pulses = heat >= 0 ? split_pulses(rows.times(), rows.series(heat)) : std::vector<Pulse>{};
     for (const auto& pulse : pulses) metrics.peak_pulse_energy = std::max(metrics.peak_pulse_energy, pulse.energy);
+    for (const auto& pulse : pulses) {
+      metrics.switched_capacitance =
+          std::max(metrics.switched_capacitance, switched_capacitance(rows, current, voltage, pulse));
+    }
     if (!curves.empty()) {
       if (auto judged = judge_pulses(pulses, curves)) {
         metrics.pulse_curve_use = judged->use;
         metrics.worst_pulse_start = judged->pulse.start;
         metrics.worst_pulse_length = judged->pulse.length();
+        metrics.pulse_curve_detail = describe(*judged);
       }
     }
     const ContactColumns contact{current, voltage, rows.column(p.name() + ".closed"), rows.column(p.name() + ".arcing"),

@@ -52,11 +52,16 @@ struct PartMetric {
   std::string name;  // e.g. "peak_temperature"
   std::string unit;  // e.g. "degC"
   double value = 0.0;
+  std::string detail;  // this run's particulars behind the value, for the verdict (may be empty)
+
+  PartMetric(std::string name_, std::string unit_, double value_, std::string detail_ = "")
+      : name(std::move(name_)), unit(std::move(unit_)), value(value_), detail(std::move(detail_)) {}
 };
 
 struct ResistiveMetrics {
   std::string part;
   std::optional<double> peak_temperature;  // degC; absent when the part has no temperature signal
+  std::optional<double> peak_body_temperature;  // degC; parts with a two-node (element + body) network
   std::optional<double> peak_melt;         // 1; absent when the part has no melt signal
   double peak_power = 0.0;                 // W, heat
   std::optional<double> peak_stored_power; // W; absent when the part stores no energy
@@ -66,7 +71,9 @@ struct ResistiveMetrics {
   double peak_voltage = 0.0;               // V
   double peak_current = 0.0;               // A
   double peak_pulse_energy = 0.0;          // J
+  double switched_capacitance = 0.0;       // F, largest charge of one pulse over its largest voltage
   std::optional<double> pulse_curve_use, worst_pulse_start, worst_pulse_length;  // parts with a pulse curve
+  std::string pulse_curve_detail;          // the curve and rows the worst pulse was judged between
   double average_power = 0.0;              // W
   double duty_average_power = std::nan("");  // W; NaN without a stated duty
   std::optional<ContactMetrics> contact;     // contactors (parts with an arc_energy signal)

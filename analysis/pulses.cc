@@ -53,6 +53,7 @@ std::optional<PulseJudgement> judge_pulses(const std::vector<Pulse>& pulses,
       worst.use = use;
       worst.pulse = pulse;
       worst.permitted = permitted;
+      worst.rows = chosen->rows_at(pulse.length());
     }
   }
   return worst;

@@ -29,6 +29,7 @@ struct PulseJudgement {
   Pulse pulse;              // that pulse
   double permitted = 0.0;   // what the curve permits at its length (J or W)
   std::string curve;        // the curve's key
+  std::string rows;         // the curve's rows that decide `permitted` (PulseCurve::rows_at)
   int count = 0;            // pulses judged
 };
 

@@ -25,9 +25,11 @@ Evaluation evaluate(const solver::Circuit& circuit, const solver::Result& result
     std::string where = limit.margin < 0.0 ? (limit.bound == BoundSide::Maximum ? "above" : "below")
                                            : fmt::format("within, but short of the {:g} % margin to,",
                                                          100.0 * limit.required_margin);
-    evaluation.failures.push_back(fmt::format("{} = {} is {} its {} {} ({})", limit.metric,
+    std::string origin = limit.origin.empty() ? "" : "; " + limit.origin;
+    std::string detail = limit.detail.empty() ? "" : " — " + limit.detail;
+    evaluation.failures.push_back(fmt::format("{} = {} is {} its {} {} ({}{}){}", limit.metric,
                                               format_metric(limit.value, limit.unit), where, bound_word(limit.bound),
-                                              format_metric(limit.limit, limit.unit), limit.source));
+                                              format_metric(limit.limit, limit.unit), limit.source, origin, detail));
   }
   if (report != nullptr && report->outcome != report->spec.expected_outcome) {
     std::string unfinished;

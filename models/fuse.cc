@@ -22,6 +22,7 @@ class Fuse final : public Part {
     melting_i2t_ = reader.required("melting_i2t", Dimension::current().power(2) * Dimension::time(), Bound::Positive);
     read_curve(reader);
     derating_ = reader.quantity("pulse_derating", Dimension::none(), Bound::Fraction, 1.0);
+    rating_mark_ = reader.mark(reader.has("pulse_derating") ? "pulse_derating" : "melting_i2t");
     if (!(derating_ > 0.0)) reader.fail("pulse_derating", "must be above 0 %");
     open_resistance_ = reader.quantity("open_resistance", Dimension::resistance(), Bound::Positive, 1e8);
     reader.finish();
@@ -80,8 +81,11 @@ class Fuse final : public Part {
   Role do_role() const override { return Role::Conductor; }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   std::vector<Rating> do_ratings() const override {
-    return {{"peak_melt", "1", derating_,
-             fmt::format("{:g} % of the melting integral (pulse derating)", 100.0 * derating_)}};
+    Rating melt{"peak_melt", "1", derating_,
+                fmt::format("{:g} % of the melting integral (pulse derating)", 100.0 * derating_),
+                "melting_i2t × pulse_derating", rating_mark_};
+    melt.protection = true;
+    return {melt};
   }
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
     const double g = conductance(point, layout);
@@ -112,6 +116,7 @@ class Fuse final : public Part {
 
   double resistance_ = 0.0;
   double melting_i2t_ = 0.0;
+  netlist::SourceMark rating_mark_;  // the data-sheet entry the rating comes from
   double derating_ = 1.0;
   double open_resistance_ = 1e8;
   std::vector<double> log_current_, log_time_;  // the time-current rows, natural logarithms

@@ -232,6 +232,17 @@ struct Rating {
   std::string unit;
   double value = 0.0;
   std::string note;  // e.g. pulse length the energy rating applies to
+  std::string entry;  // the data-sheet entry it was read from, e.g. "ratings.max_temperature"; empty: the part's
+  netlist::SourceMark mark;  // where that entry is written (empty file: the part's own block)
+  // A protective device's operating point (a fuse's melting integral): in a fault scenario, reaching it is the
+  // protection doing its job, so the detection matrix reports its margin but does not fail the row for it.
+  bool protection = false;
+
+  Rating() = default;
+  Rating(std::string metric_, std::string unit_, double value_, std::string note_ = "", std::string entry_ = "",
+         netlist::SourceMark mark_ = {})
+      : metric(std::move(metric_)), unit(std::move(unit_)), value(value_), note(std::move(note_)),
+        entry(std::move(entry_)), mark(std::move(mark_)) {}
 };
 
 /// A parameter reader for a part's block that already knows the keys every part has (name, kind, nodes).

@@ -161,6 +161,19 @@ Created<PtcParametric> PtcParametric::create(const PtcParametricParameters& p) {
     return violation(law, "blend_width_kelvin", p.blend_width_kelvin,
                      "must be <= " + number(2.0 * room / p.slope) +
                          " K so that the corner blends stay clear of reference_kelvin");
+  if (p.cold_resistance != 0.0) {
+    // Between R_min and R(T_ref) = 2·R_min: the cold part of the curve lies below the switch point.
+    if (!(std::isfinite(p.cold_resistance) && p.cold_resistance > p.minimum_resistance &&
+          p.cold_resistance < 2.0 * p.minimum_resistance))
+      return violation(law, "cold_resistance", p.cold_resistance,
+                       "must lie between minimum_resistance = " + number(p.minimum_resistance) + " ohm and twice it");
+    const double half = 0.5 * p.blend_width_kelvin;
+    const double knee = p.reference_kelvin - std::numbers::ln2 / p.slope;
+    if (!(p.minimum_kelvin - half >= kelvin_at_25_celsius && p.minimum_kelvin + half <= knee - half))
+      return violation(law, "minimum_kelvin", p.minimum_kelvin,
+                       "must lie between " + number(kelvin_at_25_celsius + half) + " K and " + number(knee - 2.0 * half) +
+                           " K (25 degC and the knee, each with its corner clear)");
+  }
   return PtcParametric(p);
 }
 
@@ -169,7 +182,10 @@ PtcParametric::PtcParametric(const PtcParametricParameters& p)
       log_minimum_(std::log(p.minimum_resistance)),
       log_maximum_(std::log(p.maximum_resistance)),
       knee_kelvin_(p.reference_kelvin - std::numbers::ln2 / p.slope),
-      half_width_log_(0.5 * p.slope * p.blend_width_kelvin) {}
+      half_width_log_(0.5 * p.slope * p.blend_width_kelvin),
+      cold_slope_(p.cold_resistance > 0.0 ? std::log(p.cold_resistance / p.minimum_resistance) /
+                                                (p.minimum_kelvin - kelvin_at_25_celsius)
+                                          : 0.0) {}
 
 double PtcParametric::saturation_kelvin() const {
   return knee_kelvin_ + (log_maximum_ - log_minimum_) / parameters_.slope;
@@ -177,10 +193,17 @@ double PtcParametric::saturation_kelvin() const {
 
 double PtcParametric::log_resistance(double kelvin, double* log_slope) const {
   const double u = parameters_.slope * (kelvin - knee_kelvin_);
-  const double rise = log_minimum_ + smooth_ramp(u, half_width_log_);
+  // The cold (NTC-like) region: zero above T_Rmin's corner, so it never meets the rise's corners.
+  double cold = 0.0, cold_slope = 0.0;
+  if (cold_slope_ > 0.0) {
+    const double c = cold_slope_ * (parameters_.minimum_kelvin - kelvin), h = 0.5 * cold_slope_ * parameters_.blend_width_kelvin;
+    cold = smooth_ramp(c, h);
+    cold_slope = -cold_slope_ * smooth_ramp_slope(c, h);
+  }
+  const double rise = log_minimum_ + cold + smooth_ramp(u, half_width_log_);
   const double headroom = log_maximum_ - rise;
-  *log_slope = smooth_ramp_slope(headroom, half_width_log_) * smooth_ramp_slope(u, half_width_log_) *
-               parameters_.slope;
+  *log_slope = smooth_ramp_slope(headroom, half_width_log_) *
+               (smooth_ramp_slope(u, half_width_log_) * parameters_.slope + cold_slope);
   return log_maximum_ - smooth_ramp(headroom, half_width_log_);
 }
 

@@ -131,14 +131,21 @@ NtcSteinhartHart steinhart_hart_from_beta(const NtcBeta& beta_law);
 // exp(3·α·w/32) (≈ 3.8 % for α = 0.2 /K, w = 2 K). The factory requires the windows to leave T_ref on the
 // pure exponential, so R(T_ref) = 2·R_min holds exactly.
 //
-// Below the knee a real PTC first falls slightly (an NTC region down to R_min at T_Rmin); this law is flat
-// there. If a data sheet gives only R25, using it as R_min is the usual approximation.
+// Below the knee a real PTC first falls as it warms (an NTC region from R25 down to R_min at T_Rmin, IEC 60738-1
+// terms). With a cold resistance R25 > R_min and T_Rmin given, the law has that region too:
+//   ln R gains smooth_ramp(s·(T_Rmin − T), h_c),  s = ln(R25/R_min)/(T_Rmin − 25 °C),  h_c = s·w/2,
+// so R(25 °C) = R25 and R(T_Rmin) = R_min exactly when 25 °C and T_Rmin lie outside the corner (w wide at T_Rmin).
+// The cold corner must end before the knee's corner begins. Without it (cold_resistance 0) the law is flat below
+// the knee; if a data sheet gives only R25, using it as R_min is the usual approximation, which understates the
+// current once the part has warmed to T_Rmin.
 struct PtcParametricParameters {
   double minimum_resistance;        // R_min, ohm, > 0
   double reference_kelvin;          // T_ref, K, > 0: R(T_ref) = 2·R_min
   double slope;                     // α, 1/K, > 0
   double maximum_resistance;        // R_max, ohm, > 2·R_min
   double blend_width_kelvin = 2.0;  // w, K, > 0; small enough that both corners stay clear of T_ref
+  double cold_resistance = 0.0;     // R25, ohm; 0: no cold region, else in (R_min, 2·R_min)
+  double minimum_kelvin = 0.0;      // T_Rmin, K, above 25 °C + w/2 and below the knee's corner (with R25)
 };
 
 class PtcParametric {
@@ -161,6 +168,7 @@ class PtcParametric {
   double log_maximum_;
   double knee_kelvin_;
   double half_width_log_;  // h = α·w/2
+  double cold_slope_ = 0.0;  // s = ln(R25/R_min)/(T_Rmin − 25 °C), 1/K; 0 without a cold region
 };
 
 // ---------------------------------------------------------------------------------------------------------

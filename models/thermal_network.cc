@@ -4,6 +4,9 @@
 #include <cmath>
 #include <cstdio>
 
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_roots.h>
+
 #include "models/number_text.h"
 
 namespace linkrise::models {
@@ -234,6 +237,90 @@ double ThermalNetwork::total_thermal_resistance() const {
 
 double adiabatic_temperature_rise(double energy, double mass, double specific_heat) {
   return energy / (mass * specific_heat);
+}
+
+double ThermalNetwork::element_heat_capacity() const {
+  return std::visit(Overloaded{[](const OneNodeParameters& p) { return p.heat_capacity; },
+                               [](const TwoNodeParameters& p) { return p.element_heat_capacity; },
+                               [](const std::vector<FosterTerm>& terms) {
+                                 double slope = 0.0;
+                                 for (const auto& term : terms) slope += term.thermal_resistance / term.time_constant;
+                                 return 1.0 / slope;
+                               }},
+                    parameters_);
+}
+
+bool ThermalNetwork::has_body() const { return std::holds_alternative<TwoNodeParameters>(parameters_); }
+
+double ThermalNetwork::body_temperature(std::span<const double> x, double ambient) const {
+  return has_body() ? x[1] : element_temperature(x, ambient);
+}
+
+namespace {
+// ∫₀ᵗ e^(λs) ds, continuous through λ = 0 (an adiabatic mode).
+double mode_integral(double lambda, double t) {
+  return std::fabs(lambda * t) < 1e-8 ? t * (1.0 + 0.5 * lambda * t) : std::expm1(lambda * t) / lambda;
+}
+}  // namespace
+
+double ThermalNetwork::thermal_impedance(double t) const {
+  return std::visit(
+      Overloaded{[&](const OneNodeParameters& p) {
+                   if (std::isinf(p.thermal_resistance)) return t / p.heat_capacity;
+                   return -p.thermal_resistance * std::expm1(-t / (p.thermal_resistance * p.heat_capacity));
+                 },
+                 [&](const TwoNodeParameters& p) {
+                   // θ' = A·θ + b·P with b = (1/C1, 0): θ1(t) = Σ_k e1ᵀ·P_k·b · ∫₀ᵗ e^(λ_k s) ds, where
+                   // P_1 = (A − λ2·I)/(λ1 − λ2), P_2 = (A − λ1·I)/(λ2 − λ1) (Sylvester; the eigenvalues of this
+                   // A are real and distinct: it is similar to a symmetric matrix with a non-zero off-diagonal).
+                   const double inner = 1.0 / p.element_to_body_resistance, outer = 1.0 / p.body_to_ambient_resistance;
+                   const double a11 = -inner / p.element_heat_capacity, a22 = -(inner + outer) / p.body_heat_capacity;
+                   const double a12 = inner / p.element_heat_capacity, a21 = inner / p.body_heat_capacity;
+                   const double half_trace = 0.5 * (a11 + a22);
+                   const double root = std::sqrt(0.25 * (a11 - a22) * (a11 - a22) + a12 * a21);
+                   const double l1 = half_trace + root, l2 = half_trace - root;
+                   const double b1 = 1.0 / p.element_heat_capacity;
+                   return (a11 - l2) * b1 / (l1 - l2) * mode_integral(l1, t) +
+                          (a11 - l1) * b1 / (l2 - l1) * mode_integral(l2, t);
+                 },
+                 [&](const std::vector<FosterTerm>& terms) {
+                   double z = 0.0;
+                   for (const auto& term : terms) z -= term.thermal_resistance * std::expm1(-t / term.time_constant);
+                   return z;
+                 }},
+      parameters_);
+}
+
+std::optional<double> element_capacity_meeting(TwoNodeParameters rest, double seconds, double impedance) {
+  struct Target {
+    TwoNodeParameters network;
+    double seconds, impedance;
+  } target{rest, seconds, impedance};
+  auto gap = [](double log_capacity, void* data) {
+    auto* t = static_cast<Target*>(data);
+    t->network.element_heat_capacity = std::exp(log_capacity);
+    auto network = ThermalNetwork::create(t->network);
+    return std::get<ThermalNetwork>(network).thermal_impedance(t->seconds) - t->impedance;
+  };
+  // Bracket: at the adiabatic capacity t/Z the model runs cooler than the target (Z_th ≤ t/C1); a million times
+  // smaller the element is nearly massless and Z_th is the body path's.
+  const double upper = std::log(seconds / impedance), lower = upper - std::log(1e6);
+  gsl_function function{gap, &target};
+  if (gap(lower, &target) <= 0.0) return std::nullopt;
+  if (gap(upper, &target) >= 0.0) return std::exp(upper);
+  gsl_root_fsolver* solver = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+  gsl_root_fsolver_set(solver, &function, lower, upper);
+  double root = upper;
+  for (int iteration = 0; iteration < 200; ++iteration) {
+    gsl_root_fsolver_iterate(solver);
+    root = gsl_root_fsolver_root(solver);
+    if (gsl_root_test_interval(gsl_root_fsolver_x_lower(solver), gsl_root_fsolver_x_upper(solver), 0.0, 1e-12) !=
+        GSL_CONTINUE) {
+      break;
+    }
+  }
+  gsl_root_fsolver_free(solver);
+  return std::exp(root);
 }
 
 }  // namespace linkrise::models

@@ -29,6 +29,7 @@
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <span>
 #include <string>
 #include <utility>
@@ -93,12 +94,33 @@ class ThermalNetwork {
   // Element-to-ambient resistance at steady state (K/W); +infinity when adiabatic.
   double total_thermal_resistance() const;
 
+  // The element's own heat capacity (J/K): C_th, C1, or for a Foster list 1/Σ(R_i/τ_i), the one that gives its
+  // initial slope Z_th'(0).
+  double element_heat_capacity() const;
+
+  // The body (housing) node of a two-node network: true only for form (b).
+  bool has_body() const;
+  // Its temperature (K); the element temperature for networks without a body node.
+  double body_temperature(std::span<const double> states, double ambient) const;
+
+  // The element's thermal impedance Z_th(t) (K/W): its rise above ambient t seconds after a constant power step
+  // of 1 W from rest, in closed form — (a) R·(1 − e^(−t/RC)) (t/C adiabatic); (b) the two eigenmodes of the
+  // 2×2 system (Sylvester's formula); (c) Σ R_i·(1 − e^(−t/τ_i)). A data sheet's pulse curve states the same
+  // quantity: Z_th(t) = (T_max − T_amb)/P_max(t) (models/pulse_curve.h).
+  double thermal_impedance(double seconds) const;
+
  private:
   using Parameters = std::variant<OneNodeParameters, TwoNodeParameters, std::vector<FosterTerm>>;
   template <typename Specific>
   explicit ThermalNetwork(Specific parameters) : parameters_(std::move(parameters)) {}
   Parameters parameters_;
 };
+
+// The element heat capacity C1 for which a two-node network (its other three values from `rest`) has the thermal
+// impedance `impedance` at `seconds` — a data-sheet pulse-curve row (models/pulse_curve.h). Z_th(t) falls as C1
+// grows, from its C1 → 0 limit to 0, so the root is unique; std::nullopt when even C1 → 0 stays below
+// `impedance` (the body alone, not the element, limits that row). Found by GSL's Brent solver on ln C1.
+std::optional<double> element_capacity_meeting(TwoNodeParameters rest, double seconds, double impedance);
 
 // Adiabatic temperature rise ΔT = E/(m·c): energy (J), mass (kg), specific heat (J/(kg·K)).
 double adiabatic_temperature_rise(double energy, double mass, double specific_heat);

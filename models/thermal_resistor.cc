@@ -39,7 +39,46 @@ double resistance_or_adiabatic(netlist::ParameterReader& reader, const std::stri
   return reader.required(key, Dimension::thermal_resistance(), Bound::Positive);
 }
 
-std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
+// `element_heat_capacity: from_pulse_curve`: the element heat capacity for which the two-node network meets the
+// part's own pulse curve at its most demanding row and runs at or above it at every other row (Z_th falls as C1
+// grows, so the smallest C1 over the rows is conservative everywhere; models/pulse_curve.h).
+double capacity_from_curve(netlist::ParameterReader& block, ThermalOptions& options, TwoNodeParameters rest) {
+  block.accept("element_heat_capacity");
+  if (options.pulse_curves.empty() || !options.max_temperature) {
+    block.fail("element_heat_capacity", "is 'from_pulse_curve', but the ratings give no pulse curve and max_temperature",
+               "add 'pulse_energy_curve' (or 'pulse_power_curve') and 'max_temperature' to the part's ratings, or "
+               "give the element heat capacity, e.g. '2 J/K'");
+  }
+  const PulseCurve& curve = options.pulse_curves.front();
+  const double rise = *options.max_temperature - pulse_curve_ambient_kelvin;
+  if (!(rise > 0.0)) block.fail("element_heat_capacity", "needs a max_temperature above the curve's 25 degC");
+  std::optional<double> smallest;
+  std::size_t row = 0;
+  std::string unmet;  // rows no element capacity can meet: the body path keeps the element cooler than the curve
+  for (std::size_t k = 0; k < curve.lengths.size(); ++k) {
+    auto capacity = element_capacity_meeting(rest, curve.lengths[k], curve_thermal_impedance(curve, k, rise));
+    if (!capacity) unmet += fmt::format("{}{}", unmet.empty() ? "" : ", ", k + 1);
+    if (capacity && (!smallest || *capacity < *smallest)) smallest = capacity, row = k;
+  }
+  if (!smallest) {
+    block.fail("element_heat_capacity", "cannot meet the pulse curve: the body path alone heats the element more "
+                                        "than any row allows",
+               "check element_to_body_resistance and the body values against the data sheet, or give the element "
+               "heat capacity");
+  }
+  options.element_capacity_origin = fmt::format(
+      "the two-node network meets ratings.{} row {} ({} in {}) from 25 degC to max_temperature and runs at or above "
+      "the curve at every other row{}",
+      curve.key(), row + 1,
+      netlist::format_si(curve.values[row], curve.measure == PulseCurve::Measure::Energy ? "J" : "W"),
+      netlist::format_si(curve.lengths[row], "s"),
+      unmet.empty() ? std::string()
+                    : fmt::format(" but row(s) {}, which no element capacity meets with these body values (the model "
+                                  "runs cooler there)", unmet));
+  return *smallest;
+}
+
+std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block, ThermalOptions& options) {
   if (block.has("foster")) {
     const std::string fix = "write '- {thermal_resistance: 0.5 K/W, time_constant: 2 s}' per term";
     auto readers = block.blocks("foster", "Foster term", std::numeric_limits<std::size_t>::max(),
@@ -67,11 +106,14 @@ std::optional<ThermalNetwork> read_network(netlist::ParameterReader& block) {
                  "give either heat_capacity + thermal_resistance, or the four two-node values");
     }
     TwoNodeParameters p{};
-    p.element_heat_capacity = block.required("element_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     p.element_to_body_resistance =
         block.required("element_to_body_resistance", Dimension::thermal_resistance(), Bound::Positive);
     p.body_heat_capacity = block.required("body_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     p.body_to_ambient_resistance = resistance_or_adiabatic(block, "body_to_ambient_resistance", true);
+    p.element_heat_capacity =
+        block.is_word("element_heat_capacity", "from_pulse_curve")
+            ? capacity_from_curve(block, options, p)
+            : block.required("element_heat_capacity", Dimension::heat_capacity(), Bound::Positive);
     return network_or_fail(ThermalNetwork::create(p), block, "element_heat_capacity");
   }
   OneNodeParameters p{};
@@ -102,8 +144,16 @@ std::optional<PulseCurve> read_pulse_curve(netlist::ParameterReader& block, cons
 
 std::vector<Rating> read_ratings(netlist::ParameterReader& block, std::vector<PulseCurve>& curves) {
   std::vector<Rating> ratings;
+  // Every rating names the data-sheet entry it was read from and where that entry is written.
+  auto rate = [&](const std::string& key, std::string metric, std::string unit, double value, std::string note) {
+    ratings.push_back({std::move(metric), std::move(unit), value, std::move(note), "ratings." + key, block.mark(key)});
+  };
   if (auto t = block.optional("max_temperature", Dimension::temperature(), Bound::Positive)) {
-    ratings.push_back({"peak_temperature", "degC", *t - kelvin_offset, "maximum element temperature"});
+    rate("max_temperature", "peak_temperature", "degC", *t - kelvin_offset, "maximum element temperature");
+  }
+  if (auto t = block.optional("max_body_temperature", Dimension::temperature(), Bound::Positive)) {
+    rate("max_body_temperature", "peak_body_temperature", "degC", *t - kelvin_offset,
+         "maximum body (housing) temperature of a two-node network");
   }
   auto energy = block.optional("pulse_energy", Dimension::energy(), Bound::Positive);
   auto length = block.optional("pulse_length", Dimension::time(), Bound::Positive);
@@ -111,37 +161,41 @@ std::vector<Rating> read_ratings(netlist::ParameterReader& block, std::vector<Pu
     block.fail("pulse_length", "is given without pulse_energy", "add 'pulse_energy: 150 J' for that pulse length");
   }
   if (energy) {
-    ratings.push_back({"energy", "J", *energy,
-                       length ? fmt::format("pulse length {}", netlist::format_si(*length, "s")) : std::string()});
+    rate("pulse_energy", "energy", "J", *energy,
+         length ? fmt::format("pulse length {}", netlist::format_si(*length, "s")) : std::string());
   }
   if (auto p = block.optional("continuous_power", Dimension::power_(), Bound::Positive)) {
-    ratings.push_back({"duty_average_power", "W", *p,
-                       "continuous rating, judged against the mean heat over the key-cycle duty (sequence.key_cycles)"});
+    rate("continuous_power", "duty_average_power", "W", *p,
+         "continuous rating, judged against the mean heat over the key-cycle duty (sequence.key_cycles)");
   }
   if (auto v = block.optional("max_voltage", Dimension::voltage(), Bound::Positive)) {
-    ratings.push_back({"peak_voltage", "V", *v, "maximum voltage across the part"});
+    rate("max_voltage", "peak_voltage", "V", *v, "maximum voltage across the part");
   }
   if (auto i = block.optional("max_current", Dimension::current(), Bound::Positive)) {
-    ratings.push_back({"peak_current", "A", *i,
-                       "maximum current through the part (an NTC's inrush when it restarts hot)"});
+    rate("max_current", "peak_current", "A", *i, "maximum current through the part (an NTC's inrush when it restarts hot)");
   }
   if (auto e = block.optional("max_switching_energy", Dimension::energy(), Bound::Positive)) {
-    ratings.push_back({"peak_pulse_energy", "J", *e, "energy per switching (a PTC's limit for one trip)"});
+    rate("max_switching_energy", "peak_pulse_energy", "J", *e, "energy per switching (a PTC's limit for one trip)");
   }
   if (auto v = block.optional("max_switching_voltage", Dimension::voltage(), Bound::Positive)) {
-    ratings.push_back({"peak_voltage", "V", *v, "maximum switching voltage (across a PTC when it trips)"});
+    rate("max_switching_voltage", "peak_voltage", "V", *v, "maximum switching voltage (across a PTC when it trips)");
   }
-  std::string keys;
+  if (auto c = block.optional("max_switching_capacitance", Dimension::capacitance(), Bound::Positive)) {
+    rate("max_switching_capacitance", "switched_capacitance", "F", *c,
+         "capacitance charged per switching (a PTC's limit: the charge of one pulse over the voltage it started at)");
+  }
+  std::string keys, first_key;
   for (const auto& key : pulse_curve_keys()) {
     if (auto curve = read_pulse_curve(block, key)) {
       curves.push_back(*curve);
       keys += (keys.empty() ? "" : ", ") + key;
+      if (first_key.empty()) first_key = key;
     }
   }
   if (!curves.empty()) {
-    ratings.push_back({"pulse_curve_use", "1", 1.0,
-                       fmt::format("data-sheet pulse curve ({}): the worst pulse's share of what the curve permits at "
-                                   "its equivalent rectangular length", keys)});
+    rate(first_key, "pulse_curve_use", "1", 1.0,
+         fmt::format("data-sheet pulse curve ({}): the worst pulse's share of what the curve permits at its "
+                     "equivalent rectangular length", keys));
   }
   block.finish();
   return ratings;
@@ -192,40 +246,94 @@ class ThermalResistor final : public Part {
     return states;
   }
 
+  // R(T, v) with its logarithmic slopes ∂ln R/∂T (1/K) and ∂ln R/∂v (1/V).
+  struct Evaluated {
+    double resistance, log_by_temperature, log_by_voltage;
+  };
+  Evaluated evaluate(double kelvin, double v) const {
+    const ResistanceAndSlope law = law_.evaluate(kelvin);
+    if (!options_.softening) return {law.resistance, law.derivative / law.resistance, 0.0};
+    const VoltageSoftening& soft = *options_.softening;
+    const double x = v / soft.voltage, exponent = 1.0 / (1.0 + x * x);
+    const double rise = std::log(law.resistance / soft.floor_resistance);
+    const double resistance = soft.floor_resistance * std::exp(exponent * rise);
+    const double exponent_by_voltage = -2.0 * x / soft.voltage * exponent * exponent;
+    return {resistance, exponent * law.derivative / law.resistance, exponent_by_voltage * rise};
+  }
+  double resistance(const Point& point, const Layout& layout) const {
+    return evaluate(temperature(point, layout), point.voltage(layout)).resistance;
+  }
   double do_current(const Point& point, const Layout& layout) const override {
-    return point.voltage(layout) / law_.resistance(temperature(point, layout));
+    return point.voltage(layout) / resistance(point, layout);
   }
   Link do_link() const override { return Link::Conductive; }
+  // A voltage softening makes i(v) nonlinear: the network solve must iterate.
+  bool do_linear_network() const override { return !options_.softening.has_value(); }
   PowerChannels do_power_channels() const override { return {false, true, false}; }
   std::vector<Rating> do_ratings() const override { return options_.ratings; }
   std::vector<PulseCurve> do_pulse_curves() const override { return options_.pulse_curves; }
   Role do_role() const override { return Role::Resistive; }
   bool do_has_thermal_model() const override { return options_.network.has_value(); }
   std::optional<DefiningValue> do_defining_value() const override { return defining_; }
+  bool has_body() const { return options_.network && options_.network->has_body(); }
   std::vector<SignalInfo> do_extra_signals() const override {
-    return {{"temperature", "degC"}, {"resistance", "Ohm"}};
+    std::vector<SignalInfo> signals{{"temperature", "degC"}, {"resistance", "Ohm"}};
+    if (has_body()) signals.push_back({"body_temperature", "degC"});
+    return signals;
   }
   void do_extra_signal_values(const Point& point, const Layout& layout, double* out) const override {
-    double t = temperature(point, layout);
-    out[0] = t - kelvin_offset;
-    out[1] = law_.resistance(t);
+    out[0] = temperature(point, layout) - kelvin_offset;
+    out[1] = resistance(point, layout);
+    if (has_body()) out[2] = options_.network->body_temperature(thermal_states(point, layout), point.ambient) - kelvin_offset;
+  }
+  std::vector<DerivedValue> do_derived_values() const override { return pulse_curve_check(); }
+  // How the thermal model compares with the data-sheet pulse curve (models/pulse_curve.h): the element heat
+  // capacity the curve implies, and the model's element rise at each row's permitted pulse over the allowed rise.
+  std::vector<DerivedValue> pulse_curve_check() const {
+    std::vector<DerivedValue> values;
+    if (!options_.network || options_.pulse_curves.empty() || !options_.max_temperature) return values;
+    const PulseCurve& curve = options_.pulse_curves.front();
+    const double rise = *options_.max_temperature - pulse_curve_ambient_kelvin;
+    if (!(rise > 0.0)) return values;
+    std::size_t row = 0;
+    const double capacity = element_heat_capacity_from_curve(curve, rise, &row);
+    if (options_.element_capacity_origin.empty()) {
+      values.push_back({"element heat capacity bound from the pulse curve", capacity, "J/K",
+                        fmt::format("ratings.{} row {} and max_temperature: P·t/(T_max − 25 degC), the adiabatic "
+                                    "upper bound", curve.key(), row + 1)});
+    } else {
+      values.push_back({"element heat capacity from the pulse curve", options_.network->element_heat_capacity(),
+                        "J/K", options_.element_capacity_origin});
+    }
+    double lowest = std::numeric_limits<double>::infinity();
+    std::size_t lowest_row = 0;
+    for (std::size_t k = 0; k < curve.lengths.size(); ++k) {
+      const double share = options_.network->thermal_impedance(curve.lengths[k]) /
+                           curve_thermal_impedance(curve, k, rise);
+      if (share < lowest) lowest = share, lowest_row = k;
+    }
+    values.push_back({"model element rise at the pulse curve", lowest, "1",
+                      fmt::format("the model's Z_th(t) over the curve's (T_max − 25 degC)/P_max(t), lowest at row {} "
+                                  "of ratings.{}; below 100 % the model keeps the element cooler than the data sheet "
+                                  "(optimistic)", lowest_row + 1, curve.key())});
+    return values;
   }
 
   void do_stamp(const Point& point, const Layout& layout, Stamp& stamp) const override {
-    const double t = temperature(point, layout);
-    const ResistanceAndSlope law = law_.evaluate(t);
-    const double r = law.resistance;
     const double v = point.voltage(layout);
-    const double g = 1.0 / r;
+    const Evaluated law = evaluate(temperature(point, layout), v);
+    const double g = 1.0 / law.resistance;
     const double i = v * g;
     const double power = v * i;
-    stamp.terminal_current(layout, i, g);
+    // di/dv = g·(1 − v·∂ln R/∂v): g alone without a voltage softening.
+    const double current_by_voltage = g * (1.0 - v * law.log_by_voltage);
+    stamp.terminal_current(layout, i, current_by_voltage);
 
-    // I²t quadrature: d/dt = i², with ∂/∂v = 2i·g and ∂/∂T = 2i·∂i/∂T.
+    // I²t quadrature: d/dt = i², with ∂/∂v = 2i·di/dv and ∂/∂T = 2i·∂i/∂T.
     const int q = current_squared_index(layout);
     stamp.rate(q, i * i);
-    stamp.rate_by_unknown(q, layout.node[0], 2.0 * i * g);
-    stamp.rate_by_unknown(q, layout.node[1], -2.0 * i * g);
+    stamp.rate_by_unknown(q, layout.node[0], 2.0 * i * current_by_voltage);
+    stamp.rate_by_unknown(q, layout.node[1], -2.0 * i * current_by_voltage);
 
     if (!options_.network) return;
     const ThermalNetwork& network = *options_.network;
@@ -237,9 +345,9 @@ class ThermalResistor final : public Part {
     if (!stamp.wants_derivatives()) return;
 
     // Chain rule through T = T_element(x): ∂i/∂T and ∂P/∂T.
-    const double current_by_temperature = -v * law.derivative * g * g;
+    const double current_by_temperature = -i * law.log_by_temperature;
     const double power_by_temperature = v * current_by_temperature;
-    const double power_by_voltage = 2.0 * i;
+    const double power_by_voltage = i + v * current_by_voltage;
     const std::vector<double>& gradient = temperature_gradient_;
     const std::vector<double>& by_power = rate_by_power_;
     const std::vector<double>& by_state = rate_by_thermal_state_;
@@ -258,7 +366,7 @@ class ThermalResistor final : public Part {
 
   Powers do_powers(const Point& point, const Layout& layout) const override {
     double v = point.voltage(layout);
-    return Powers{0.0, v * v / law_.resistance(temperature(point, layout)), 0.0};
+    return Powers{0.0, v * v / resistance(point, layout), 0.0};
   }
 
   ResistanceLaw law_;
@@ -273,17 +381,21 @@ class ThermalResistor final : public Part {
 
 ThermalOptions read_thermal_options(netlist::ParameterReader& reader) {
   ThermalOptions options;
+  // Ratings first: a thermal block may take its element heat capacity from the pulse curve.
+  if (auto ratings = reader.block("ratings")) {
+    options.ratings = read_ratings(*ratings, options.pulse_curves);
+    for (const auto& rating : options.ratings) {
+      if (rating.metric == "peak_temperature") options.max_temperature = rating.value + kelvin_offset;
+    }
+  }
   if (auto thermal = reader.block("thermal")) {
     netlist::ParameterReader& block = *thermal;
-    options.network = read_network(block);
+    options.network = read_network(block, options);
     if (auto t = block.optional("initial_temperature", Dimension::temperature(), Bound::Positive)) {
       options.initial_temperature = *t;
       options.has_initial_temperature = true;
     }
     block.finish();
-  }
-  if (auto ratings = reader.block("ratings")) {
-    options.ratings = read_ratings(*ratings, options.pulse_curves);
   }
   return options;
 }
@@ -335,8 +447,10 @@ std::unique_ptr<Part> make_thermal_resistor(const netlist::PartSpec& spec, Resis
 }
 
 std::unique_ptr<Part> finish_thermal_resistor(const netlist::PartSpec& spec, netlist::ParameterReader& reader,
-                                              ResistanceLaw law, std::optional<DefiningValue> defining) {
+                                              ResistanceLaw law, std::optional<DefiningValue> defining,
+                                              std::optional<VoltageSoftening> softening) {
   ThermalOptions options = read_thermal_options(reader);
+  options.softening = softening;
   reader.finish();
   return make_thermal_resistor(spec, std::move(law), std::move(options), std::move(defining));
 }

@@ -1,5 +1,6 @@
 #include "netlist/capture.h"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <fstream>
@@ -114,6 +115,7 @@ class CaptureReader {
         split(line, delimiter_of(line), cells_);
         if (!request_.time_header.empty() && cells_.front().text == request_.time_header) {
           header(line, number_of_line);
+          reserve_rows(lines_left(in));
           data = true;
           continue;
         }
@@ -123,6 +125,7 @@ class CaptureReader {
                              "add a header row such as 'time [s],link_plus [V]'");
           }
           header(candidate, candidate_line);
+          reserve_rows(lines_left(in) + 1);
           data = true;
         } else {
           candidate = line;
@@ -201,6 +204,25 @@ class CaptureReader {
     Slot slot{cell, conversion_of(header, where)};
     slots_.push_back(slot);
     capture_.columns.push_back(CaptureColumn{name, header, slot.conversion.dimension, where, {}});
+  }
+
+  // The lines after the stream's position (one more when the last has no line end), counted in a first pass over
+  // the rest of the file: a column grown row by row would leave the copies it outgrew behind in the heap (a
+  // million rows: about as much again as the columns themselves).
+  static std::size_t lines_left(std::ifstream& in) {
+    const std::streampos here = in.tellg();
+    std::size_t lines = 1;
+    std::vector<char> chunk(1 << 16);
+    while (in.read(chunk.data(), static_cast<std::streamsize>(chunk.size())) || in.gcount() > 0) {
+      lines += static_cast<std::size_t>(std::count(chunk.data(), chunk.data() + in.gcount(), '\n'));
+    }
+    in.clear();
+    in.seekg(here);
+    return lines;
+  }
+  void reserve_rows(std::size_t rows) {
+    capture_.times.reserve(rows);
+    for (auto& column : capture_.columns) column.values.reserve(rows);
   }
 
   void row(const std::string& line, int line_number) {

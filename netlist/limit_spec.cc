@@ -19,6 +19,7 @@ std::vector<LimitSpec> read_limits(const Tree& root) {
     LimitSpec limit;
     limit.metric = metric;
     limit.mark = i < block->key_marks.size() ? block->key_marks[i] : block->mark;
+    limit.entry = "limits." + limit.metric;
     if (!entry.is_map()) {
       throw InputError(entry.mark, fmt::format("limit '{}' must be a block with 'min' and/or 'max'", metric),
                        fmt::format("write '{}: {{max: ...}}'", metric));

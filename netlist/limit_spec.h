@@ -24,6 +24,8 @@ struct LimitSpec {
   double margin = 0.0;  // required margin, fraction of |bound|
   std::string source = "limits block";
   std::string rated_part;  // the part whose declared rating this limit is; empty for the case's limits block
+  std::string entry;  // the entry it was written as: "limits.<metric>" or a part's "ratings.<key>"
+  bool protection = false;  // a protective device's operating point (models/part.h, Rating::protection)
   SourceMark mark;  // the metric key
   SourceMark minimum_mark, maximum_mark;
 };

@@ -76,8 +76,12 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
   const auto& shorted = row(matrix, "shorted_link");
   EXPECT_EQ(shorted.expected_word(), "timeout");  // no rise check: only the timeout can catch it
   EXPECT_EQ(shorted.actual_word(), "timeout");
-  EXPECT_FALSE(shorted.resistor_survived);
+  EXPECT_FALSE(shorted.ratings_held);
   EXPECT_FALSE(shorted.pass);
+  // The broken rating is named with the data-sheet entry it came from and where the case writes it.
+  EXPECT_TRUE(contains(shorted.broken_rating, "r_pre.")) << shorted.broken_rating;
+  EXPECT_TRUE(contains(shorted.broken_rating, "ratings.")) << shorted.broken_rating;
+  EXPECT_TRUE(contains(shorted.broken_rating, "sequence_bad_design.yaml:")) << shorted.broken_rating;
   // Into the short the resistor takes I²·R from the second contact touching (k_neg, 10 ms) until the fault at
   // the 2 s timeout opens the path (no opening delay): I = 410 V over 15 Ohm + 80 mOhm source + 2 × 0.3 mOhm
   // contacts + 1 mOhm short (Ohm's and Joule's laws, docs/references.md [R-Ohm-Joule]) — 22.06 kJ. The link
@@ -89,7 +93,7 @@ TEST(Faults, BadlyDesignedCaseShowsFailingRows) {
   EXPECT_FALSE(row(matrix, "missing_capacitance").applicable);
   EXPECT_TRUE(contains(row(matrix, "missing_capacitance").note, "too-fast check is off"))
       << row(matrix, "missing_capacitance").note;
-  EXPECT_FALSE(row(matrix, "oversize_capacitance").resistor_survived);
+  EXPECT_FALSE(row(matrix, "oversize_capacitance").ratings_held);
   const auto& reversed = row(matrix, "reversed_connection");
   EXPECT_FALSE(reversed.applicable);
   EXPECT_TRUE(reversed.pass);
@@ -147,7 +151,7 @@ TEST(Faults, ResultsDoNotDependOnTheNumberOfThreads) {
   const std::string csv = linkrise::app::matrix_csv(one);
   const std::string header = csv.substr(0, csv.find('\n'));
   const std::set<std::string> words{"scenario", "expected", "actual", "applicable",
-                                    "resistor_survived", "pass", "note"};
+                                    "ratings_held", "broken_rating", "pass", "note"};
   for (std::size_t start = 0, end = 0; end != std::string::npos; start = end + 1) {
     end = header.find(',', start);
     const std::string column = header.substr(start, end == std::string::npos ? end : end - start);

@@ -9,6 +9,8 @@
 #include <vector>
 
 #include "analysis/energy_audit.h"
+#include "analysis/limits.h"
+#include "analysis/metrics.h"
 #include "analysis/part_metrics.h"
 #include "tests/circuit_fixture.h"
 
@@ -96,3 +98,52 @@ TEST(Pulses, APrechargeIsJudgedAgainstThePartsCurveInTheCircuit) {
   EXPECT_NEAR(ratings.back().value, 1.0, 1e-12);
 }
 }  // namespace
+
+// A data-sheet curve states the element's thermal impedance: Z_th(t) = (T_max − T_amb)/P_max(t)
+// ([R-pulse-curve], docs/references.md). An adiabatic element of 3 J/K limited to a 150 K rise may take
+// E = 450 J at any length (Z_th = t/C), so every row gives back C = 3 J/K, and Z_th(10 ms) = 10 ms/3 J/K.
+TEST(PulseCurve, TheCurveFixesTheElementHeatCapacity) {
+  PulseCurve adiabatic{PulseCurve::Measure::Energy, false, {1e-3, 10e-3, 100e-3}, {450.0, 450.0, 450.0}};
+  std::size_t row = 9;
+  EXPECT_NEAR(linkrise::models::element_heat_capacity_from_curve(adiabatic, 150.0, &row), 3.0, 1e-12);
+  EXPECT_NEAR(linkrise::models::curve_thermal_impedance(adiabatic, 1, 150.0), 10e-3 / 3.0, 1e-15);
+  // A real curve rises with the length (the body takes heat): the shortest row decides, C = 20 J/150 K.
+  PulseCurve wirewound{PulseCurve::Measure::Energy, false, {1e-3, 100e-3, 1.0}, {20.0, 120.0, 400.0}};
+  EXPECT_NEAR(linkrise::models::element_heat_capacity_from_curve(wirewound, 150.0, &row), 20.0 / 150.0, 1e-12);
+  EXPECT_EQ(row, 0u);
+  // A power curve: P_max(t) directly, Z_th = rise/P, C = P·t/rise.
+  PulseCurve film{PulseCurve::Measure::PeakPower, false, {1e-3, 1e-2}, {3000.0, 600.0}};
+  EXPECT_NEAR(linkrise::models::curve_thermal_impedance(film, 1, 150.0), 0.25, 1e-15);
+  EXPECT_NEAR(linkrise::models::element_heat_capacity_from_curve(film, 150.0, &row), 3000.0 * 1e-3 / 150.0, 1e-15);
+}
+
+TEST(PulseCurve, TheVerdictNamesTheRowsThatDecide) {
+  PulseCurve curve{PulseCurve::Measure::Energy, false, {1e-3, 100e-3, 1.0}, {20.0, 120.0, 400.0}};
+  EXPECT_EQ(curve.rows_at(30e-3), "rows 1–2 (1 ms 20 J … 100 ms 120 J)");
+  EXPECT_EQ(curve.rows_at(0.5e-3), "row 1 (1 ms 20 J), held below it");
+  EXPECT_EQ(curve.rows_at(3.0), "rows 2–3 (100 ms 120 J … 1 s 400 J), extended beyond the last row");
+}
+
+// A PTC's capacitance per switching: an RC charge from 0 to V puts C·V through the part while V stands across it
+// at the start ([R-RC-charge]). The pulse ends where its heat falls to 1e-4 of the peak (i to 1 % of i0), so the
+// charge it counts is 99 % of C·V: 400 V into 1 mF through 100 Ohm reads 0.99 mF, above a 0.9 mF rating.
+TEST(Pulses, ThePulsesChargeOverItsVoltageIsTheCapacitanceSwitched) {
+  linkrise::testing::Simulation sim(
+      "ground: gnd\n"
+      "parts:\n"
+      "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 400 V}\n"
+      "  - {name: r1, kind: resistor, nodes: [plus, link], resistance: 100 Ohm,"
+      " ratings: {max_switching_capacitance: 0.9 mF}}\n"
+      "  - {name: c1, kind: capacitor, nodes: [link, gnd], capacitance: 1 mF}\n"
+      "run: {duration: 1 s}\n");
+  const auto result = sim.tight(1e-9, 1e-10).run();
+  const auto audit = linkrise::analysis::audit_energy(sim.circuit, result);
+  const auto metrics = linkrise::analysis::resistive_metrics(sim.circuit, result, audit, sim.circuit.find_part("r1"));
+  EXPECT_NEAR(metrics.switched_capacitance, 0.99e-3, 2e-3 * 0.99e-3);
+  auto limits = linkrise::analysis::judge_limits(linkrise::analysis::rating_limits(sim.circuit),
+                                                  linkrise::analysis::part_metrics(sim.circuit, result, audit, std::nan("")));
+  ASSERT_EQ(limits.size(), 1u);
+  EXPECT_FALSE(limits[0].pass);
+  EXPECT_EQ(limits[0].metric, "r1.switched_capacitance");
+  EXPECT_NE(limits[0].origin.find("ratings.max_switching_capacitance at test.yaml:"), std::string::npos) << limits[0].origin;
+}

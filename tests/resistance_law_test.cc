@@ -227,6 +227,27 @@ TEST(PtcParametric, RejectsBadParameters) {
   EXPECT_NE(error.find("blend_width_kelvin = 10"), std::string::npos) << error;
 }
 
+// R25 and R_min apart (IEC 60738-1 terms [mem], [R-PTC]): 130 Ω at 25 °C falling to R_min = 100 Ω at 70 °C.
+TEST(PtcParametric, ColdRegionRunsFromR25DownToTheMinimumResistance) {
+  auto parameters = ptc_parameters;
+  parameters.cold_resistance = 130.0;
+  parameters.minimum_kelvin = 343.15;
+  const auto law = made<PtcParametric>(parameters);
+  EXPECT_NEAR(law.resistance(298.15), 130.0, 130.0 * 1e-12);
+  EXPECT_NEAR(law.resistance(343.15 + 1.0 + 1e-9), 100.0, 1e-9);  // just past the corner at T_Rmin
+  EXPECT_NEAR(law.resistance(393.15), 200.0, 200.0 * 1e-12);     // the switch point is unchanged
+  // Log-linear in between [derived]: halfway (320.65 K) ln R = ln 100 + ln(1.3)/2.
+  EXPECT_NEAR(law.resistance(320.65), 100.0 * std::sqrt(1.3), 1e-9);
+  // Falling through the cold region, with the slope the law states.
+  EXPECT_LT(law.derivative(320.65), 0.0);
+  EXPECT_NEAR(law.derivative(320.65) / law.resistance(320.65), -std::log(1.3) / 45.0, 1e-12);
+  parameters.cold_resistance = 250.0;  // above 2·R_min: not a cold resistance
+  EXPECT_NE(refused<PtcParametric>(parameters).find("cold_resistance = 250"), std::string::npos);
+  parameters.cold_resistance = 130.0;
+  parameters.minimum_kelvin = 389.0;  // on the knee's corner
+  EXPECT_NE(refused<PtcParametric>(parameters).find("minimum_kelvin = 389"), std::string::npos);
+}
+
 // --- Log-linear table -------------------------------------------------------------------------------
 
 TEST(TableLogLinear, ReproducesExponentialBetweenPoints) {
@@ -266,11 +287,15 @@ TEST(ResistanceLaw, EveryDerivativeMatchesFiniteDifferences) {
   laws.push_back(made<NtcBeta>(NtcBetaParameters{.reference_resistance = 10.0, .beta_kelvin = 3000.0}));
   laws.push_back(made<NtcSteinhartHart>(quoted_fit));
   laws.push_back(made<PtcParametric>(ptc_parameters));
+  auto cold = ptc_parameters;
+  cold.cold_resistance = 130.0;
+  cold.minimum_kelvin = 343.15;
+  laws.push_back(made<PtcParametric>(cold));
   laws.push_back(made<TableLogLinear>(
       std::vector<TablePoint>{{250.0, 30.0}, {300.0, 20.0}, {400.0, 80.0}}));
   // Temperatures avoid the table's interior point (300 K), where the slope legitimately jumps.
   for (const auto& law : laws)
-    for (double kelvin : {260.0, 298.15, 350.0, 388.9, 389.68, 390.5, 393.15, 399.0})
+    for (double kelvin : {260.0, 298.15, 320.0, 342.5, 343.15, 343.9, 350.0, 388.9, 389.68, 390.5, 393.15, 399.0})
       expect_derivative_matches(law, kelvin, 1e-6);
   // Including inside the PTC's saturation blend window.
   const auto ptc = made<PtcParametric>(ptc_parameters);

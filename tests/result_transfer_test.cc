@@ -89,7 +89,8 @@ TEST(ResultTransfer, ADetectionRowAndItsFindingsComeBackWhole) {
   row.energy = 12.5;
   row.energy_rating = kNaN;
   row.end_time = 1.154;
-  row.resistor_survived = false;
+  row.ratings_held = false;
+  row.broken_rating = "r_pre.energy = 700 J above its max 600 J (ratings.pulse_energy at c.yaml:9:7)";
   row.pass = false;
   row.rating_margins = {{"r_pre.peak_temperature max (rating)", 0.5}, {"r_pre.energy max (rating)", kNaN}};
   row.link_time = {0.0, 0.001, 0.002};
@@ -138,7 +139,8 @@ TEST(ResultTransfer, ADetectionRowAndItsFindingsComeBackWhole) {
                back.end_time},
               {row.detection_time, row.peak_temperature, row.temperature_rating, row.energy, row.energy_rating,
                row.end_time});
-  EXPECT_EQ(back.resistor_survived, row.resistor_survived);
+  EXPECT_EQ(back.ratings_held, row.ratings_held);
+  EXPECT_EQ(back.broken_rating, row.broken_rating);
   EXPECT_EQ(back.pass, row.pass);
   ASSERT_EQ(back.rating_margins.size(), 2u);
   EXPECT_EQ(back.rating_margins[0], row.rating_margins[0]);

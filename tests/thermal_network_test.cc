@@ -217,5 +217,41 @@ TEST(ThermalNetwork, RejectsBadParameters) {
   EXPECT_NE(refused(std::vector<FosterTerm>{}).find("terms.size()"), std::string::npos);
 }
 
+TEST(ThermalNetwork, ThermalImpedanceMatchesTheStepResponseOfEveryNetwork) {
+  // Z_th(t) in closed form (the eigenmodes of the 2×2 system for the two-node network, [R-thermal-network])
+  // against a 1 W step integrated by RK4 with h = τ_min/400 (relative error far below 1e-8).
+  const auto two = made(two_node);
+  const auto adiabatic_body = made(TwoNodeParameters{.element_heat_capacity = 0.4,
+                                                     .element_to_body_resistance = 3.0,
+                                                     .body_heat_capacity = 25.0,
+                                                     .body_to_ambient_resistance =
+                                                         std::numeric_limits<double>::infinity()});
+  const auto one = made(OneNodeParameters{.heat_capacity = 15.5, .thermal_resistance = 2.0});
+  for (const auto* network : {&two, &adiabatic_body, &one}) {
+    for (double t : {0.01, 0.3, 2.0, 40.0}) {
+      const int steps = static_cast<int>(std::ceil(t / 0.003)) + 10;
+      const auto run = integrate(*network, constant(1.0), ambient, t, steps);
+      const double rise = network->element_temperature(run.states, ambient) - ambient;
+      EXPECT_NEAR(network->thermal_impedance(t), rise, 1e-8 * rise + 1e-12) << network->state_count() << " t = " << t;
+    }
+  }
+  // The limits every network obeys: adiabatic at first, Z → t/C1; the series sum at steady state.
+  EXPECT_NEAR(two.thermal_impedance(1e-6), 1e-6 / 2.0, 1e-6 * 1e-6);
+  EXPECT_NEAR(two.thermal_impedance(1e5), 3.3, 1e-9);
+  // An adiabatic body: after the element settles to the body, everything heats as one, Z → t/(C1 + C2) + R12·C2²/(C1+C2)².
+  const double t = 2000.0, c1 = 0.4, c2 = 25.0;
+  EXPECT_NEAR(adiabatic_body.thermal_impedance(t), t / (c1 + c2) + 3.0 * c2 * c2 / ((c1 + c2) * (c1 + c2)), 1e-9 * t);
+  EXPECT_NEAR(made(foster_terms).thermal_impedance(5.0), foster_impedance(5.0), 1e-12);
+}
+
+TEST(ThermalNetwork, OnlyTheTwoNodeNetworkHasABody) {
+  const auto two = made(two_node);
+  EXPECT_TRUE(two.has_body());
+  EXPECT_FALSE(made(foster_terms).has_body());
+  const std::vector<double> states{ambient + 40.0, ambient + 10.0};
+  EXPECT_DOUBLE_EQ(two.body_temperature(states, ambient), ambient + 10.0);
+  EXPECT_DOUBLE_EQ(two.element_temperature(states, ambient), ambient + 40.0);
+}
+
 }  // namespace
 }  // namespace linkrise::models

@@ -35,7 +35,9 @@ void add_verdict(nlohmann::json& summary, const analysis::Evaluation& evaluation
                       {"required_margin", quantity(100.0 * limit.required_margin, "%")},
                       {"judged", limit.judged},
                       {"pass", limit.pass},
-                      {"source", limit.source}});
+                      {"source", limit.source},
+                      {"origin", limit.origin},
+                      {"detail", limit.detail}});
   }
   summary["limits"] = limits;
   nlohmann::json metrics = nlohmann::json::object();

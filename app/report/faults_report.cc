@@ -133,14 +133,14 @@ void add_resistor_table(HtmlReport& report, const DetectionMatrix& matrix) {
   table.id = "resistor-stress";
   table.caption = fmt::format("{}: peak temperature and energy per scenario", matrix.resistor);
   table.columns = {"scenario", "peak temperature", "margin to rating", "energy", "share of energy rating",
-                   "within ratings"};
+                   "every rating held"};
   table.numeric_columns = {1, 2, 3};
   for (const auto& row : matrix.rows) {
     if (!row.applicable) continue;
     table.rows.push_back({row.scenario, display_metric(row.peak_temperature, "degC"), temperature_margin(row),
                           display_metric(row.energy, "J"), share_bar(row.energy, row.energy_rating),
-                          row.resistor_survived ? "yes" : "NO"});
-    table.row_tones.push_back(row.resistor_survived ? Tone::Plain : Tone::Fail);
+                          row.ratings_held ? "yes" : "NO"});
+    table.row_tones.push_back(row.ratings_held ? Tone::Plain : Tone::Fail);
   }
   if (table.rows.empty()) {
     report.paragraph("No scenario was simulated.");

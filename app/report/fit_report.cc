@@ -52,13 +52,18 @@ ReportTable correlation_table(const FitResult& fit) {
 }  // namespace
 
 std::vector<MeasuredCurve> fit_curves(const FitResult& fit) {
-  std::vector<MeasuredCurve> curves = measured_curves(fit.measured, fit.time_offset);
-  for (std::size_t s = 0; s < curves.size(); ++s) {
-    MeasuredCurve& curve = curves[s];
-    curve.simulated_times = curve.measured_times;
-    curve.simulated = fit.signals[s].simulated;
-    curve.residuals.resize(curve.measured.size());
-    for (std::size_t r = 0; r < curve.measured.size(); ++r) curve.residuals[r] = curve.simulated[r] - curve.measured[r];
+  std::vector<MeasuredCurve> curves;
+  for (const auto& signal : fit.signals) {
+    MeasuredCurve curve;
+    curve.name = signal.name;
+    curve.unit = signal.unit;
+    curve.measured_times = signal.measured.times;
+    curve.measured = signal.measured.values;
+    curve.simulated_times = signal.simulated.times;
+    curve.simulated = signal.simulated.values;
+    curve.residual_times = signal.residual.times;
+    curve.residuals = signal.residual.values;
+    curves.push_back(std::move(curve));
   }
   return curves;
 }
@@ -69,8 +74,8 @@ std::string fit_report_html(const FitResult& fit) {
   report.facts({{"capture", fmt::format("{} ({} rows, {} signals, {} values; {} rows beside switching instants "
                                         "left out)", fit.capture_file, fit.rows, fit.signals.size(),
                                         fit.residual_count, fit.left_out_rows)},
-                {"method", "weighted nonlinear least squares (Levenberg–Marquardt, GSL), bounds by a logistic map, "
-                           "Jacobian by central differences"},
+                {"method", "weighted nonlinear least squares (Levenberg–Marquardt on the normal equations, GSL), "
+                           "bounds by a logistic map, Jacobian by central differences"},
                 {"stopped", fmt::format("{} after {} iterations ({} runs)", fit.stop_reason, fit.iterations,
                                         fit.simulations)},
                 {"time offset", netlist::format_si(fit.time_offset, "s") + " (case time at the capture's zero)"}});

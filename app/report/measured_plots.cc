@@ -38,7 +38,8 @@ void add_measured_plots(HtmlReport& report, const std::vector<MeasuredCurve>& cu
     residual.y_label = "simulated − measured";
     residual.y_unit = curve.unit;
     residual.height = 240;
-    residual.series.push_back(Series{"residual", curve.measured_times, curve.residuals, "none", 1.0});
+    const auto& times = curve.residual_times.empty() ? curve.measured_times : curve.residual_times;
+    residual.series.push_back(Series{"residual", times, curve.residuals, "none", 1.0});
     residual.reference_lines.push_back(ReferenceLine{0.0, "0"});
     report.line_plot(std::move(residual),
                      fmt::format("{}: residual at the capture's times; structure in it is what the model misses",

@@ -760,6 +760,8 @@ void add_evaluation(RunReportInput& input, const analysis::Evaluation& evaluatio
     row.pass = limit.pass;
     row.judged = limit.judged;
     row.source = limit.source;
+    if (!limit.origin.empty()) row.source += "; " + limit.origin;
+    if (!limit.detail.empty()) row.source += " — " + limit.detail;
     assessment.rows.push_back(row);
   }
   for (const auto& metric : evaluation.metrics.list()) {

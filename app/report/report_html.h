@@ -163,7 +163,8 @@ struct MeasuredCurve {
   std::string name, unit;
   std::vector<double> measured_times, measured;
   std::vector<double> simulated_times, simulated;
-  std::vector<double> residuals;  // simulated − measured at measured_times; empty: not drawn
+  std::vector<double> residuals;  // simulated − measured at residual_times; empty: not drawn
+  std::vector<double> residual_times;  // empty: measured_times
 };
 
 struct RunReportInput {

@@ -101,7 +101,7 @@ std::string faults_table(const VariantComparison& comparison) {
   std::vector<std::string> verdict{"matrix"};
   for (const auto& matrix : comparison.matrices) verdict.push_back(matrix.pass() ? "pass" : "fail");
   rows.push_back(verdict);
-  return "fault scenarios (outcome per variant; FAIL: not the expected outcome, or the resistor's rating broken)\n" +
+  return "fault scenarios (outcome per variant; FAIL: not the expected outcome, or a part rating broken)\n" +
          text_table(header, rows);
 }
 }  // namespace

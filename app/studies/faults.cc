@@ -374,7 +374,7 @@ void expect_from_case(Planned& p, const analysis::ChargePath& path, const std::v
   }
   if (p.run_stall && p.run_stall->applicable) note += "; the run: " + p.run_stall->explanation;
   p.row.note = note + (p.row.note.empty() ? "" : "; " + p.row.note);
-  p.row.pass = p.row.actual == p.row.expected && p.row.resistor_survived;
+  p.row.pass = p.row.actual == p.row.expected && p.row.ratings_held;
 }
 
 // The row shows the run's outcome with the first attempt that ended in it, and that attempt's fault time, so
@@ -400,6 +400,13 @@ void take_attempt(DetectionRow& row, const solver::SequenceReport& report) {
   if (!earlier.empty()) row.note += (row.note.empty() ? "" : "; ") + earlier;
 }
 
+// "<metric> = <value> above its max <limit> (<entry> at <place>)": the rating a fault row broke, for its note.
+std::string describe_broken(const analysis::JudgedLimit& limit) {
+  return fmt::format("{} = {} above its {} {} ({})", limit.metric, analysis::format_metric(limit.value, limit.unit),
+                     analysis::bound_word(limit.bound), analysis::format_metric(limit.limit, limit.unit),
+                     limit.origin.empty() ? limit.source : limit.origin);
+}
+
 void run_row(Planned& p) {
   DetectionRow& row = p.row;
   CaseRun run(*p.spec);
@@ -419,19 +426,23 @@ void run_row(Planned& p) {
   if (row.scenario == "nominal") p.path = analysis::measure_charge_path(run.result().steps, report);
   row.peak_temperature = evaluation.metrics.value(sequence.resistor + ".peak_temperature");
   row.energy = evaluation.metrics.value(sequence.resistor + ".energy");
+  double worst = std::numeric_limits<double>::infinity();
   for (const auto& limit : evaluation.limits) {
     if (limit.rated_part.empty()) continue;
     row.rating_margins.emplace_back(constraint_name(limit), constraint_margin(limit));
+    if (limit.judged && !limit.pass && !limit.protection) {  // a fuse melting in a fault is protection at work
+      row.ratings_held = false;
+      if (limit.relative_margin < worst) {
+        worst = limit.relative_margin;
+        row.broken_rating = describe_broken(limit);
+      }
+    }
+    // The resistor's temperature and energy are shown beside their ratings in every row.
+    if (limit.rated_part != sequence.resistor) continue;
+    if (limit.metric == sequence.resistor + ".peak_temperature") row.temperature_rating = limit.limit;
+    if (limit.metric == sequence.resistor + ".energy") row.energy_rating = limit.limit;
   }
-  for (const auto& limit : evaluation.limits) {
-    if (limit.rated_part != sequence.resistor) continue;  // only the resistor's own ratings
-    bool temperature = limit.metric == sequence.resistor + ".peak_temperature";
-    bool energy = limit.metric == sequence.resistor + ".energy";
-    if (!temperature && !energy) continue;
-    (temperature ? row.temperature_rating : row.energy_rating) = limit.limit;
-    if (limit.judged && !limit.pass) row.resistor_survived = false;
-  }
-  row.pass = row.actual == row.expected && row.resistor_survived;
+  row.pass = row.actual == row.expected && row.ratings_held;
 }
 
 std::string against(double value, double rating, const std::string& unit) {
@@ -582,7 +593,7 @@ std::vector<std::string> failure_reasons(const DetectionRow& row) {
   std::vector<std::string> reasons;
   if (!row.applicable || row.pass) return reasons;
   if (row.actual != row.expected) reasons.push_back(fmt::format("ended '{}' instead of '{}'", row.actual_word(), row.expected_word()));
-  if (!row.resistor_survived) reasons.push_back("the resistor exceeded its rating before the fault was cleared");
+  if (!row.ratings_held) reasons.push_back("a part rating was broken: " + row.broken_rating);
   return reasons;
 }
 
@@ -612,14 +623,15 @@ std::string matrix_csv(const DetectionMatrix& matrix) {
   auto number = [](double value) { return csv_number(value); };
   std::string out =
       "scenario,expected,actual,applicable,attempt [1],attempts [1],detection_time [s],end_time [s],"
-      "peak_temperature [degC],temperature_rating [degC],energy [J],energy_rating [J],resistor_survived,pass,note\n";
+      "peak_temperature [degC],temperature_rating [degC],energy [J],energy_rating [J],ratings_held,broken_rating,pass,"
+      "note\n";
   for (const auto& row : matrix.rows) {
-    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(),
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}\n", row.scenario, row.expected_word(),
                        row.actual_word(), row.applicable ? "yes" : "no", row.attempt, row.attempts,
                        number(row.detection_time), number(row.end_time),
                        number(row.peak_temperature), number(row.temperature_rating), number(row.energy),
-                       number(row.energy_rating), row.resistor_survived ? "yes" : "no", row.pass ? "yes" : "no",
-                       csv_quoted(row.note));
+                       number(row.energy_rating), row.ratings_held ? "yes" : "no", csv_quoted(row.broken_rating),
+                       row.pass ? "yes" : "no", csv_quoted(row.note));
   }
   return out;
 }
@@ -640,7 +652,8 @@ nlohmann::json detection_matrix_json(const DetectionMatrix& matrix) {
                     {"temperature_rating", quantity(row.temperature_rating, "degC")},
                     {"energy", quantity(row.energy, "J")},
                     {"energy_rating", quantity(row.energy_rating, "J")},
-                    {"resistor_survived", row.resistor_survived},
+                    {"ratings_held", row.ratings_held},
+                    {"broken_rating", row.broken_rating},
                     {"pass", row.pass},
                     {"note", row.note}});
   }

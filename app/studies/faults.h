@@ -54,7 +54,10 @@ struct DetectionRow {
   double temperature_rating = std::numeric_limits<double>::quiet_NaN();
   double energy = std::numeric_limits<double>::quiet_NaN();  // J, pre-charge resistor over the run
   double energy_rating = std::numeric_limits<double>::quiet_NaN();
-  bool resistor_survived = true;
+  /// Every part rating judged in the scenario's run held (the resistor's, a contactor's, a fuse's: one engine,
+  /// analysis/limits.h); `broken_rating` names the worst one that did not, with its data-sheet entry and value.
+  bool ratings_held = true;
+  std::string broken_rating;
   bool pass = true;
   /// Every part rating judged in the scenario's run (retries included): "<part>.<metric> max" and its relative
   /// margin beyond the required one (NaN when not judged). The design search reads these.

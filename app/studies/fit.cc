@@ -4,15 +4,17 @@
 #include <cmath>
 #include <exception>
 #include <filesystem>
+#include <functional>
 #include <stdexcept>
 
 #include <Eigen/Dense>
 #include <fmt/format.h>
 #include <gsl/gsl_cdf.h>
 #include <gsl/gsl_errno.h>
-#include <gsl/gsl_multifit_nlinear.h>
+#include <gsl/gsl_multilarge_nlinear.h>
 
 #include "app/evaluation/case_run.h"
+#include "app/output/decimation.h"
 #include "app/output/json_fields.h"
 #include "netlist/case_document.h"
 #include "netlist/case_rewrite.h"
@@ -27,6 +29,7 @@ std::string error_display(const FittedParameter& parameter, double value);
 constexpr double kDifferenceStep = 1e-3;  // of |p| (of the bound range for the time offset or p near 0)
 constexpr double kStepTolerance = 1e-7;   // GSL's xtol on the internal variables
 constexpr double kGradientTolerance = 1e-9;
+constexpr int kPlotColumns = 2048;  // a plot is 720 px wide: thinned curves stay finer than any plot draws them
 
 double logistic(double u) { return 1.0 / (1.0 + std::exp(-u)); }
 
@@ -47,9 +50,10 @@ struct FitProblem::Impl {
   std::vector<double> sigmas;  // per matched signal
   std::size_t rows = 0;
   long simulations = 0;
-  std::size_t left_out = 0;    // rows beside a switching instant in the last run (their residuals are 0)
-  std::vector<bool> skipped;   // which rows, in the last run
-  std::vector<double> lower_residuals, upper_residuals;
+  std::size_t block_rows = 1;
+  std::size_t left_out = 0;    // rows beside a switching instant in the last residuals() (their residuals are 0)
+  std::vector<char> skip_low, skip_high;        // per row of one block: left out in a difference run
+  std::vector<double> lower_block, upper_block;  // one block's residuals at either side of a difference
 
   explicit Impl(const FitRequest& request);
   double offset_at(const std::vector<double>& p) const {
@@ -63,8 +67,18 @@ struct FitProblem::Impl {
     }
     return changes;
   }
+  netlist::Case case_at(const std::vector<double>& p) const { return document.with(overrides_at(p)).validate(); }
   void residuals(const std::vector<double>& p, double* out);
-  void leave_out_switching(const std::vector<solver::TimelineEntry>& timeline, double offset, double* out);
+  std::size_t residual_block(const netlist::Case& at, double offset, std::size_t first, std::size_t count,
+                             double* out, std::size_t stride, std::vector<char>& skip);
+  std::size_t mark_switching_rows(const std::vector<solver::TimelineEntry>& timeline, std::size_t first,
+                                  std::size_t count, std::vector<char>& skip) const;
+  std::size_t left_out_at(const std::vector<double>& p);
+  struct Differences;
+  Differences differences_at(const std::vector<double>& p) const;
+  void jacobian_block(const Differences& sides, std::size_t first, std::size_t count, double* jac);
+  void for_each_jacobian_block(const std::vector<double>& p,
+                               const std::function<void(std::size_t first, std::size_t count, const double* jac)>& use);
   void check_parameters();
   void choose_weights();
 };
@@ -86,8 +100,7 @@ FitProblem::Impl::Impl(const FitRequest& request)
   for (const auto& signal : measured.signals) columns.push_back(signal.waveform_column);
   check_parameters();
   choose_weights();
-  lower_residuals.resize(rows * columns.size());
-  upper_residuals.resize(rows * columns.size());
+  block_rows = std::max<std::size_t>(request.block_rows, 1);
 }
 
 // Every fitted path must hold a quantity of its start's unit, and the run must cover the capture at any offset.
@@ -172,59 +185,141 @@ void FitProblem::Impl::choose_weights() {
   }
 }
 
-// One run at p; the matched signals at the capture's times (shifted by the offset, held at the run's ends).
+// The residuals at p, block by block: each block of rows is one run of the whole case with output at those rows'
+// times only, so no run holds more than a block of simulated values.
 void FitProblem::Impl::residuals(const std::vector<double>& p, double* out) {
-  const netlist::Case at = document.with(overrides_at(p)).validate();
+  const netlist::Case at = case_at(p);
   const double offset = offset_at(p);
-  std::vector<double> times(rows);
-  for (std::size_t r = 0; r < rows; ++r) {
-    times[r] = std::clamp(measured.capture.times[r] + offset, 0.0, at.run.duration);
+  std::vector<char> skip;
+  left_out = 0;
+  ++simulations;  // a run over all rows, made in blocks
+  for (std::size_t first = 0; first < rows; first += block_rows) {
+    left_out += residual_block(at, offset, first, std::min(block_rows, rows - first), out + first, rows, skip);
+  }
+}
+
+// One run of the case `at` with output at the capture rows [first, first + count) (shifted by the offset, held at
+// the run's ends): residual r of signal s into out[s·stride + r]. A run always covers the whole duration, so its
+// steps, and the values at a row, do not depend on how the rows are cut into blocks. Returns the rows left out.
+std::size_t FitProblem::Impl::residual_block(const netlist::Case& at, double offset, std::size_t first,
+                                             std::size_t count, double* out, std::size_t stride,
+                                             std::vector<char>& skip) {
+  std::vector<double> times(count);
+  for (std::size_t r = 0; r < count; ++r) {
+    times[r] = std::clamp(measured.capture.times[first + r] + offset, 0.0, at.run.duration);
   }
   const CaseRun run(at, [&](solver::Options& options) {
     options.sample.reset();
     options.output_times = std::move(times);
     options.output_columns = columns;
   });
-  ++simulations;
   if (run.solver_failed()) throw std::runtime_error(run.result().message);
   const solver::Waveform& samples = run.result().samples;
   if (samples.row_count() == 0) throw std::runtime_error("the run recorded no output at the capture's times");
+  const std::size_t left = mark_switching_rows(run.result().timeline, first, count, skip);
   for (std::size_t s = 0; s < columns.size(); ++s) {
     const auto& values = measured.capture.columns[measured.signals[s].capture_column].values;
-    for (std::size_t r = 0; r < rows; ++r) {
+    for (std::size_t r = 0; r < count; ++r) {
       // A run the sequence ended early holds its last value.
       const double simulated = samples.value(std::min(r, samples.row_count() - 1), static_cast<int>(s));
-      out[s * rows + r] = (simulated - values[r]) / sigmas[s];
+      out[s * stride + r] = skip[r] ? 0.0 : (simulated - values[first + r]) / sigmas[s];
     }
   }
-  leave_out_switching(run.result().timeline, offset, out);
+  return left;
 }
 
 // At a switching instant an ideal switch makes the simulated value jump: a row beside it changes by the whole
 // jump when the instant moves past it, which no derivative can follow, and a fit would stall with a row on the
 // wrong side. So the rows the instant can reach over the time offset's bounds, and one more on either side,
 // count as zero (left out); the rows after it fix the offset. For scheduled events the set is the same in every
-// run, so the sum of squares stays smooth in the parameters.
-void FitProblem::Impl::leave_out_switching(const std::vector<solver::TimelineEntry>& timeline, double offset,
-                                           double* out) {
-  const double earliest = offset_fitted ? spec.time_offset->lower : offset;
-  const double latest = offset_fitted ? spec.time_offset->upper : offset;
-  std::vector<bool>& skip = skipped;
-  skip.assign(rows, false);
+// run, so the sum of squares stays smooth in the parameters. Marks the rows [first, first + count) in `skip`.
+std::size_t FitProblem::Impl::mark_switching_rows(const std::vector<solver::TimelineEntry>& timeline,
+                                                  std::size_t first, std::size_t count,
+                                                  std::vector<char>& skip) const {
+  const double earliest = offset_fitted ? spec.time_offset->lower : measured.time_offset;
+  const double latest = offset_fitted ? spec.time_offset->upper : measured.time_offset;
+  skip.assign(count, 0);
   const auto& times = measured.capture.times;
   for (const auto& entry : timeline) {
-    auto first = static_cast<std::size_t>(std::lower_bound(times.begin(), times.end(), entry.time - latest) -
-                                          times.begin());
-    auto last = static_cast<std::size_t>(std::upper_bound(times.begin(), times.end(), entry.time - earliest) -
-                                         times.begin());
-    if (first > 0) --first;
-    for (std::size_t r = first; r <= last && r < rows; ++r) skip[r] = true;
+    auto low = static_cast<std::size_t>(std::lower_bound(times.begin(), times.end(), entry.time - latest) -
+                                        times.begin());
+    const auto high = static_cast<std::size_t>(
+        std::upper_bound(times.begin(), times.end(), entry.time - earliest) - times.begin());
+    if (low > 0) --low;
+    for (std::size_t r = std::max(low, first); r <= high && r < first + count; ++r) skip[r - first] = 1;
   }
-  left_out = 0;
-  for (std::size_t r = 0; r < rows; ++r) {
-    if (!skip[r]) continue;
-    ++left_out;
-    for (std::size_t s = 0; s < columns.size(); ++s) out[s * rows + r] = 0.0;
+  return static_cast<std::size_t>(std::count(skip.begin(), skip.end(), char{1}));
+}
+
+// The rows left out at p, from one run's timeline (a run without output rows).
+std::size_t FitProblem::Impl::left_out_at(const std::vector<double>& p) {
+  const CaseRun run(case_at(p), [&](solver::Options& options) {
+    options.sample.reset();
+    options.output_columns = columns;
+  });
+  ++simulations;
+  if (run.solver_failed()) throw std::runtime_error(run.result().message);
+  std::vector<char> skip;
+  std::size_t left = 0;
+  for (std::size_t first = 0; first < rows; first += block_rows) {
+    left += mark_switching_rows(run.result().timeline, first, std::min(block_rows, rows - first), skip);
+  }
+  return left;
+}
+
+// The two sides of every parameter's central difference (one-sided at a bound): validated once per Jacobian,
+// run once per block.
+struct FitProblem::Impl::Differences {
+  std::vector<netlist::Case> low, high;
+  std::vector<double> low_offset, high_offset, width;
+};
+
+FitProblem::Impl::Differences FitProblem::Impl::differences_at(const std::vector<double>& p) const {
+  Differences sides;
+  for (std::size_t k = 0; k < p.size(); ++k) {
+    const FittedParameter& parameter = parameters[k];
+    const double range = parameter.upper - parameter.lower;
+    const bool offset = parameter.path == "time_offset";
+    const double step = kDifferenceStep * (offset ? range : std::max(std::fabs(p[k]), 1e-3 * range));
+    std::vector<double> low = p, high = p;
+    low[k] = std::max(parameter.lower, p[k] - step);
+    high[k] = std::min(parameter.upper, p[k] + step);
+    sides.low.push_back(case_at(low));
+    sides.high.push_back(case_at(high));
+    sides.low_offset.push_back(offset_at(low));
+    sides.high_offset.push_back(offset_at(high));
+    sides.width.push_back(high[k] - low[k]);
+  }
+  return sides;
+}
+
+// d residual / d p_k of the rows [first, first + count) into jac[(s·count + r)·m + k], two runs per parameter.
+void FitProblem::Impl::jacobian_block(const Differences& sides, std::size_t first, std::size_t count, double* jac) {
+  const std::size_t m = parameters.size(), signals = columns.size();
+  lower_block.resize(signals * count);
+  upper_block.resize(signals * count);
+  for (std::size_t k = 0; k < m; ++k) {
+    residual_block(sides.low[k], sides.low_offset[k], first, count, lower_block.data(), count, skip_low);
+    residual_block(sides.high[k], sides.high_offset[k], first, count, upper_block.data(), count, skip_high);
+    for (std::size_t i = 0; i < signals * count; ++i) {
+      // A row left out at either end has no difference to take (its residual is 0 only at one of them).
+      const bool left = skip_low[i % count] || skip_high[i % count];
+      jac[i * m + k] = left ? 0.0 : (upper_block[i] - lower_block[i]) / sides.width[k];
+    }
+  }
+}
+
+// The Jacobian at p one block of rows at a time: `use` sees each block's rows and forgets them.
+void FitProblem::Impl::for_each_jacobian_block(
+    const std::vector<double>& p, const std::function<void(std::size_t, std::size_t, const double*)>& use) {
+  const Differences sides = differences_at(p);
+  simulations += 2 * static_cast<long>(p.size());
+  std::vector<double> jac;
+  for (std::size_t first = 0; first < rows; first += block_rows) {
+    const std::size_t count = std::min(block_rows, rows - first);
+    jac.assign(columns.size() * count * p.size(), 0.0);
+    jacobian_block(sides, first, count, jac.data());
+    use(first, count, jac.data());
   }
 }
 
@@ -237,26 +332,47 @@ const std::vector<double>& FitProblem::capture_times() const { return impl_->mea
 void FitProblem::residuals(const std::vector<double>& p, double* out) { impl_->residuals(p, out); }
 
 void FitProblem::jacobian(const std::vector<double>& p, double* out) {
-  const std::size_t n = residual_count();
-  for (std::size_t k = 0; k < p.size(); ++k) {
-    const FittedParameter& parameter = impl_->parameters[k];
-    const double range = parameter.upper - parameter.lower;
-    const bool offset = parameter.path == "time_offset";
-    const double step = kDifferenceStep * (offset ? range : std::max(std::fabs(p[k]), 1e-3 * range));
-    std::vector<double> low = p, high = p;
-    low[k] = std::max(parameter.lower, p[k] - step);
-    high[k] = std::min(parameter.upper, p[k] + step);
-    impl_->residuals(low, impl_->lower_residuals.data());
-    const std::vector<bool> skipped_low = impl_->skipped;
-    impl_->residuals(high, impl_->upper_residuals.data());
-    const std::size_t rows = impl_->rows;
-    for (std::size_t i = 0; i < n; ++i) {
-      // A row left out at either end has no difference to take (its residual is 0 only at one of them).
-      const bool left_out = skipped_low[i % rows] || impl_->skipped[i % rows];
-      out[i * p.size() + k] =
-          left_out ? 0.0 : (impl_->upper_residuals[i] - impl_->lower_residuals[i]) / (high[k] - low[k]);
+  const std::size_t m = p.size(), rows = impl_->rows;
+  impl_->for_each_jacobian_block(p, [&](std::size_t first, std::size_t count, const double* jac) {
+    for (std::size_t s = 0; s < impl_->columns.size(); ++s) {
+      std::copy(jac + s * count * m, jac + (s + 1) * count * m, out + (s * rows + first) * m);
     }
+  });
+}
+
+void FitProblem::normal_equations(const std::vector<double>& p, const double* weights, double* jtw, double* jtj) {
+  const std::size_t m = p.size(), rows = impl_->rows;
+  std::fill(jtw, jtw + m, 0.0);
+  std::fill(jtj, jtj + m * m, 0.0);
+  impl_->for_each_jacobian_block(p, [&](std::size_t first, std::size_t count, const double* jac) {
+    for (std::size_t s = 0; s < impl_->columns.size(); ++s) {
+      for (std::size_t r = 0; r < count; ++r) {
+        const double* row = jac + (s * count + r) * m;
+        const double w = weights != nullptr ? weights[s * rows + first + r] : 0.0;
+        for (std::size_t a = 0; a < m; ++a) {
+          jtw[a] += row[a] * w;
+          for (std::size_t b = 0; b <= a; ++b) jtj[a * m + b] += row[a] * row[b];
+        }
+      }
+    }
+  });
+  for (std::size_t a = 0; a < m; ++a) {
+    for (std::size_t b = 0; b < a; ++b) jtj[b * m + a] = jtj[a * m + b];
   }
+}
+
+void FitProblem::jacobian_times(const std::vector<double>& p, const double* direction, double* out) {
+  const std::size_t m = p.size(), rows = impl_->rows;
+  impl_->for_each_jacobian_block(p, [&](std::size_t first, std::size_t count, const double* jac) {
+    for (std::size_t s = 0; s < impl_->columns.size(); ++s) {
+      for (std::size_t r = 0; r < count; ++r) {
+        const double* row = jac + (s * count + r) * m;
+        double sum = 0.0;
+        for (std::size_t k = 0; k < m; ++k) sum += row[k] * direction[k];
+        out[s * rows + first + r] = sum;
+      }
+    }
+  });
 }
 
 namespace {
@@ -286,6 +402,7 @@ struct Callbacks {
 int residual_callback(const gsl_vector* u, void* data, gsl_vector* f) {
   auto* c = static_cast<Callbacks*>(data);
   try {
+    if (f->stride != 1) throw std::logic_error("the residual vector is not contiguous");
     c->problem->residuals(c->parameters_of(u), f->data);
     return GSL_SUCCESS;
   } catch (...) {
@@ -294,15 +411,31 @@ int residual_callback(const gsl_vector* u, void* data, gsl_vector* f) {
   }
 }
 
-int jacobian_callback(const gsl_vector* u, void* data, gsl_matrix* J) {
+// GSL's large-problem interface never asks for J itself: with CblasTrans it wants Jᵀ·w (p values) and JᵀJ,
+// with CblasNoTrans J·d (n values). The problem gives them in p; J in u is J in p times dp/du column by column.
+int normal_callback(CBLAS_TRANSPOSE_t transpose, const gsl_vector* u, const gsl_vector* in, void* data,
+                    gsl_vector* out, gsl_matrix* normal) {
   auto* c = static_cast<Callbacks*>(data);
   try {
-    const std::size_t n = J->size1, m = J->size2;
-    if (J->tda != m) throw std::logic_error("the Jacobian's rows are not contiguous");
-    c->problem->jacobian(c->parameters_of(u), J->data);  // d r / d p, row by row
-    for (std::size_t k = 0; k < m; ++k) {
-      const double slope = c->slope(u, k);
-      for (std::size_t i = 0; i < n; ++i) J->data[i * m + k] *= slope;
+    const std::vector<double> p = c->parameters_of(u);
+    const std::size_t m = p.size();
+    std::vector<double> slopes(m);
+    for (std::size_t k = 0; k < m; ++k) slopes[k] = c->slope(u, k);
+    if (transpose == CblasNoTrans) {
+      if (in->stride != 1 || out->stride != 1) throw std::logic_error("the vectors are not contiguous");
+      std::vector<double> direction(m);
+      for (std::size_t k = 0; k < m; ++k) direction[k] = slopes[k] * gsl_vector_get(in, k);
+      c->problem->jacobian_times(p, direction.data(), out->data);
+      return GSL_SUCCESS;
+    }
+    if (in != nullptr && in->stride != 1) throw std::logic_error("the residual vector is not contiguous");
+    std::vector<double> jtw(m), jtj(m * m);
+    c->problem->normal_equations(p, in != nullptr ? in->data : nullptr, jtw.data(), jtj.data());
+    for (std::size_t a = 0; a < m; ++a) {
+      if (out != nullptr) gsl_vector_set(out, a, slopes[a] * jtw[a]);
+      for (std::size_t b = 0; b < m && normal != nullptr; ++b) {
+        gsl_matrix_set(normal, a, b, slopes[a] * slopes[b] * jtj[a * m + b]);
+      }
     }
     return GSL_SUCCESS;
   } catch (...) {
@@ -320,22 +453,18 @@ std::string stop_reason(int status, int info) {
   return fmt::format("stopped: {}", gsl_strerror(status));
 }
 
-// Covariance in p from J in u (column k of J_p is column k of J_u over dp_k/du_k), scaled by s²; a
+// Covariance in p from JᵀJ in u (column k of J_p is column k of J_u over dp_k/du_k), scaled by s²; a
 // pseudo-inverse, so parameters the data cannot separate give large, not infinite, errors.
-Eigen::MatrixXd covariance(const gsl_matrix* J, const std::vector<double>& slopes, double variance) {
-  const std::size_t m = J->size2;
-  Eigen::MatrixXd normal = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(m), static_cast<Eigen::Index>(m));
-  for (std::size_t i = 0; i < J->size1; ++i) {
-    for (std::size_t a = 0; a < m; ++a) {
-      const double ja = gsl_matrix_get(J, i, a) / slopes[a];
-      for (std::size_t b = 0; b <= a; ++b) normal(a, b) += ja * gsl_matrix_get(J, i, b) / slopes[b];
+Eigen::MatrixXd covariance(const gsl_matrix* normal_in_u, const std::vector<double>& slopes, double variance) {
+  const std::size_t m = normal_in_u->size1;
+  Eigen::MatrixXd normal(static_cast<Eigen::Index>(m), static_cast<Eigen::Index>(m));
+  for (std::size_t a = 0; a < m; ++a) {
+    for (std::size_t b = 0; b <= a; ++b) {
+      normal(a, b) = normal(b, a) = gsl_matrix_get(normal_in_u, a, b) / (slopes[a] * slopes[b]);
     }
   }
   Eigen::VectorXd scale(static_cast<Eigen::Index>(m));
-  for (std::size_t a = 0; a < m; ++a) {
-    for (std::size_t b = 0; b < a; ++b) normal(b, a) = normal(a, b);
-    scale(a) = normal(a, a) > 0.0 ? 1.0 / std::sqrt(normal(a, a)) : 1.0;
-  }
+  for (std::size_t a = 0; a < m; ++a) scale(a) = normal(a, a) > 0.0 ? 1.0 / std::sqrt(normal(a, a)) : 1.0;
   const Eigen::MatrixXd scaled = scale.asDiagonal() * normal * scale.asDiagonal();
   const Eigen::MatrixXd inverse = scaled.completeOrthogonalDecomposition().pseudoInverse();
   return variance * (scale.asDiagonal() * inverse * scale.asDiagonal());
@@ -406,21 +535,22 @@ std::string fitted_case_text(const FitResult& fit, const FitProblem::Impl& impl)
 
 namespace {
 
-// GSL's trust-region solver (Levenberg–Marquardt, QR) over the problem in the internal variables; the
+// GSL's trust-region solver for large problems (Levenberg–Marquardt on the normal equations, Cholesky) over the
+// problem in the internal variables: it keeps the residual vector and a trial one, and JᵀJ (m × m), never J; the
 // workspace is freed on every path.
 class TrustRegion {
  public:
   TrustRegion(Callbacks& callbacks, std::size_t n, std::size_t m) : u_(gsl_vector_alloc(m)) {
     fdf_.f = residual_callback;
-    fdf_.df = jacobian_callback;
+    fdf_.df = normal_callback;
     fdf_.fvv = nullptr;
     fdf_.n = n;
     fdf_.p = m;
     fdf_.params = &callbacks;
-    gsl_multifit_nlinear_parameters settings = gsl_multifit_nlinear_default_parameters();
-    settings.trs = gsl_multifit_nlinear_trs_lm;
-    settings.solver = gsl_multifit_nlinear_solver_qr;
-    work_ = gsl_multifit_nlinear_alloc(gsl_multifit_nlinear_trust, &settings, n, m);
+    gsl_multilarge_nlinear_parameters settings = gsl_multilarge_nlinear_default_parameters();
+    settings.trs = gsl_multilarge_nlinear_trs_lm;
+    settings.solver = gsl_multilarge_nlinear_solver_cholesky;
+    work_ = gsl_multilarge_nlinear_alloc(gsl_multilarge_nlinear_trust, &settings, n, m);
     for (std::size_t k = 0; k < m; ++k) {
       const auto& p = callbacks.problem->parameters()[k];
       const double s = (p.start - p.lower) / (p.upper - p.lower);
@@ -429,7 +559,7 @@ class TrustRegion {
   }
   ~TrustRegion() {
     gsl_vector_free(u_);
-    gsl_multifit_nlinear_free(work_);
+    gsl_multilarge_nlinear_free(work_);
   }
   TrustRegion(const TrustRegion&) = delete;
   TrustRegion& operator=(const TrustRegion&) = delete;
@@ -437,27 +567,26 @@ class TrustRegion {
   /// GSL's status; `info` says which test stopped a converged run (1 step, 2 gradient).
   int solve(std::size_t iterations, int& info) {
     gsl_error_handler_t* previous = gsl_set_error_handler_off();
-    int status = gsl_multifit_nlinear_init(u_, &fdf_, work_);
+    int status = gsl_multilarge_nlinear_init(u_, &fdf_, work_);
     if (status == GSL_SUCCESS) {
-      status = gsl_multifit_nlinear_driver(iterations, kStepTolerance, kGradientTolerance, 0.0, nullptr, nullptr,
-                                           &info, work_);
+      status = gsl_multilarge_nlinear_driver(iterations, kStepTolerance, kGradientTolerance, 0.0, nullptr, nullptr,
+                                             &info, work_);
     }
     gsl_set_error_handler(previous);
     return status;
   }
-  const gsl_multifit_nlinear_workspace* work() const { return work_; }
-  gsl_multifit_nlinear_workspace* work() { return work_; }
+  const gsl_multilarge_nlinear_workspace* work() const { return work_; }
 
  private:
-  gsl_multifit_nlinear_fdf fdf_{};
+  gsl_multilarge_nlinear_fdf fdf_{};
   gsl_vector* u_;
-  gsl_multifit_nlinear_workspace* work_ = nullptr;
+  gsl_multilarge_nlinear_workspace* work_ = nullptr;
 };
 
 // Fitted values, rows left out, residual variance, t quantile, covariance and correlation at the solution.
-void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& callbacks, TrustRegion& region) {
-  const gsl_vector* position = gsl_multifit_nlinear_position(region.work());
-  const gsl_vector* residual = gsl_multifit_nlinear_residual(region.work());
+void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& callbacks, const TrustRegion& region) {
+  const gsl_vector* position = gsl_multilarge_nlinear_position(region.work());
+  const gsl_vector* residual = gsl_multilarge_nlinear_residual(region.work());
   const std::size_t n = residual->size, m = fit.parameters.size();
   const std::vector<double> p = callbacks.parameters_of(position);
   std::vector<double> slopes(m);
@@ -465,12 +594,11 @@ void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& call
     fit.parameters[k].value = p[k];
     slopes[k] = callbacks.slope(position, k);
   }
-  impl.residuals(p, impl.lower_residuals.data());  // which rows are left out at the solution itself
-  fit.left_out_rows = impl.left_out;
+  fit.left_out_rows = impl.left_out_at(p);  // which rows are left out at the solution itself
   fit.time_offset = impl.offset_at(p);
   double sum = 0.0;
   for (std::size_t i = 0; i < n; ++i) sum += gsl_vector_get(residual, i) * gsl_vector_get(residual, i);
-  const std::size_t used = n - impl.left_out * impl.columns.size();
+  const std::size_t used = n - fit.left_out_rows * impl.columns.size();
   if (used <= m) {
     throw InputError(netlist::SourceMark{impl.measured.capture.file, impl.measured.capture.first_data_line, 1},
                      "too few values remain beside the switching instants to fit the parameters",
@@ -479,13 +607,35 @@ void take_solution(FitResult& fit, FitProblem::Impl& impl, const Callbacks& call
   fit.degrees_of_freedom = used - m;
   fit.residual_variance = sum / static_cast<double>(used - m);
   fit.t_quantile = gsl_cdf_tdist_Pinv(0.975, static_cast<double>(used - m));
-  summarise(fit, covariance(gsl_multifit_nlinear_jac(region.work()), slopes, fit.residual_variance));
+  summarise(fit, covariance(region.work()->JTJ, slopes, fit.residual_variance));
 }
 
-// Per signal: the simulated values at the solution (measured + σ·residual) and the residual RMS over the rows
-// used.
+// A series at the capture's rows, value(r) at row r, thinned for a plot (peak-preserving: each of kPlotColumns
+// columns of the whole capture keeps its first, lowest, highest and last sample), in case time. Thinned block by
+// block, so no series of the capture's length is made (a column that straddles two blocks keeps up to eight).
+FitCurve thinned(const std::vector<double>& times, const std::function<double(std::size_t)>& value, double offset,
+                 std::size_t block_rows) {
+  FitCurve curve;
+  std::vector<double> x, y;
+  for (std::size_t first = 0; first < times.size(); first += block_rows) {
+    const std::size_t count = std::min(block_rows, times.size() - first);
+    x.assign(times.begin() + static_cast<std::ptrdiff_t>(first),
+             times.begin() + static_cast<std::ptrdiff_t>(first + count));
+    y.resize(count);
+    for (std::size_t r = 0; r < count; ++r) y[r] = value(first + r);
+    for (const Point& point : decimate_min_max(x, y, times.front(), times.back(), kPlotColumns)) {
+      curve.times.push_back(point.x + offset);
+      curve.values.push_back(point.y);
+    }
+  }
+  return curve;
+}
+
+// Per signal: the residual RMS over the rows used, and for the report the measured curve, the simulated one at
+// the solution (measured + σ·residual) and their difference, thinned.
 void take_signals(FitResult& fit, const FitProblem::Impl& impl, const gsl_vector* residual) {
   const double used_rows = static_cast<double>(impl.rows - fit.left_out_rows);
+  const auto& times = impl.measured.capture.times;
   for (std::size_t s = 0; s < impl.columns.size(); ++s) {
     FittedSignal signal;
     signal.name = impl.measured.signals[s].name;
@@ -493,14 +643,19 @@ void take_signals(FitResult& fit, const FitProblem::Impl& impl, const gsl_vector
     signal.sigma = impl.sigmas[s];
     signal.capture_column = impl.measured.signals[s].capture_column;
     const auto& values = impl.measured.capture.columns[signal.capture_column].values;
-    signal.simulated.resize(impl.rows);
     double squares = 0.0;
     for (std::size_t r = 0; r < impl.rows; ++r) {
       const double scaled = gsl_vector_get(residual, s * impl.rows + r);
-      signal.simulated[r] = values[r] + scaled * signal.sigma;
       squares += scaled * scaled;
     }
     signal.residual_rms = signal.sigma * std::sqrt(squares / used_rows);
+    const auto simulated = [&](std::size_t r) {
+      return values[r] + gsl_vector_get(residual, s * impl.rows + r) * signal.sigma;
+    };
+    signal.measured = thinned(times, [&](std::size_t r) { return values[r]; }, fit.time_offset, impl.block_rows);
+    signal.simulated = thinned(times, simulated, fit.time_offset, impl.block_rows);
+    signal.residual = thinned(times, [&](std::size_t r) { return simulated(r) - values[r]; }, fit.time_offset,
+                              impl.block_rows);
     fit.signals.push_back(std::move(signal));
   }
 }
@@ -533,11 +688,11 @@ FitResult run_fit(const FitRequest& request) {
       return fit;
     }
   }
-  fit.iterations = static_cast<int>(gsl_multifit_nlinear_niter(region.work()));
+  fit.iterations = static_cast<int>(gsl_multilarge_nlinear_niter(region.work()));
   fit.stop_reason = stop_reason(status, info);
   if (status == GSL_EMAXITER) fit.warnings.push_back("the fit " + fit.stop_reason + "; raise fit: iterations");
   take_solution(fit, impl, callbacks, region);
-  take_signals(fit, impl, gsl_multifit_nlinear_residual(region.work()));
+  take_signals(fit, impl, gsl_multilarge_nlinear_residual(region.work()));
   fit.simulations = impl.simulations;
   fit.fitted_case = fitted_case_text(fit, impl);
   fit.measured = std::move(impl.measured);

@@ -6,9 +6,11 @@
 // solver reports every matched signal at the capture's times shifted by the time offset (case time = capture
 // time + offset), from CVODE's dense output (solver::Options::output_times). Each residual is
 // (simulated − measured)/σ of its signal (the fit block's noise, else the span of the measured signal).
-// GSL's gsl_multifit_nlinear (trust region, Levenberg–Marquardt, QR) minimises the sum of squares in internal
-// variables u with p = min + (max − min)/(1 + e^(−u)), so the bounds hold and parameters of any size are alike.
-// The Jacobian is taken by central differences in p (one-sided at a bound), two runs per parameter.
+// GSL's gsl_multilarge_nlinear (trust region, Levenberg–Marquardt on the normal equations, Cholesky) minimises
+// the sum of squares in internal variables u with p = min + (max − min)/(1 + e^(−u)), so the bounds hold and
+// parameters of any size are alike. The Jacobian is taken by central differences in p (one-sided at a bound),
+// two runs per parameter; JᵀJ and Jᵀr are summed block by block of capture rows (a run per block, with output at
+// those rows only), so neither J nor a run's output is ever held for the whole capture.
 // At the solution: the covariance s²·(JᵀJ)⁻¹ with J in p and s² = Σr²/(n − m) (n residuals, m parameters),
 // standard errors, 95 % intervals p ± t(0.975, n − m)·se, the correlation matrix; two parameters with
 // |r| > kConfoundedCorrelation are reported as not told apart by the capture.
@@ -28,6 +30,10 @@ namespace linkrise::app {
 /// combination of them, as a voltage alone fixes only R·C of an RC charge.
 inline constexpr double kConfoundedCorrelation = 0.95;
 
+/// Capture rows per run: a run reports one block of the capture's rows (65536 rows of two signals: 2 MB), so the
+/// fit never holds a run's output, or a Jacobian, for the whole capture.
+inline constexpr std::size_t kFitBlockRows = 65536;
+
 struct FitRequest {
   std::string case_file;
   std::vector<netlist::Override> settings;
@@ -35,6 +41,7 @@ struct FitRequest {
   /// Where the fitted case will be written: its measured block then names the capture relative to that folder,
   /// so the fitted case finds it; empty: the path is kept as written.
   std::string fitted_case_folder;
+  std::size_t block_rows = kFitBlockRows;  // the tests cut short captures into several blocks with it
 };
 
 struct FittedParameter {
@@ -46,12 +53,19 @@ struct FittedParameter {
   bool at_bound = false;  // within 0.1 % of the bound range of a bound: the interval is not meaningful there
 };
 
+/// A curve thinned for a plot, in case time (SI values).
+struct FitCurve {
+  std::vector<double> times, values;
+};
+
 struct FittedSignal {
   std::string name, unit;
   double sigma = 0.0;          // its weight's scale, SI
   double residual_rms = 0.0;   // SI
   std::size_t capture_column = 0;
-  std::vector<double> simulated;  // at the capture's times, at the solution
+  // At the solution, thinned for the report's plots (peak-preserving, a few thousand points each): a capture of a
+  // million rows is never held as a simulated copy.
+  FitCurve measured, simulated, residual;  // residual: simulated − measured
 };
 
 struct FitResult {
@@ -93,6 +107,11 @@ class FitProblem {
   void residuals(const std::vector<double>& p, double* out);
   /// d residual_i / d p_k by central differences (one-sided at a bound) into out[i·m + k], m parameters.
   void jacobian(const std::vector<double>& p, double* out);
+  /// Jᵀ·w (m values) and JᵀJ (m × m, row-major) at p for w of residual_count() values (null: Jᵀ·w = 0), block
+  /// by block: J is never held for more than one block of rows.
+  void normal_equations(const std::vector<double>& p, const double* weights, double* jtw, double* jtj);
+  /// J·d (residual_count() values) at p for d of m values, block by block.
+  void jacobian_times(const std::vector<double>& p, const double* direction, double* out);
 
   struct Impl;
   Impl& impl() { return *impl_; }

@@ -99,7 +99,8 @@ void save_row(ByteWriter& out, const DetectionRow& row) {
   out.put(static_cast<std::uint64_t>(row.attempts));
   out.put(std::vector<double>{row.detection_time, row.peak_temperature, row.temperature_rating, row.energy,
                               row.energy_rating, row.end_time});
-  put_flag(out, row.resistor_survived);
+  put_flag(out, row.ratings_held);
+  out.put(row.broken_rating);
   put_flag(out, row.pass);
   out.put(static_cast<std::uint64_t>(row.rating_margins.size()));
   for (const auto& [constraint, margin] : row.rating_margins) {
@@ -128,7 +129,8 @@ DetectionRow load_row(ByteReader& in) {
   row.energy = numbers.at(3);
   row.energy_rating = numbers.at(4);
   row.end_time = numbers.at(5);
-  row.resistor_survived = flag(in);
+  row.ratings_held = flag(in);
+  row.broken_rating = in.text();
   row.pass = flag(in);
   row.rating_margins.resize(in.count());
   for (auto& [constraint, margin] : row.rating_margins) {
