@@ -20,12 +20,15 @@
 //     arc_voltage_rise·(t − t_part) (common practice, from memory: a sealed high-voltage contactor with magnetic
 //     blow-out clears its rated break at a few hundred volts within a few milliseconds);
 //   minimum_arc_current (A, > 0, default 0.5 A): below it no arc strikes (a clean break) and a burning arc goes out;
-//   parting_time (s, >= 0, default 10 us): once no arc burns (a clean break, or after the arc went out) the gap's
+//   parting_time (s, >= 0, default 10 us): once an arc went out (or at every opening with 'arc: off') the gap's
 //     resistance rises exponentially to open_resistance over this time, ln R = (1 − p)·ln R_start + p·ln R_open
-//     with p going 0 -> 1 linearly; R_start = closed_resistance at a clean break, U/minimum_arc_current after an
-//     arc (the gap's voltage is continuous). It gives the circuit's inductance a path while the gap recovers, so
-//     the last ampere or microampere of an inductive current is not forced through 100 MOhm (i·R_open, a
-//     kilovolt or megavolt spike); 0 opens at once (the ideal switch of earlier versions, with its spikes).
+//     with p going 0 -> 1 linearly; R_start = U/minimum_arc_current after an arc (the gap's voltage is
+//     continuous), closed_resistance with 'arc: off'. It gives the circuit's inductance a path while the gap
+//     recovers, so the last ampere of an inductive current is not forced through 100 MOhm (i·R_open, a kilovolt
+//     or megavolt spike); 0 opens at once (the ideal switch of earlier versions, with its spikes). With the arc
+//     model a clean break (below minimum_arc_current) opens at once and the driver settles the fast states, as
+//     for any switching: a ramp there asked a femtosecond cable current through open gaps to follow 25 decades
+//     of gap resistance in 10 us, which the solver could not (its spike, i·R_open of microamperes, stays).
 //   ratings (optional block), judged as limits through Part::ratings():
 //     breaking_capacity: rows {voltage, current, direction: both | forward | reverse (default both)} — the data
 //       sheet's permitted break current at a circuit voltage (forward: current entering the first node); the
@@ -43,7 +46,7 @@
 // Heat: v·i (W), the arc's U·|i| included.
 // Roots: p = 1 ends a ramp (mode open); s·i = minimum_arc_current (falling) puts an arc out (mode clearing).
 // Commands: close; open and bounce from closed strike an opening or a bounce-gap arc when the current just
-//   before the switching is at least minimum_arc_current (else a clean ramp); an open during a bounce-gap arc
+//   before the switching is at least minimum_arc_current (else a clean break: at once, a ramp with 'arc: off'); an open during a bounce-gap arc
 //   turns it into an opening arc.
 // Extra signals: closed [1] (0 or 1), arcing [1] (0 none, 1 bounce-gap arc, 2 opening arc), arc_voltage [V] (U while
 //   an arc burns, else 0), arc_energy [J] (E, cumulative).

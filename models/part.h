@@ -309,6 +309,9 @@ class Part {
   ModeChange settle(const Point& point, const Layout& layout, int* modes) const {
     return do_settle(point, layout, modes);
   }
+  /// True while the part's conductance sweeps through decades by itself in its present mode (a contact's parting
+  /// ramp): the solver then refreshes its Jacobian at every step, since one from a step earlier is decades off.
+  bool sweeping(const Layout& layout, const int* modes) const { return do_sweeping(layout, modes); }
   /// The crossing direction root `index` reacts to: +1 rising, -1 falling, 0 both.
   int root_direction(int index) const { return do_root_direction(index); }
   /// A scheduled or controller action (close, open for switches; enable, disable for loads).
@@ -347,6 +350,7 @@ class Part {
   virtual void do_roots(const Point&, const Layout&, double*) const {}
   virtual ModeChange do_on_root(int, int, const Layout&, int*) const { return {}; }
   virtual ModeChange do_settle(const Point&, const Layout&, int*) const { return {}; }
+  virtual bool do_sweeping(const Layout&, const int*) const { return false; }
   virtual int do_root_direction(int) const { return 0; }
   virtual ModeChange do_command(netlist::Action action, const Layout&, int*, double* states,
                                 const Point* before) const;

@@ -313,6 +313,19 @@ class Driver {
     // error of a step h is about h²/2 · |x|/τ_S², within rtol for h = sqrt(2·rtol)·τ_S; a tenth of that.
     const double first_step = slow_time > 0.0 ? 0.1 * std::sqrt(2.0 * options_.relative_tolerance) * slow_time : 0.0;
     check(CVodeSetInitStep(handles_.memory, first_step), "CVodeSetInitStep", t);
+    refresh_jacobian_while_sweeping(t);
+  }
+  // While a part's conductance sweeps through decades (a contact's parting ramp), a Jacobian kept over CVODE's
+  // usual 20 to 50 steps is decades off: Newton then stops on a wrong point that passes its convergence test
+  // (a cable current left microamperes away from its quasi-steady value, with a rate of 1e8 A/s that no later
+  // step can follow). Every step gets a fresh one then; CVODE's defaults (SUNDIALS 6) otherwise.
+  void refresh_jacobian_while_sweeping(double t) {
+    bool sweeping = false;
+    for (int p = 0; p < circuit_.part_count() && !sweeping; ++p) {
+      sweeping = circuit_.part(p).sweeping(circuit_.layout(p), modes_.data());
+    }
+    check(CVodeSetJacEvalFrequency(handles_.memory, sweeping ? 1 : 51), "CVodeSetJacEvalFrequency", t);
+    check(CVodeSetLSetupFrequency(handles_.memory, sweeping ? 1 : 20), "CVodeSetLSetupFrequency", t);
   }
   // Fast states to quasi-steady; returns the slowest remaining time constant τ_S, or 0 when nothing moved.
   double settle(double t);
