@@ -187,6 +187,18 @@ std::string part_definition(const std::string& metric) {
     return "largest melting integral of the fuse over the run: the share of its melting I²t or time-current "
            "curve used (1 = melted open)";
   }
+  if (metric == "arc_energy") return "the largest arc energy ∫U·|i| dt of one opening or bounce gap of the contactor";
+  if (metric == "total_arc_energy") return "the arc energy of all the contactor's openings and bounce gaps";
+  if (metric == "arc_time") return "how long the arc with the largest energy burned (the interruption time)";
+  if (metric == "break_current") return "the current the worst opening broke (just before the contacts parted)";
+  if (metric == "break_voltage") return "the voltage across the worst opening's gap once it had recovered";
+  if (metric == "break_use") {
+    return "the worst opening's current as a share of what its breaking-capacity row permits (100 % = at the "
+           "rating; not reached without an arcing opening)";
+  }
+  if (metric == "break_row") return "the breaking-capacity row the worst opening was judged against (0: none covers it)";
+  if (metric == "making_current") return "the largest current peak right after the contacts touched (every touch)";
+  if (metric == "making_voltage_step") return "the largest voltage across the contacts just before they touched";
   if (metric == "average_power") {
     return "heat dissipated in the part over the run divided by the run's length (it depends on the length "
            "chosen; a continuous power rating is judged against duty_average_power)";

@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "analysis/pulses.h"
+#include "models/contactor.h"
 #include "models/thermal_resistor.h"
 
 namespace linkrise::analysis {
@@ -29,6 +30,20 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
     list.push_back({"pulse_curve_use", "1", *pulse_curve_use, pulse_curve_detail});
     list.push_back({"worst_pulse_start", "s", *worst_pulse_start});
     list.push_back({"worst_pulse_length", "s", *worst_pulse_length});
+  }
+  if (contact) {
+    const double none = std::nan("");
+    list.push_back({"arc_energy", "J", contact->arc_energy});
+    list.push_back({"total_arc_energy", "J", contact->total_arc_energy});
+    list.push_back({"arc_time", "s", contact->arc_time});
+    list.push_back({"break_current", "A", contact->break_current.value_or(none)});
+    list.push_back({"break_voltage", "V", contact->break_voltage.value_or(none)});
+    if (judges_breaks) {
+      list.push_back({"break_use", "1", contact->break_use.value_or(none)});
+      list.push_back({"break_row", "1", contact->break_row ? static_cast<double>(*contact->break_row) : none});
+    }
+    list.push_back({"making_current", "A", contact->making_current.value_or(none)});
+    list.push_back({"making_voltage_step", "V", contact->making_voltage_step.value_or(none)});
   }
   return list;
 }
@@ -132,6 +147,15 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
         metrics.worst_pulse_length = judged->pulse.length();
         metrics.pulse_curve_detail = describe(*judged);
       }
+    }
+    const ContactColumns contact{current, voltage, rows.column(p.name() + ".closed"), rows.column(p.name() + ".arcing"),
+                                 rows.column(p.name() + "." + models::arc_energy_state)};
+    if (contact.closed >= 0 && contact.arcing >= 0 && contact.arc_energy >= 0) {
+      const auto actuation = p.actuation();
+      const auto capacity = p.breaking_capacity();
+      metrics.judges_breaks = capacity.has_value();
+      metrics.contact =
+          contact_metrics(contact_events(rows, contact, actuation ? actuation->parting_time : 0.0), capacity);
     }
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;

@@ -23,6 +23,9 @@
 //   worst_pulse_length    s     its equivalent rectangular length E/P_peak
 //   average_power         W     heat absorbed over the run divided by the run's length (depends on the chosen
 //                               run length: for reading, not for judging)
+//   (contactors, analysis/contact_events.h) arc_energy J (largest of one arc event), total_arc_energy J,
+//   arc_time s (that event's length), break_current A and break_voltage V (the worst opening's), break_use 1 and
+//   break_row 1 (with a breaking capacity), making_current A and making_voltage_step V (largest over the touches)
 //   duty_average_power    W     heat absorbed over the key-cycle duty (sequence.key_cycles) divided by the duty's
 //                               length: the mean a continuous power rating is judged against (a pulse is judged
 //                               by energy and peak temperature, not by its peak power); NaN without a stated duty
@@ -37,6 +40,7 @@
 #include <string>
 #include <vector>
 
+#include "analysis/contact_events.h"
 #include "analysis/energy_audit.h"
 #include "solver/circuit.h"
 #include "solver/transient.h"
@@ -72,6 +76,8 @@ struct ResistiveMetrics {
   std::string pulse_curve_detail;          // the curve and rows the worst pulse was judged between
   double average_power = 0.0;              // W
   double duty_average_power = std::nan("");  // W; NaN without a stated duty
+  std::optional<ContactMetrics> contact;     // contactors (parts with an arc_energy signal)
+  bool judges_breaks = false;                // the contactor has a breaking capacity
 
   /// The values as named metrics, in the order listed in the header comment.
   std::vector<PartMetric> named() const;

@@ -72,11 +72,12 @@ const char* role_word(Role role) {
   return "unknown";
 }
 
-ModeChange Part::command(netlist::Action action, const Layout& layout, int* modes, double* states) const {
-  return do_command(action, layout, modes, states);
+ModeChange Part::command(netlist::Action action, const Layout& layout, int* modes, double* states,
+                         const Point* before) const {
+  return do_command(action, layout, modes, states, before);
 }
 
-ModeChange Part::do_command(netlist::Action action, const Layout&, int*, double*) const {
+ModeChange Part::do_command(netlist::Action action, const Layout&, int*, double*, const Point*) const {
   return ModeChange{false, fmt::format("part '{}' of kind {} cannot '{}'", name_, kind_, netlist::action_word(action))};
 }
 

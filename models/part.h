@@ -17,6 +17,7 @@
 #include <string>
 #include <vector>
 
+#include "models/breaking_capacity.h"
 #include "models/pulse_curve.h"
 #include "netlist/case.h"
 #include "netlist/parameter_reader.h"
@@ -270,6 +271,8 @@ class Part {
   std::vector<Rating> ratings() const { return do_ratings(); }
   /// The data sheet's pulse curves (resistive parts with them in their ratings block; none otherwise).
   std::vector<PulseCurve> pulse_curves() const { return do_pulse_curves(); }
+  /// The data sheet's breaking capacity (contactors with one in their ratings block; none otherwise).
+  std::optional<BreakingCapacity> breaking_capacity() const { return do_breaking_capacity(); }
 
   Role role() const { return do_role(); }
   /// Actuation data of a switching part; std::nullopt for every other role.
@@ -306,12 +309,18 @@ class Part {
   ModeChange settle(const Point& point, const Layout& layout, int* modes) const {
     return do_settle(point, layout, modes);
   }
+  /// True while the part's conductance sweeps through decades by itself in its present mode (a contact's parting
+  /// ramp): the solver then refreshes its Jacobian at every step, since one from a step earlier is decades off.
+  bool sweeping(const Layout& layout, const int* modes) const { return do_sweeping(layout, modes); }
   /// The crossing direction root `index` reacts to: +1 rising, -1 falling, 0 both.
   int root_direction(int index) const { return do_root_direction(index); }
   /// A scheduled or controller action (close, open for switches; enable, disable for loads).
   /// `states` is the solver's state vector (may be null when only checking that the action applies): a
-  /// command may re-initialise the part's own states, e.g. restart a contact's parting progress.
-  ModeChange command(netlist::Action action, const Layout& layout, int* modes, double* states = nullptr) const;
+  /// command may re-initialise the part's own states, e.g. restart a contact's parting progress. `before` is the
+  /// solved circuit just before the switching (null at the start of a run): what flows through the part then
+  /// (a contact that opens on a current arcs).
+  ModeChange command(netlist::Action action, const Layout& layout, int* modes, double* states = nullptr,
+                     const Point* before = nullptr) const;
 
  protected:
   /// Current entering the positive node (passive convention).
@@ -326,6 +335,7 @@ class Part {
   virtual PowerChannels do_power_channels() const = 0;
   virtual std::vector<Rating> do_ratings() const { return {}; }
   virtual std::vector<PulseCurve> do_pulse_curves() const { return {}; }
+  virtual std::optional<BreakingCapacity> do_breaking_capacity() const { return std::nullopt; }
   virtual Role do_role() const = 0;
   virtual std::optional<Actuation> do_actuation() const { return std::nullopt; }
   virtual std::optional<LoadDemand> do_load_demand() const { return std::nullopt; }
@@ -340,8 +350,10 @@ class Part {
   virtual void do_roots(const Point&, const Layout&, double*) const {}
   virtual ModeChange do_on_root(int, int, const Layout&, int*) const { return {}; }
   virtual ModeChange do_settle(const Point&, const Layout&, int*) const { return {}; }
+  virtual bool do_sweeping(const Layout&, const int*) const { return false; }
   virtual int do_root_direction(int) const { return 0; }
-  virtual ModeChange do_command(netlist::Action action, const Layout&, int*, double* states) const;
+  virtual ModeChange do_command(netlist::Action action, const Layout&, int*, double* states,
+                                const Point* before) const;
   /// Sign applied to current and power in the output: +1 passive, -1 for sources (delivering is positive).
   virtual double do_output_sign() const { return 1.0; }
 

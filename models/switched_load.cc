@@ -96,7 +96,8 @@ class SwitchedLoad final : public Part {
     modes[layout.mode] = wanted;
     return {changed, ""};
   }
-  ModeChange do_command(netlist::Action action, const Layout& layout, int* modes, double*) const override {
+  ModeChange do_command(netlist::Action action, const Layout& layout, int* modes, double*,
+                        const Point*) const override {
     if (action != netlist::Action::Enable && action != netlist::Action::Disable) {
       return {false, fmt::format("load '{}' can only 'enable' or 'disable', not '{}'", name(),
                                  netlist::action_word(action))};

@@ -50,6 +50,7 @@ const char* action_word(Action action) {
   switch (action) {
     case Action::Close: return "close";
     case Action::Open: return "open";
+    case Action::Bounce: return "bounce";
     case Action::Enable: return "enable";
     case Action::Disable: return "disable";
   }
@@ -57,7 +58,8 @@ const char* action_word(Action action) {
 }
 
 const std::vector<Action>& all_actions() {
-  static const std::vector<Action> actions = {Action::Close, Action::Open, Action::Enable, Action::Disable};
+  static const std::vector<Action> actions = {Action::Close, Action::Open, Action::Bounce, Action::Enable,
+                                              Action::Disable};
   return actions;
 }
 
@@ -216,7 +218,7 @@ std::vector<EventSpec> read_events(const Tree& root, const Case& spec) {
       }
       reader.finish();
       if (found != 1) {
-        throw InputError(item.mark, "an event needs exactly one action: close, open, enable or disable",
+        throw InputError(item.mark, "an event needs exactly one action: close, open, bounce, enable or disable",
                          "write e.g. '- {at: 250 ms, close: k_main}'");
       }
       if (spec.find_part(event.target) == nullptr) {

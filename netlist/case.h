@@ -39,9 +39,11 @@ struct PartSpec {
   Tree block_;  // the part's block as written, read only through parameters()
 };
 
-/// What a switching command asks of a part: contactors close and open, loads are enabled and disabled.
-enum class Action { Close, Open, Enable, Disable };
-/// The action as written in a case file and in the timeline ("close", "open", "enable", "disable").
+/// What a switching command asks of a part: contactors close and open, loads are enabled and disabled. A bounce
+/// parts a contactor's contacts for a bounce gap while they close (they touch again at the next close): the gap
+/// is only micrometres wide, so an arc there holds a constant voltage (models/contactor.h).
+enum class Action { Close, Open, Bounce, Enable, Disable };
+/// The action as written in a case file and in the timeline ("close", "open", "bounce", "enable", "disable").
 const char* action_word(Action action);
 /// Every action, in the order above.
 const std::vector<Action>& all_actions();

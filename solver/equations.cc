@@ -111,7 +111,11 @@ bool Equations::solve_network_chord(double time, const double* states, const int
     // LU; a step of the size of the stop alone also ends it.
     double size = step_.norm();
     if (iteration > 0 && previous > 0.0) contraction_ = std::max(contraction_, size / previous);
-    const double left = contraction_ >= 0.0 && contraction_ < 0.5 ? contraction_ / (1.0 - contraction_) : 1.0;
+    // The first step is judged as it is: a rate measured at other states says nothing of an LU that these states
+    // have made stale (a contact's parting ramp moves its conductance by decades between calls).
+    const double left = iteration > 0 && contraction_ >= 0.0 && contraction_ < 0.5
+                            ? contraction_ / (1.0 - contraction_)
+                            : 1.0;
     bool small = true;
     for (int i = 0; i < unknowns_; ++i) {
       double scale = i < nodes ? voltage_scale : current_scale;

@@ -108,7 +108,7 @@ void SequenceController::schedule_close(int part, double coil_time, const std::s
   commands.push_back(Command{touch, part, netlist::Action::Close, fmt::format("{} ({})", why, delay)});
   for (int bounce = 1; bounce <= timing.bounce_count; ++bounce) {
     double gap = touch + (2.0 * bounce - 1.0) * timing.bounce_interval;
-    commands.push_back(Command{gap, part, netlist::Action::Open, fmt::format("contact bounce {} of {}", bounce, timing.bounce_count)});
+    commands.push_back(Command{gap, part, netlist::Action::Bounce, fmt::format("contact bounce {} of {}", bounce, timing.bounce_count)});
     commands.push_back(Command{gap + timing.bounce_interval, part, netlist::Action::Close,
                                fmt::format("contact bounce {} of {} ends", bounce, timing.bounce_count)});
   }

@@ -318,6 +318,19 @@ class Driver {
     // error of a step h is about h²/2 · |x|/τ_S², within rtol for h = sqrt(2·rtol)·τ_S; a tenth of that.
     const double first_step = slow_time > 0.0 ? 0.1 * std::sqrt(2.0 * options_.relative_tolerance) * slow_time : 0.0;
     check(CVodeSetInitStep(handles_.memory, first_step), "CVodeSetInitStep", t);
+    refresh_jacobian_while_sweeping(t);
+  }
+  // While a part's conductance sweeps through decades (a contact's parting ramp), a Jacobian kept over CVODE's
+  // usual 20 to 50 steps is decades off: Newton then stops on a wrong point that passes its convergence test
+  // (a cable current left microamperes away from its quasi-steady value, with a rate of 1e8 A/s that no later
+  // step can follow). Every step gets a fresh one then; CVODE's defaults (SUNDIALS 6) otherwise.
+  void refresh_jacobian_while_sweeping(double t) {
+    bool sweeping = false;
+    for (int p = 0; p < circuit_.part_count() && !sweeping; ++p) {
+      sweeping = circuit_.part(p).sweeping(circuit_.layout(p), modes_.data());
+    }
+    check(CVodeSetJacEvalFrequency(handles_.memory, sweeping ? 1 : 51), "CVodeSetJacEvalFrequency", t);
+    check(CVodeSetLSetupFrequency(handles_.memory, sweeping ? 1 : 20), "CVodeSetLSetupFrequency", t);
   }
   // The ∫i² dt quadratures' tolerances from each part's resistance at the new modes (solver/absolute_tolerances.h).
   void current_squared_tolerances(double t);
@@ -489,6 +502,11 @@ void Driver::harvest_statistics(double t) {
 bool Driver::apply_commands(double t) {
   bool any = false;
   bool first = true;
+  // The circuit just before the switching: a contact that opens on a current arcs (models/contactor.h).
+  std::vector<int> modes_before;
+  std::vector<double> states_before, unknowns_before;
+  models::Point before;
+  std::vector<int> moved;  // switches whose modes the commands changed
   while (!pending_.empty() && pending_.front().time <= t) {
     Command command = pending_.front();
     pending_.erase(pending_.begin());
@@ -496,13 +514,26 @@ bool Driver::apply_commands(double t) {
       // The row before the switching, unless the step that reached t has just recorded it.
       if (result_.steps.row_count() == 0 || result_.steps.times().back() != t) record_step_row(t, x());
       first = false;
+      solve_at(t, x());
+      modes_before = modes_;
+      states_before.assign(x(), x() + states_);
+      unknowns_before = unknowns_;
+      before = equations_.point(t, states_before.data(), modes_before.data(), unknowns_before.data());
     }
     const auto& part = circuit_.part(command.part);
-    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x());
+    auto change = part.command(command.action, circuit_.layout(command.part), modes_.data(), x(), &before);
     if (!change.problem.empty()) throw SolverError(change.problem, t);
     ++result_.statistics.events;
     result_.timeline.push_back(TimelineEntry{t, fmt::format("{} {}", netlist::action_word(command.action), part.name()), command.reason});
     any = any || change.changed;
+    if (change.changed && part.role() == models::Role::Switch) moved.push_back(command.part);
+  }
+  if (!moved.empty()) {
+    // A contact that struck an arc may find the circuit unable to drive the minimum arc current through it (a
+    // parallel path took the current): it settles at once rather than through a root already crossed.
+    solve_at(t, x());
+    models::Point after = equations_.point(t, x(), modes_.data(), unknowns_.data());
+    for (int part : moved) circuit_.part(part).settle(after, circuit_.layout(part), modes_.data());
   }
   if (!first) record_step_row(t, x());  // the row after
   return any;

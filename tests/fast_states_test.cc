@@ -22,7 +22,7 @@ std::string series_case(const std::string& fast_states) {
   return "ground: gnd\n"
          "parts:\n"
          "  - {name: source, kind: dc_source, nodes: [plus, gnd], voltage: 400 V}\n"
-         "  - {name: k, kind: contactor, nodes: [plus, a], closed_resistance: 1 uOhm}\n"
+         "  - {name: k, kind: contactor, nodes: [plus, a], closed_resistance: 1 uOhm, arc: off, parting_time: 0 s}\n"
          "  - {name: r, kind: resistor, nodes: [a, b], resistance: 40 Ohm}\n"
          "  - {name: cable, kind: cable, nodes: [b, out], resistance: 0 Ohm, inductance: 2 uH}\n"
          "  - {name: link, kind: capacitor, nodes: [out, gnd], capacitance: 1 mF}\n"

@@ -83,9 +83,15 @@ TEST(Sizing, BadRequestsAreInputErrors) {
 // call it (no contactor delays, so the contacts touch at the attempt's first sample and part at the sample of the
 // fault), and the short takes the link's place, so the resistor takes n·V²·t/R over n attempts (Ohm's and
 // Joule's laws, docs/references.md [R-Ohm-Joule]). Under a pulse-energy rating E the resistance must be at least
-// n·V²·t/E; 3 attempts of 20 ms at 100 V under 20 J give 30 Ohm.
+// n·V²·t/E; 3 attempts of 20 ms at 100 V under 20 J give 30 Ohm. The test is about the sizing method, so the
+// contacts are ideal switches ('arc: off, parting_time: 0 s'): with the arc model each opening of the shorted path
+// on some 3 A strikes an arc whose voltage takes about 0.35 ms to rise to the source's (models/contactor.h), which
+// the closed form leaves out (measured: 30.15 Ohm, 0.5 % above it).
 TEST(Sizing, ShortedLinkRetriesBoundTheResistanceFromBelow) {
   std::string text = study_test::rc_case_text("");
+  for (const std::string contact : {"closed_resistance: 1 nOhm}", "open_resistance: 1e15 Ohm}"}) {
+    text.replace(text.find(contact), contact.size(), contact.substr(0, contact.size() - 1) + ", arc: off, parting_time: 0 s}");
+  }
   const std::string rated = "resistance: 100 Ohm, ratings: {pulse_energy: 20 J}}";
   text.replace(text.find("resistance: 100 Ohm}"), std::string("resistance: 100 Ohm}").size(), rated);
   text.replace(text.find("  timeout: 2 s\n"), std::string("  timeout: 2 s\n").size(),
@@ -284,7 +290,13 @@ TEST(Sizing, ABadCatalogueIsAnInputErrorAtItsPlace) {
 TEST(Sizing, TheStoredBoatCaseLowerEndIsItsShortedLinkRetryBound) {
   SizingRequest request;
   request.case_file = std::string(LINKRISE_SOURCE_DIR) + "/cases/boat_104s_sizing.yaml";
+  // Ideal contacts, as the closed form assumes: with the arc model the pre-charge and negative contacts part on
+  // some 15 A and arc for about 2 ms more at each attempt (measured: 25.86 Ohm, 14 % above the bound).
   request.settings = {{"pack.initial_soc", "50 %", {}}};
+  for (const char* contact : {"k_neg", "k_pre", "k_main"}) {
+    request.settings.push_back({std::string(contact) + ".arc", "off", {}});
+    request.settings.push_back({std::string(contact) + ".parting_time", "0 s", {}});
+  }
   request.spread = netlist::SizingSpread::Nominal;
   request.catalogue = "";
   request.verify = false;

@@ -1,0 +1,60 @@
+#pragma once
+// The arcs and makings of one contactor, read from its recorded signals (models/contactor.h: closed, arcing,
+// arc_energy): what its breaking, arc-energy and making ratings are judged against.
+//
+// An arc event is a stretch of rows with `arcing` > 0: from the row after the contacts parted to the row before
+// the arc went out (or the contacts touched again). Rows are recorded before and after every switching and state
+// event, so both ends are exact. Its energy is the rise of the contactor's integrated arc energy over the stretch
+// (as accurate as the solver); its time the stretch's length. An opening is an event whose arc is an opening arc
+// (arcing = 2 on some row); a clean break (below the minimum arc current) has no arc and is no event.
+//   current broken: the current through the contacts just before they parted (signed: + enters the first node);
+//   voltage broken: |v| across the gap once it has recovered, parting_time after the arc went out (the row of the
+//     ramp's end; the next row when parting_time is 0): the circuit voltage the open gap holds off.
+// A making is every touch (closed 0 -> 1, a bounce's re-touch included):
+//   making current: |i| at the first peak after the touch (rows while |i| does not fall), within the closure;
+//   voltage step: |v| across the contacts just before they touched.
+// The L/R of the broken circuit is not derived: the run does not separate the circuit's inductance from its
+// resistance at the break (DEVELOPERS.md, Contacts).
+#include <optional>
+#include <vector>
+
+#include "models/breaking_capacity.h"
+#include "solver/waveform.h"
+
+namespace linkrise::analysis {
+
+struct ArcEvent {
+  double start = 0.0, end = 0.0;  // s
+  double energy = 0.0;            // J
+  bool opening = false;           // an opening arc (not a bounce gap's)
+  double current = 0.0;           // A, signed, just before the contacts parted
+  double voltage = 0.0;           // V, |v| across the recovered gap (openings only)
+};
+
+struct ContactEvents {
+  std::vector<ArcEvent> arcs;
+  std::vector<double> making_currents;  // A, one per touch
+  std::vector<double> voltage_steps;    // V, one per touch
+};
+
+/// Column indices of the contactor's signals in `rows`.
+struct ContactColumns {
+  int current = -1, voltage = -1, closed = -1, arcing = -1, arc_energy = -1;
+};
+
+ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& columns, double parting_time);
+
+/// The contactor's figures over the run; values absent (NaN when named) where the run has no such event.
+struct ContactMetrics {
+  double arc_energy = 0.0;        // J, the largest of one event
+  double total_arc_energy = 0.0;  // J
+  double arc_time = 0.0;          // s, of the event with the largest energy
+  std::optional<double> break_current, break_voltage;  // A (magnitude), V: the worst opening's
+  std::optional<double> break_use;                      // 1, with a breaking capacity
+  std::optional<int> break_row;                         // its row (0: none covers it)
+  std::optional<double> making_current, making_voltage_step;  // A, V: the largest over the touches
+};
+
+ContactMetrics contact_metrics(const ContactEvents& events, const std::optional<models::BreakingCapacity>& capacity);
+
+}  // namespace linkrise::analysis
