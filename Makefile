@@ -41,9 +41,12 @@ check-build: deps
 demo: build
 	$(BUILD)/linkrise run cases/demo_storage_rack.yaml -o out/demo --report out/demo/report.html
 
+# Each build's tests keep their temporary files in a folder of their own (GoogleTest reads TEST_TMPDIR), so two
+# suites running at once on one machine never share a file.
 test: build check-build
-	cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
-	cd $(CHECK_BUILD) && ctest --output-on-failure -j $(JOBS)
+	mkdir -p $(BUILD)/test-tmp $(CHECK_BUILD)/test-tmp
+	cd $(BUILD) && TEST_TMPDIR=$(abspath $(BUILD))/test-tmp ctest --output-on-failure -j $(JOBS)
+	cd $(CHECK_BUILD) && TEST_TMPDIR=$(abspath $(CHECK_BUILD))/test-tmp ctest --output-on-failure -j $(JOBS)
 
 # Each fuzz target for FUZZ_SECONDS (default 10 minutes) on the corpus kept in $(CHECK_BUILD)/fuzz-work.
 fuzz: check-build
