@@ -1,0 +1,142 @@
+#include "app/studies/point_table.h"
+
+#include <algorithm>
+#include <cstring>
+#include <limits>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+namespace linkrise::app {
+namespace {
+
+// Bits, not ==: -0.0 and 0.0 print differently and NaN never equals itself.
+std::uint64_t bits_of(double value) {
+  std::uint64_t bits = 0;
+  std::memcpy(&bits, &value, sizeof bits);
+  return bits;
+}
+
+double value_of(std::uint64_t bits) {
+  double value = 0.0;
+  std::memcpy(&value, &bits, sizeof value);
+  return value;
+}
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+}  // namespace
+
+void PointTable::resize(std::size_t count, std::size_t width) {
+  width_ = width;
+  records_.assign(count, Record{});
+  outcomes_.clear();
+  messages_.clear();
+  constant_.assign(width, 0);
+  constant_set_.assign(width, false);
+  dense_.assign(width, {});
+}
+
+std::uint32_t PointTable::outcome_index(const std::string& outcome) {
+  auto it = std::find(outcomes_.begin(), outcomes_.end(), outcome);
+  if (it != outcomes_.end()) return static_cast<std::uint32_t>(it - outcomes_.begin());
+  outcomes_.push_back(outcome);
+  return static_cast<std::uint32_t>(outcomes_.size() - 1);
+}
+
+void PointTable::make_dense(std::size_t column) {
+  std::vector<double>& values = dense_[column];
+  values.assign(records_.size(), kNaN);
+  const double constant = value_of(constant_[column]);
+  for (std::size_t i = 0; i < records_.size(); ++i) {
+    if (records_[i].stored && records_[i].has_values) values[i] = constant;
+  }
+}
+
+void PointTable::set_value(std::size_t i, std::size_t column, double value) {
+  if (dense_[column].empty()) {
+    const std::uint64_t bits = bits_of(value);
+    if (!constant_set_[column]) {
+      constant_[column] = bits;
+      constant_set_[column] = true;
+      return;
+    }
+    if (constant_[column] == bits) return;
+    make_dense(column);
+  }
+  dense_[column][i] = value;
+}
+
+void PointTable::check_width(const PointResult& point) const {
+  if (!point.values.empty() && point.values.size() != width_) {
+    throw std::invalid_argument(fmt::format("a point has {} values for {} columns", point.values.size(), width_));
+  }
+}
+
+void PointTable::store(std::size_t i, const PointResult& point) {
+  check_width(point);
+  Record& record = records_.at(i);
+  record.status = static_cast<std::uint8_t>(point.status);
+  record.verdict = static_cast<std::uint8_t>(point.verdict);
+  record.outcome = outcome_index(point.outcome);
+  record.has_values = !point.values.empty();
+  record.stored = true;
+  auto message = std::lower_bound(messages_.begin(), messages_.end(), i,
+                                  [](const auto& entry, std::size_t index) { return entry.first < index; });
+  const bool had = message != messages_.end() && message->first == i;
+  if (!point.message.empty()) {
+    if (had) {
+      message->second = point.message;
+    } else {
+      messages_.insert(message, {i, point.message});
+    }
+  } else if (had) {
+    messages_.erase(message);
+  }
+  for (std::size_t c = 0; record.has_values && c < width_; ++c) set_value(i, c, point.values[c]);
+}
+
+void PointTable::push_back(const PointResult& point) {
+  if (records_.empty() && width_ == 0) resize(0, point.values.size());
+  check_width(point);  // before the table grows: a rejected point leaves it as it was
+  records_.emplace_back();
+  for (auto& values : dense_) {
+    if (!values.empty()) values.push_back(kNaN);
+  }
+  store(records_.size() - 1, point);
+}
+
+double PointTable::value(std::size_t i, std::size_t column) const {
+  const Record& record = records_[i];
+  if (!record.has_values) return kNaN;
+  return dense_[column].empty() ? value_of(constant_[column]) : dense_[column][i];
+}
+
+PointResult PointTable::operator[](std::size_t i) const {
+  const Record& record = records_[i];
+  PointResult point;
+  if (!record.stored) return point;
+  point.status = static_cast<CaseEvaluation::Status>(record.status);
+  point.verdict = static_cast<analysis::Verdict>(record.verdict);
+  point.outcome = outcomes_[record.outcome];
+  auto message = std::lower_bound(messages_.begin(), messages_.end(), i,
+                                  [](const auto& entry, std::size_t index) { return entry.first < index; });
+  if (message != messages_.end() && message->first == i) point.message = message->second;
+  if (record.has_values) {
+    point.values.resize(width_);
+    for (std::size_t c = 0; c < width_; ++c) point.values[c] = value(i, c);
+  }
+  return point;
+}
+
+PointResult PointTable::at(std::size_t i) const {
+  if (i >= records_.size()) throw std::out_of_range(fmt::format("point {} of {}", i, records_.size()));
+  return (*this)[i];
+}
+
+std::size_t PointTable::constant_columns() const {
+  return static_cast<std::size_t>(
+      std::count_if(dense_.begin(), dense_.end(), [](const std::vector<double>& values) { return values.empty(); }));
+}
+
+}  // namespace linkrise::app
