@@ -1,6 +1,6 @@
 // The compact point table (app/studies/point_table.h): a point reads back as it was stored, numbers bit for bit
 // (IEEE 754 [R-IEEE754]: -0.0, NaN and the infinities are distinct bit patterns a text output spells
-// differently), whichever order the points arrive in and whether a column stays constant or not.
+// differently), whichever order the points arrive in and whichever form a column takes (constant, coded, dense).
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -34,7 +34,8 @@ void expect_same(const PointResult& got, const PointResult& want) {
 TEST(PointTable, PointsReadBackBitForBitInAnyStoringOrder) {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   const double inf = std::numeric_limits<double>::infinity();
-  // Column 0 stays constant, column 1 differs only by the sign of zero, column 2 at the last point stored.
+  // Column 0 stays constant, column 1 differs only by the sign of zero, column 2 at the last point stored; all but
+  // column 0 become coded (a few distinct values).
   std::vector<PointResult> points = {point_with({3.0, 0.0, 1.0, nan}), point_with({3.0, -0.0, 1.0, inf}, "timeout"),
                                      point_with({3.0, 0.0, 1.0, -inf}), point_with({3.0, 0.0, 2.5, 1e-300})};
   points[2].status = CaseEvaluation::Status::SolverFailure;
@@ -46,6 +47,7 @@ TEST(PointTable, PointsReadBackBitForBitInAnyStoringOrder) {
   ASSERT_EQ(table.size(), points.size());
   for (std::size_t i = 0; i < points.size(); ++i) expect_same(table[i], points[i]);
   EXPECT_EQ(table.constant_columns(), 1u);
+  EXPECT_EQ(table.coded_columns(), 3u);
   EXPECT_EQ(table.status(2), CaseEvaluation::Status::SolverFailure);
   EXPECT_TRUE(same_bits(table.value(1, 1), -0.0));
 }
@@ -65,6 +67,23 @@ TEST(PointTable, APointWithoutValuesStaysWithoutThem) {
   EXPECT_EQ(table.constant_columns(), 1u);
   EXPECT_THROW(table.push_back(point_with({1.0})), std::invalid_argument);
   EXPECT_THROW(table.at(3), std::out_of_range);
+}
+
+TEST(PointTable, AColumnOfManyValuesBecomesDenseAndKeepsEveryValue) {
+  PointTable table;
+  const std::size_t count = 600;
+  table.resize(count, 2);
+  // Stored from both ends inwards, so the column turns dense with points on either side still missing.
+  for (std::size_t k = 0; k < count; ++k) {
+    const std::size_t i = k % 2 == 0 ? k / 2 : count - 1 - k / 2;
+    table.store(i, point_with({0.1 * static_cast<double>(i), static_cast<double>(i % 5)}));
+  }
+  EXPECT_EQ(table.coded_columns(), 1u);  // column 1: five values
+  EXPECT_EQ(table.constant_columns(), 0u);
+  for (std::size_t i = 0; i < count; ++i) {
+    EXPECT_TRUE(same_bits(table.value(i, 0), 0.1 * static_cast<double>(i))) << i;
+    EXPECT_EQ(table.value(i, 1), static_cast<double>(i % 5)) << i;
+  }
 }
 
 TEST(PointTable, IteratesInPointOrder) {

@@ -34,6 +34,8 @@ void PointTable::resize(std::size_t count, std::size_t width) {
   messages_.clear();
   constant_.assign(width, 0);
   constant_set_.assign(width, false);
+  dictionary_.assign(width, {});
+  codes_.assign(width, {});
   dense_.assign(width, {});
 }
 
@@ -44,26 +46,45 @@ std::uint32_t PointTable::outcome_index(const std::string& outcome) {
   return static_cast<std::uint32_t>(outcomes_.size() - 1);
 }
 
+// Every point stored so far has the constant: code 0 (points not stored yet get theirs when they are).
+void PointTable::make_coded(std::size_t column) {
+  dictionary_[column] = {constant_[column]};
+  codes_[column].assign(records_.size(), 0);
+}
+
 void PointTable::make_dense(std::size_t column) {
   std::vector<double>& values = dense_[column];
   values.assign(records_.size(), kNaN);
-  const double constant = value_of(constant_[column]);
   for (std::size_t i = 0; i < records_.size(); ++i) {
-    if (records_[i].stored && records_[i].has_values) values[i] = constant;
+    if (records_[i].stored && records_[i].has_values) values[i] = value_of(dictionary_[column][codes_[column][i]]);
   }
+  codes_[column] = {};
+  dictionary_[column] = {};
 }
 
 void PointTable::set_value(std::size_t i, std::size_t column, double value) {
-  if (dense_[column].empty()) {
-    const std::uint64_t bits = bits_of(value);
+  if (!dense_[column].empty()) {
+    dense_[column][i] = value;
+    return;
+  }
+  const std::uint64_t bits = bits_of(value);
+  if (codes_[column].empty()) {
     if (!constant_set_[column]) {
       constant_[column] = bits;
       constant_set_[column] = true;
       return;
     }
     if (constant_[column] == bits) return;
-    make_dense(column);
+    make_coded(column);
   }
+  std::vector<std::uint64_t>& dictionary = dictionary_[column];
+  auto known = std::find(dictionary.begin(), dictionary.end(), bits);
+  if (known == dictionary.end() && dictionary.size() < 256) known = dictionary.insert(dictionary.end(), bits);
+  if (known != dictionary.end()) {
+    codes_[column][i] = static_cast<std::uint8_t>(known - dictionary.begin());
+    return;
+  }
+  make_dense(column);
   dense_[column][i] = value;
 }
 
@@ -103,13 +124,18 @@ void PointTable::push_back(const PointResult& point) {
   for (auto& values : dense_) {
     if (!values.empty()) values.push_back(kNaN);
   }
+  for (auto& codes : codes_) {
+    if (!codes.empty()) codes.push_back(0);
+  }
   store(records_.size() - 1, point);
 }
 
 double PointTable::value(std::size_t i, std::size_t column) const {
   const Record& record = records_[i];
   if (!record.has_values) return kNaN;
-  return dense_[column].empty() ? value_of(constant_[column]) : dense_[column][i];
+  if (!dense_[column].empty()) return dense_[column][i];
+  if (!codes_[column].empty()) return value_of(dictionary_[column][codes_[column][i]]);
+  return value_of(constant_[column]);
 }
 
 PointResult PointTable::operator[](std::size_t i) const {
@@ -135,8 +161,14 @@ PointResult PointTable::at(std::size_t i) const {
 }
 
 std::size_t PointTable::constant_columns() const {
+  std::size_t count = 0;
+  for (std::size_t c = 0; c < width_; ++c) count += dense_[c].empty() && codes_[c].empty() ? 1 : 0;
+  return count;
+}
+
+std::size_t PointTable::coded_columns() const {
   return static_cast<std::size_t>(
-      std::count_if(dense_.begin(), dense_.end(), [](const std::vector<double>& values) { return values.empty(); }));
+      std::count_if(codes_.begin(), codes_.end(), [](const auto& codes) { return !codes.empty(); }));
 }
 
 }  // namespace linkrise::app

@@ -3,7 +3,8 @@
 // record with a vector and two strings each. Here a point is a record of 8 bytes (status, verdict, an index into
 // the outcome words), a message only where there is one, and its metric values live in the table's columns. A
 // column whose value is bitwise the same at every point stored so far (attempts, detection time, a duty's
-// averages) keeps that one number; it becomes a column of one double per point at the first point that differs.
+// averages) keeps that one number; a column of at most 256 distinct values (times read at the BMS's sample
+// instants) keeps them once with one byte per point; any other column is one double per point.
 // Reading a point gives back the PointResult it was stored as, numbers bit for bit: outputs do not change.
 #include <cstddef>
 #include <cstdint>
@@ -50,8 +51,9 @@ class PointTable {
   /// Value `column` of point i: NaN for a point stored without values.
   double value(std::size_t i, std::size_t column) const;
   CaseEvaluation::Status status(std::size_t i) const { return static_cast<CaseEvaluation::Status>(records_[i].status); }
-  /// How many columns keep one number for every point (for the memory measurements).
+  /// How many columns keep one number for every point, and how many a byte per point (memory measurements).
   std::size_t constant_columns() const;
+  std::size_t coded_columns() const;
 
   class Iterator {
    public:
@@ -92,15 +94,19 @@ class PointTable {
   void check_width(const PointResult& point) const;
   std::uint32_t outcome_index(const std::string& outcome);
   void set_value(std::size_t i, std::size_t column, double value);
+  void make_coded(std::size_t column);
   void make_dense(std::size_t column);
 
   std::size_t width_ = 0;
   std::vector<Record> records_;
   std::vector<std::string> outcomes_;
   std::vector<std::pair<std::size_t, std::string>> messages_;  // sorted by point; only non-empty messages
-  // Per column: the bits every stored point has while dense_[c] is empty, else one value per point.
+  // Per column, one of three forms: constant (codes_[c] and dense_[c] empty): the bits every stored point has;
+  // coded (codes_[c] not empty): point i has the bits dictionary_[c][codes_[c][i]]; dense: dense_[c][i].
   std::vector<std::uint64_t> constant_;
   std::vector<bool> constant_set_;
+  std::vector<std::vector<std::uint64_t>> dictionary_;
+  std::vector<std::vector<std::uint8_t>> codes_;
   std::vector<std::vector<double>> dense_;
 };
 
