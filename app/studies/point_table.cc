@@ -37,6 +37,14 @@ void PointTable::resize(std::size_t count, std::size_t width) {
   dictionary_.assign(width, {});
   codes_.assign(width, {});
   dense_.assign(width, {});
+  // Every column's storage is reserved here, before a study's workers start: allocated inside the pool, a
+  // column would sit between the freed temporaries of an evaluation and the heap would grow around it
+  // (measured 69.3 MB instead of 64.8 at 100 000 samples). Reserved pages that are never written (the constant
+  // columns' doubles) are not resident: the capacity costs address space only.
+  for (std::size_t c = 0; c < width; ++c) {
+    dense_[c].reserve(count);
+    codes_[c].reserve(count);
+  }
 }
 
 std::uint32_t PointTable::outcome_index(const std::string& outcome) {
