@@ -101,8 +101,11 @@ class PointTable {
   std::vector<Record> records_;
   std::vector<std::string> outcomes_;
   std::vector<std::pair<std::size_t, std::string>> messages_;  // sorted by point; only non-empty messages
-  // Per column, one of three forms: constant (codes_[c] and dense_[c] empty): the bits every stored point has;
-  // coded (codes_[c] not empty): point i has the bits dictionary_[c][codes_[c][i]]; dense: dense_[c][i].
+  // Per column, one of three forms: constant: the bits every stored point has; coded: point i has the bits
+  // dictionary_[c][codes_[c][i]]; dense: dense_[c][i].
+  enum class Form : std::uint8_t { Constant, Coded, Dense };
+  std::vector<Form> form_;
+  std::size_t stored_end_ = 0;  // one past the highest point stored
   std::vector<std::uint64_t> constant_;
   std::vector<bool> constant_set_;
   std::vector<std::vector<std::uint64_t>> dictionary_;
