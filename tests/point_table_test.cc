@@ -73,9 +73,11 @@ TEST(PointTable, AColumnOfManyValuesBecomesDenseAndKeepsEveryValue) {
   PointTable table;
   const std::size_t count = 600;
   table.resize(count, 2);
-  // Stored from both ends inwards, so the column turns dense with points on either side still missing.
+  // The first half in order (the column turns dense at a point past every code), the rest from both ends
+  // inwards (points on either side still missing).
   for (std::size_t k = 0; k < count; ++k) {
-    const std::size_t i = k % 2 == 0 ? k / 2 : count - 1 - k / 2;
+    const std::size_t rest = k - count / 2;
+    const std::size_t i = k < count / 2 ? k : rest % 2 == 0 ? count / 2 + rest / 2 : count - 1 - rest / 2;
     table.store(i, point_with({0.1 * static_cast<double>(i), static_cast<double>(i % 5)}));
   }
   EXPECT_EQ(table.coded_columns(), 1u);  // column 1: five values

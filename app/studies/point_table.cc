@@ -69,7 +69,10 @@ void PointTable::make_dense(std::size_t column) {
   std::vector<double>& values = dense_[column];
   values.assign(records_.size(), kNaN);
   for (std::size_t i = 0; i < records_.size(); ++i) {
-    if (records_[i].stored && records_[i].has_values) values[i] = value_of(dictionary_[column][codes_[column].at(i)]);
+    // The point being stored has no code yet (it may lie past the codes); its value follows.
+    if (i < codes_[column].size() && records_[i].stored && records_[i].has_values) {
+      values[i] = value_of(dictionary_[column][codes_[column][i]]);
+    }
   }
   codes_[column] = {};
   dictionary_[column] = {};
