@@ -60,14 +60,17 @@ TEST(SpreadRecord, EveryNumberReadsBackExactly) {
   Spread spread = run_spread(netlist::CaseDocument::parse(text, file).with({{"link.capacitance", "1.1mF", {}}}), plan, 2);
   ASSERT_EQ(spread.results.points.size(), 3u);
   // The values a text format must spell out (IEEE 754 [R-IEEE754]).
-  std::vector<double>& first = spread.results.points[0].values;
-  ASSERT_GE(first.size(), 4u);
-  first[0] = std::numeric_limits<double>::quiet_NaN();
-  first[1] = std::numeric_limits<double>::infinity();
-  first[2] = -std::numeric_limits<double>::infinity();
-  first[3] = -0.0;
-  spread.results.points[1].status = CaseEvaluation::Status::SolverFailure;
-  spread.results.points[1].message = "the solver gave up at 0.1 s";
+  PointResult first = spread.results.points[0];
+  ASSERT_GE(first.values.size(), 4u);
+  first.values[0] = std::numeric_limits<double>::quiet_NaN();
+  first.values[1] = std::numeric_limits<double>::infinity();
+  first.values[2] = -std::numeric_limits<double>::infinity();
+  first.values[3] = -0.0;
+  spread.results.points.store(0, first);
+  PointResult second = spread.results.points[1];
+  second.status = CaseEvaluation::Status::SolverFailure;
+  second.message = "the solver gave up at 0.1 s";
+  spread.results.points.store(1, second);
 
   const fs::path folder = fresh_folder("record_round_trip");
   std::ofstream(folder / kSpreadRecordFile) << spread_record_json(spread, text, settings);

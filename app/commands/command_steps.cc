@@ -33,7 +33,13 @@ int write_and_print(bool quiet, const CommandOutput& output) {
   std::optional<OutputSet> set;
   if (!output.files.empty()) {
     set.emplace(output.directory);
-    for (const auto& file : output.files) set->add(file.name, file.content);
+    for (const auto& file : output.files) {
+      if (file.write) {
+        set->add(file.name, file.write);
+      } else {
+        set->add(file.name, file.content);
+      }
+    }
     set->commit();
   }
   // After the output set, so a failed command leaves no report (docs/report.md).

@@ -8,6 +8,7 @@
 // one, each written atomically.
 #include <filesystem>
 #include <functional>
+#include <iosfwd>
 #include <stdexcept>
 #include <string>
 #include <vector>
@@ -19,6 +20,9 @@ namespace linkrise::app {
 struct StagedFile {
   std::string name;  // inside CommandOutput::directory
   std::string content;
+  // When set, writes the file's text instead of `content`: a large file (a study's samples) streamed into its
+  // temporary file rather than held as text. It formats what is already computed, so it throws no input error.
+  std::function<void(std::ostream&)> write = nullptr;
 };
 
 struct StandaloneFile {

@@ -1,5 +1,7 @@
 #include "app/commands/spread_command.h"
 
+#include <memory>
+
 #include <fmt/format.h>
 
 #include "app/commands/command_steps.h"
@@ -11,12 +13,15 @@
 
 namespace linkrise::app {
 
-CommandOutput spread_output(const Spread& spread, const std::string& metrics_option,
+CommandOutput spread_output(std::shared_ptr<const Spread> shared, const std::string& metrics_option,
                             const std::string& output_directory, const std::string& report) {
+  const Spread& spread = *shared;
   std::vector<std::string> metrics = shown_metrics(metrics_option, spread.headline, spread.results.columns);
   CommandOutput output;
   output.directory = output_directory;
-  output.files = {{"spread_samples.csv", spread_csv(spread)}, {"spread.json", spread_json(spread)}};
+  // The samples are streamed into their temporary file when the set is written: not held as text.
+  output.files = {{"spread_samples.csv", "", [shared](std::ostream& out) { write_spread_csv(out, *shared); }},
+                  {"spread.json", spread_json(spread)}};
   output.report_file = report;
   if (!report.empty()) output.report = spread_report_html(spread, metrics);
   output.text = spread_text(spread, metrics);
@@ -32,11 +37,15 @@ int spread_command(const SpreadArguments& arguments) {
     SpreadPlan plan = spread_plan(arguments.corners, arguments.samples, arguments.seed, arguments.shard);
     // Read once: the run and a shard's record (for `linkrise merge`) see the same case text.
     const std::string case_text = read_case_text(arguments.case_file);
-    Spread spread = run_spread(netlist::CaseDocument::parse(case_text, arguments.case_file).with(settings), plan,
-                               arguments.jobs, "spread");
+    auto spread = std::make_shared<const Spread>(run_spread(
+        netlist::CaseDocument::parse(case_text, arguments.case_file).with(settings), plan, arguments.jobs, "spread"));
     CommandOutput output = spread_output(spread, arguments.metrics, arguments.output_directory, arguments.report);
     if (!arguments.shard.empty()) {
-      output.files.push_back({kSpreadRecordFile, spread_record_json(spread, case_text, arguments.settings)});
+      // Streamed like the samples' CSV (about 1.5 kB per sample as text).
+      output.files.push_back({kSpreadRecordFile, "",
+                              [spread, case_text, settings = arguments.settings](std::ostream& out) {
+                                write_spread_record_json(out, *spread, case_text, settings);
+                              }});
     }
     return output;
   });

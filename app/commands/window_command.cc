@@ -1,5 +1,7 @@
 #include "app/commands/window_command.h"
 
+#include <memory>
+
 #include <fmt/format.h>
 
 #include "app/commands/command_steps.h"
@@ -31,13 +33,15 @@ CommandOutput window_output(const WindowArguments& arguments) {
     throw netlist::InputError(option_mark("--shard", 1), "a fault window needs the whole population, not a shard",
                               "run without --shard (shard `linkrise spread` instead)");
   }
-  Spread spread;
-  FaultWindow window = fault_window(a.case_file, settings, plan, margin, a.jobs, &spread, "window");
+  // Shared with the writer of spread_samples.csv, which runs after this function has returned.
+  auto shared = std::make_shared<Spread>();
+  const Spread& spread = *shared;
+  FaultWindow window = fault_window(a.case_file, settings, plan, margin, a.jobs, shared.get(), "window");
   // Checked before anything is written: a misspelt metric is bad input.
   const std::vector<std::string> metrics = shown_metrics(a.metrics, spread.headline, spread.results.columns);
   CommandOutput output;
   output.directory = a.output_directory;
-  output.files = {{"window.json", window_json(window, spread)}, {"spread_samples.csv", spread_csv(spread)}};
+  output.files = {{"window.json", window_json(window, spread)}, {"spread_samples.csv", "", [shared](std::ostream& out) { write_spread_csv(out, *shared); }}};
   output.report_file = a.report;
   if (!a.report.empty()) output.report = window_report_html(window, spread, metrics);
   output.text = window_text(window, spread);

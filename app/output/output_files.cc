@@ -22,19 +22,24 @@ OutputSet::~OutputSet() {
   }
 }
 
-static void write_all(const std::filesystem::path& path, const std::string& content) {
+static void write_all(const std::filesystem::path& path, const std::function<void(std::ostream&)>& write) {
   std::ofstream stream(path, std::ios::binary | std::ios::trunc);
   if (!stream) throw std::runtime_error(fmt::format("cannot write '{}'", path.string()));
-  stream.write(content.data(), static_cast<std::streamsize>(content.size()));
+  write(stream);
   stream.close();
   if (!stream) throw std::runtime_error(fmt::format("writing '{}' failed (disk full?)", path.string()));
 }
 
 void OutputSet::add(const std::string& name, const std::string& content) {
+  add(name, [&](std::ostream& out) { out.write(content.data(), static_cast<std::streamsize>(content.size())); });
+}
+
+void OutputSet::add(const std::string& name, const std::function<void(std::ostream&)>& write) {
   std::filesystem::path final_path = directory_ / name;
   std::filesystem::path temporary = directory_ / fmt::format(".{}.{}.partial", name, ::getpid());
-  write_all(temporary, content);
+  // Staged before writing, so the destructor removes a temporary that a failed write left behind.
   staged_.emplace_back(temporary, final_path);
+  write_all(temporary, write);
 }
 
 void OutputSet::commit() {

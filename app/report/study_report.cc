@@ -99,7 +99,7 @@ void add_comparison_table(HtmlReport& report, const VariantComparison& compariso
     std::vector<std::string> row{column.name, larger_is_better(column.name) ? "larger" : "smaller"};
     std::string best_names;
     for (std::size_t i = 0; i < results.points.size(); ++i) {
-      const double value = c < results.points[i].values.size() ? results.points[i].values[c] : std::nan("");
+      const double value = c < results.points[i].values.size() ? results.points.value(i, c) : std::nan("");
       const bool marked = std::find(best.begin(), best.end(), i) != best.end();
       // A no-break space keeps the mark beside its value.
       row.push_back(display_metric(value, column.unit) + (marked ? "\u00a0best" : ""));
@@ -156,15 +156,17 @@ void add_tolerances_table(HtmlReport& report, const Spread& spread) {
 
 std::vector<double> reached_values(const StudyResults& results, std::size_t column) {
   std::vector<double> values;
-  for (const auto& point : results.points) {
-    if (column < point.values.size() && std::isfinite(point.values[column])) values.push_back(point.values[column]);
+  if (column >= results.points.width()) return values;
+  for (std::size_t p = 0; p < results.points.size(); ++p) {
+    const double value = results.points.value(p, column);
+    if (std::isfinite(value)) values.push_back(value);
   }
   return values;
 }
 
 double nominal_value(const Spread& spread, std::size_t column) {
-  if (spread.nominal.points.empty() || column >= spread.nominal.points[0].values.size()) return std::nan("");
-  return spread.nominal.points[0].values[column];
+  if (spread.nominal.points.empty() || column >= spread.nominal.points.width()) return std::nan("");
+  return spread.nominal.points.value(0, column);
 }
 
 void add_statistics(HtmlReport& report, const Spread& spread, const std::vector<std::string>& metrics) {
@@ -189,7 +191,7 @@ void add_statistics(HtmlReport& report, const Spread& spread, const std::vector<
                           f(s.p99_9), f(s.maximum), fmt::format("{} of {}", s.reached, spread.results.points.size())});
     if (s.worst >= 0) {
       const auto p = static_cast<std::size_t>(s.worst);
-      worst.rows.push_back({name, f(spread.results.points[p].values[column]), fmt::format("{}", spread.index(p)),
+      worst.rows.push_back({name, f(spread.results.points.value(p, column)), fmt::format("{}", spread.index(p)),
                             sample_parameters(spread, p)});
     }
   }

@@ -20,11 +20,10 @@ std::vector<std::size_t> VariantComparison::best(std::size_t column) const {
   bool larger = larger_is_better(name);
   std::vector<std::size_t> reached;
   for (std::size_t i = 0; i < results.points.size(); ++i) {
-    const auto& values = results.points[i].values;
-    if (column < values.size() && !std::isnan(values[column])) reached.push_back(i);
+    if (column < results.points.width() && !std::isnan(results.points.value(i, column))) reached.push_back(i);
   }
   if (reached.size() < 2) return {};
-  auto value = [&](std::size_t i) { return results.points[i].values[column]; };
+  auto value = [&](std::size_t i) { return results.points.value(i, column); };
   double best_value = value(reached.front());
   for (std::size_t i : reached) best_value = larger ? std::max(best_value, value(i)) : std::min(best_value, value(i));
   // Values that print the same (the terminal's and the report's precision) tie and share the mark: a difference
@@ -124,7 +123,7 @@ std::string comparison_text(const VariantComparison& comparison, bool all_metric
     std::vector<std::string> row{results.columns[c].name};
     auto best = comparison.best(c);
     for (std::size_t i = 0; i < results.points.size(); ++i) {
-      std::string cell = analysis::format_metric(results.points[i].values[c], results.columns[c].unit);
+      std::string cell = analysis::format_metric(results.points.value(i, c), results.columns[c].unit);
       bool marked = std::find(best.begin(), best.end(), i) != best.end();
       row.push_back(cell + (marked ? " *" : "  "));
     }

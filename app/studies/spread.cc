@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cmath>
 #include <iostream>
+#include <ostream>
+#include <sstream>
 #include <tuple>
 
 #include <fmt/format.h>
@@ -117,10 +119,10 @@ MetricSpread metric_spread(const StudyResults& results, std::size_t c) {
   std::vector<double> values;
   bool larger = larger_is_better(s.name);
   for (std::size_t p = 0; p < results.points.size(); ++p) {
-    double v = results.points[p].values.empty() ? std::nan("") : results.points[p].values[c];
+    double v = results.points.value(p, c);
     if (std::isnan(v)) continue;
     values.push_back(v);
-    double worst = s.worst < 0 ? 0.0 : results.points[static_cast<std::size_t>(s.worst)].values[c];
+    double worst = s.worst < 0 ? 0.0 : results.points.value(static_cast<std::size_t>(s.worst), c);
     if (s.worst < 0 || (larger ? v < worst : v > worst)) s.worst = static_cast<long>(p);
   }
   std::sort(values.begin(), values.end());
@@ -225,7 +227,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
     if (c < 0) continue;
     const MetricSpread& s = spread.statistics[static_cast<std::size_t>(c)];
     auto f = [&](double v) { return analysis::format_metric(v, s.unit); };
-    rows.push_back({name, f(spread.nominal.points[0].values[static_cast<std::size_t>(c)]), f(s.minimum), f(s.p0_1),
+    rows.push_back({name, f(spread.nominal.points.value(0, static_cast<std::size_t>(c))), f(s.minimum), f(s.p0_1),
                     f(s.p1), f(s.p50), f(s.p99), f(s.p99_9), f(s.maximum),
                     fmt::format("{}", s.reached)});
   }
@@ -239,7 +241,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
     if (s.worst < 0) continue;
     auto p = static_cast<std::size_t>(s.worst);
     out += fmt::format("    {} = {} at {} {}: {}\n", name,
-                       analysis::format_metric(spread.results.points[p].values[static_cast<std::size_t>(c)], s.unit),
+                       analysis::format_metric(spread.results.points.value(p, static_cast<std::size_t>(c)), s.unit),
                        spread.plan.corners ? "corner" : "sample", spread.index(p), sample_parameters(spread, p));
   }
   for (std::size_t p = 0; p < spread.results.points.size(); ++p) {
@@ -250,7 +252,7 @@ std::string spread_text(const Spread& spread, const std::vector<std::string>& me
   return out;
 }
 
-std::string spread_csv(const Spread& spread) {
+void write_spread_csv(std::ostream& stream, const Spread& spread) {
   std::string out = spread.plan.corners ? "corner" : "sample";
   for (const auto& t : spread.tolerances) {
     out.append(",").append(csv_text(fmt::format("{} [{}]", t.path, t.shown().symbol)));
@@ -258,9 +260,10 @@ std::string spread_csv(const Spread& spread) {
   out += ",status,outcome,verdict";
   for (const auto& column : spread.results.columns) out.append(",").append(csv_text(fmt::format("{} [{}]", column.name, column.unit)));
   out += "\n";
+  stream << out;
   for (std::size_t p = 0; p < spread.results.points.size(); ++p) {
     const PointResult& point = spread.results.points[p];
-    out += std::to_string(spread.index(p));
+    out = std::to_string(spread.index(p));
     for (std::size_t j = 0; j < spread.tolerances.size(); ++j) {
       double v = spread_value(spread.tolerances, spread.plan, spread.index(p), j);
       out.append(",").append(csv_number(spread.tolerances[j].shown().shown(v)));
@@ -268,8 +271,14 @@ std::string spread_csv(const Spread& spread) {
     out += fmt::format(",{},{},{}", csv_text(status_word(point.status)), csv_text(point.outcome), csv_text(analysis::verdict_word(point.verdict)));
     for (double value : point.values) out.append(",").append(csv_number(value));
     out += "\n";
+    stream << out;
   }
-  return out;
+}
+
+std::string spread_csv(const Spread& spread) {
+  std::ostringstream out;
+  write_spread_csv(out, spread);
+  return out.str();
 }
 
 namespace {
@@ -289,7 +298,7 @@ nlohmann::json spread_json_value(const Spread& spread) {
     nlohmann::json entry = {{"name", s.name},
                             {"unit", s.unit},
                             {"better", larger_is_better(s.name) ? "larger" : "smaller"},
-                            {"nominal", quantity(spread.nominal.points[0].values[c], s.unit)},
+                            {"nominal", quantity(spread.nominal.points.value(0, c), s.unit)},
                             {"reached", s.reached},
                             {"min", quantity(s.minimum, s.unit)},
                             {"p0.1", quantity(s.p0_1, s.unit)},
@@ -305,7 +314,7 @@ nlohmann::json spread_json_value(const Spread& spread) {
         parameters[spread.tolerances[j].path] =
             spread.tolerances[j].text(spread_value(spread.tolerances, spread.plan, spread.index(p), j));
       }
-      entry["worst"] = {{"sample", spread.index(p)}, {"value", quantity(spread.results.points[p].values[c], s.unit)},
+      entry["worst"] = {{"sample", spread.index(p)}, {"value", quantity(spread.results.points.value(p, c), s.unit)},
                         {"parameters", parameters}};
     }
     metrics.push_back(entry);

@@ -16,6 +16,7 @@
 // metrics, no waveforms) and spread.json. Exit 0 when every sample was evaluated and passed, 1 when some
 // sample's verdict failed, 2 for bad input, 3 when the solver failed on a sample.
 #include <cstdint>
+#include <iosfwd>
 #include <limits>
 #include <optional>
 #include <string>
@@ -90,6 +91,9 @@ void summarise_spread(Spread& spread, const netlist::Case& nominal);
 
 std::string spread_text(const Spread& spread, const std::vector<std::string>& metrics);
 std::string spread_csv(const Spread& spread);
+/// The same text, written to `out` sample by sample (spread_samples.csv is about 0.9 kB per sample of 72 metrics,
+/// so a large study streams it into its temporary file instead of holding it).
+void write_spread_csv(std::ostream& out, const Spread& spread);
 /// spread.json as text.
 std::string spread_json(const Spread& spread);
 /// "r_pre.resistance = 31.35 Ohm, ambient = -20 degC" for the sample at `point`.

@@ -130,11 +130,13 @@ Spread merge_spread(std::vector<SpreadRecord> records) {
   spread.population = first.population;
   spread.range = IndexRange{0, first.population};
   spread.nominal.columns = first.columns;
-  spread.nominal.points = {first.nominal};
+  spread.nominal.points.resize(0, first.columns.size());
+  spread.nominal.points.push_back(first.nominal);
   spread.results.columns = first.columns;
-  spread.results.points.reserve(first.population);
+  spread.results.points.resize(0, first.columns.size());
   for (auto& record : records) {
-    for (auto& point : record.points) spread.results.points.push_back(std::move(point));
+    for (const auto& point : record.points) spread.results.points.push_back(point);
+    record.points = {};  // the shard's samples live on in the table only
   }
   // The shards ran their samples at the study accuracy; the check is the single run's, from the same document.
   spread.results.accuracy = check_study_accuracy(base);

@@ -137,8 +137,8 @@ std::string read_case_text(const std::string& path) {
   return text.str();
 }
 
-std::string spread_record_json(const Spread& spread, const std::string& case_text,
-                               const std::vector<std::string>& settings) {
+void write_spread_record_json(std::ostream& out, const Spread& spread, const std::string& case_text,
+                              const std::vector<std::string>& settings) {
   json columns = json::array();
   for (const auto& column : spread.results.columns) columns.push_back({{"name", column.name}, {"unit", column.unit}});
   const json head = with_file_head({{"record", kKind},
@@ -159,10 +159,17 @@ std::string spread_record_json(const Spread& spread, const std::string& case_tex
   text.resize(text.rfind('}'));
   while (!text.empty() && text.back() == '\n') text.pop_back();
   text += ",\n  \"samples\": [";
+  out << text;
   const auto& points = spread.results.points;
-  for (std::size_t p = 0; p < points.size(); ++p) text += (p == 0 ? "\n    " : ",\n    ") + point_json(points[p]).dump();
-  text += points.empty() ? "]\n}\n" : "\n  ]\n}\n";
-  return text;
+  for (std::size_t p = 0; p < points.size(); ++p) out << (p == 0 ? "\n    " : ",\n    ") << point_json(points[p]).dump();
+  out << (points.empty() ? "]\n}\n" : "\n  ]\n}\n");
+}
+
+std::string spread_record_json(const Spread& spread, const std::string& case_text,
+                               const std::vector<std::string>& settings) {
+  std::ostringstream out;
+  write_spread_record_json(out, spread, case_text, settings);
+  return out.str();
 }
 
 SpreadRecord read_spread_record(const std::filesystem::path& folder) {

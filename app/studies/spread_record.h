@@ -10,6 +10,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <filesystem>
+#include <iosfwd>
 #include <string>
 #include <vector>
 
@@ -46,6 +47,9 @@ std::string read_case_text(const std::string& path);
 /// spread_shard.json as text, for a spread computed from `case_text` with `settings`.
 std::string spread_record_json(const Spread& spread, const std::string& case_text,
                                const std::vector<std::string>& settings);
+/// The same text written to `out` sample by sample (not held as text).
+void write_spread_record_json(std::ostream& out, const Spread& spread, const std::string& case_text,
+                              const std::vector<std::string>& settings);
 
 /// Reads the record in `folder`. Throws InputError naming the folder when there is none, or it is not a record
 /// this version can read.

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <mutex>
 #include <utility>
 
 #include <fmt/format.h>
@@ -24,21 +25,23 @@ int StudyResults::column(const std::string& name) const {
 
 double StudyResults::value(std::size_t point, const std::string& name) const {
   int c = column(name);
-  const auto& values = points.at(point).values;
-  if (c < 0 || static_cast<std::size_t>(c) >= values.size()) return std::numeric_limits<double>::quiet_NaN();
-  return values[static_cast<std::size_t>(c)];
+  if (point >= points.size()) points.at(point);  // throws out_of_range
+  if (c < 0 || static_cast<std::size_t>(c) >= points.width()) return std::numeric_limits<double>::quiet_NaN();
+  return points.value(point, static_cast<std::size_t>(c));
 }
 
 long StudyResults::first_input_error() const {
   for (std::size_t i = 0; i < points.size(); ++i) {
-    if (points[i].status == CaseEvaluation::Status::InputError) return static_cast<long>(i);
+    if (points.status(i) == CaseEvaluation::Status::InputError) return static_cast<long>(i);
   }
   return -1;
 }
 
 bool StudyResults::any_solver_failure() const {
-  return std::any_of(points.begin(), points.end(),
-                     [](const PointResult& p) { return p.status == CaseEvaluation::Status::SolverFailure; });
+  for (std::size_t i = 0; i < points.size(); ++i) {
+    if (points.status(i) == CaseEvaluation::Status::SolverFailure) return true;
+  }
+  return false;
 }
 
 std::string StudyResults::outcome_counts() const {
@@ -96,21 +99,33 @@ std::vector<double> aligned(const std::vector<MetricValue>& metrics, const std::
 StudyResults run_study(std::size_t count, const DocumentOf& document_of, int jobs,
                        const std::string& progress_label, const std::vector<MetricColumn>* fixed_columns) {
   StudyResults results;
-  results.points.resize(count);
-  if (fixed_columns) {
-    // Every point's values allocated here, one after another, before the workers start: allocated inside the
-    // pool, each would sit between the freed temporaries of an evaluation, and the heap would grow by about
-    // twice their size (measured 1.5 kB per sample of 60 metrics instead of 0.5 kB).
-    for (auto& point : results.points) point.values.assign(fixed_columns->size(), std::numeric_limits<double>::quiet_NaN());
-  }
+  results.points.resize(count, fixed_columns ? fixed_columns->size() : 0);
+  // Without fixed columns a point's named metrics wait here until the union of the columns is known.
+  std::vector<PointResult> pending(fixed_columns ? 0 : count);
+  std::mutex storing;  // the point table is shared by the workers
+  auto keep = [&](std::size_t i, PointResult point) {
+    if (!fixed_columns) {
+      pending[i] = std::move(point);
+      return;
+    }
+    std::lock_guard<std::mutex> lock(storing);
+    results.points.store(i, point);
+  };
   std::vector<std::vector<MetricValue>> raw(fixed_columns ? 0 : count);
   // Between ranks travel the point and, until the columns are known, its named metrics.
   const PointTransfer transfer{[&](std::size_t i, ByteWriter& out) {
-                                 save_point(out, results.points[i]);
+                                 if (fixed_columns) {
+                                   std::unique_lock<std::mutex> lock(storing);
+                                   const PointResult point = results.points[i];
+                                   lock.unlock();
+                                   save_point(out, point);
+                                 } else {
+                                   save_point(out, pending[i]);
+                                 }
                                  if (!fixed_columns) save_metrics(out, raw[i]);
                                },
                                [&](std::size_t i, ByteReader& in) {
-                                 results.points[i] = load_point(in);
+                                 keep(i, load_point(in));
                                  if (!fixed_columns) raw[i] = load_metrics(in);
                                }};
   for_each_index_on_ranks(
@@ -119,16 +134,17 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
         // One row store per worker thread, reused by every sample it runs: no waveform allocation per sample.
         thread_local solver::Waveform row_store;
         CaseEvaluation evaluation = evaluate_case_document(at_study_accuracy(document_of(i)), &row_store);
-        PointResult& point = results.points[i];
+        PointResult point;
         point.status = evaluation.status;
         point.message = std::move(evaluation.message);
         point.outcome = std::move(evaluation.outcome);
         point.verdict = evaluation.verdict;
         if (fixed_columns) {
-          align_into(evaluation.metrics, *fixed_columns, point.values);
+          point.values = aligned(evaluation.metrics, *fixed_columns);
         } else {
           raw[i] = std::move(evaluation.metrics);
         }
+        keep(i, std::move(point));
       },
       transfer, progress_label);
   if (fixed_columns) {
@@ -140,7 +156,11 @@ StudyResults run_study(std::size_t count, const DocumentOf& document_of, int job
       if (results.column(metric.name) < 0) results.columns.push_back(MetricColumn{metric.name, metric.unit});
     }
   }
-  for (std::size_t i = 0; i < count; ++i) results.points[i].values = aligned(raw[i], results.columns);
+  results.points.resize(count, results.columns.size());
+  for (std::size_t i = 0; i < count; ++i) {
+    pending[i].values = aligned(raw[i], results.columns);
+    results.points.store(i, pending[i]);
+  }
   return results;
 }
 

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "app/evaluation/case_evaluation.h"
+#include "app/studies/point_table.h"
 #include "app/studies/study_accuracy.h"
 #include "netlist/overrides.h"
 #include "netlist/case.h"
@@ -21,23 +22,9 @@ struct MetricColumn {
   std::string unit;
 };
 
-struct PointResult {
-  CaseEvaluation::Status status = CaseEvaluation::Status::Evaluated;
-  std::string message;
-  std::string outcome;
-  analysis::Verdict verdict = analysis::Verdict::Fail;
-  std::vector<double> values;  // one per StudyResults::columns; NaN when not reached or absent
-  bool evaluated() const { return status == CaseEvaluation::Status::Evaluated; }
-  bool passed() const { return evaluated() && verdict == analysis::Verdict::Pass; }
-  /// The outcome, or the status word ("input error", "solver failure") when the point was not evaluated.
-  std::string outcome_word() const { return evaluated() ? outcome : status_word(status); }
-  /// The verdict, or the status word when the point was not evaluated.
-  std::string verdict_word() const { return evaluated() ? analysis::verdict_word(verdict) : status_word(status); }
-};
-
 struct StudyResults {
   std::vector<MetricColumn> columns;
-  std::vector<PointResult> points;
+  PointTable points;  // compact (app/studies/point_table.h); points[i] gives a PointResult
   StudyAccuracy accuracy;  // the points' rtol and the nominal case's agreement check (set by the study)
   /// Column index of a metric, or -1.
   int column(const std::string& name) const;
