@@ -17,7 +17,7 @@ double recovered_voltage(const solver::Waveform& rows, const ContactColumns& c, 
 }
 
 ArcEvent arc_event(const solver::Waveform& rows, const ContactColumns& c, std::size_t first, std::size_t last,
-                   double parting) {
+                   double parting, const std::vector<solver::BreakCircuit>& breaks) {
   ArcEvent event;
   event.start = rows.time(first);
   event.end = rows.time(last);
@@ -26,6 +26,12 @@ ArcEvent arc_event(const solver::Waveform& rows, const ContactColumns& c, std::s
   event.current = rows.value(parted, c.current);
   for (std::size_t r = first; r <= last; ++r) event.opening = event.opening || rows.value(r, c.arcing) > 1.5;
   if (event.opening && last + 1 < rows.row_count()) event.voltage = recovered_voltage(rows, c, last + 1, parting);
+  if (event.opening) {
+    auto found = std::find_if(breaks.begin(), breaks.end(), [&](const solver::BreakCircuit& b) {
+      return b.time >= event.start && b.time <= event.end;
+    });
+    if (found != breaks.end()) event.time_constant = found->time_constant;
+  }
   return event;
 }
 
@@ -41,14 +47,15 @@ double first_peak(const solver::Waveform& rows, const ContactColumns& c, std::si
 }
 }  // namespace
 
-ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& c, double parting_time) {
+ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& c, double parting_time,
+                             const std::vector<solver::BreakCircuit>& breaks) {
   ContactEvents events;
   const std::size_t n = rows.row_count();
   for (std::size_t r = 0; r < n; ++r) {
     if (rows.value(r, c.arcing) > 0.5 && (r == 0 || rows.value(r - 1, c.arcing) < 0.5)) {
       std::size_t last = r;
       while (last + 1 < n && rows.value(last + 1, c.arcing) > 0.5) ++last;
-      events.arcs.push_back(arc_event(rows, c, r, last, parting_time));
+      events.arcs.push_back(arc_event(rows, c, r, last, parting_time, breaks));
     }
     if (r > 0 && rows.value(r, c.closed) > 0.5 && rows.value(r - 1, c.closed) < 0.5) {
       events.making_currents.push_back(first_peak(rows, c, r));
@@ -72,11 +79,13 @@ ContactMetrics contact_metrics(const ContactEvents& events, const std::optional<
   for (const auto& arc : events.arcs) {
     if (!arc.opening) continue;
     models::BreakJudgement judged;
-    const double score = capacity ? (judged = capacity->judge(arc.voltage, arc.current)).use : std::fabs(arc.current);
+    const double score =
+        capacity ? (judged = capacity->judge(arc.voltage, arc.current, arc.time_constant)).use : std::fabs(arc.current);
     if (score <= worst) continue;
     worst = score;
     m.break_current = std::fabs(arc.current);
     m.break_voltage = arc.voltage;
+    m.break_time_constant = arc.time_constant;
     if (capacity) {
       m.break_use = judged.use;
       m.break_row = judged.row;

@@ -13,12 +13,13 @@
 // A making is every touch (closed 0 -> 1, a bounce's re-touch included):
 //   making current: |i| at the first peak after the touch (rows while |i| does not fall), within the closure;
 //   voltage step: |v| across the contacts just before they touched.
-// The L/R of the broken circuit is not derived: the run does not separate the circuit's inductance from its
-// resistance at the break (DEVELOPERS.md, Contacts).
+//   time constant: L/R of the circuit the opening broke, as the solver read it when the opening arc struck
+//     (solver/break_circuit.h; the first of the part's Result::breaks within the event).
 #include <optional>
 #include <vector>
 
 #include "models/breaking_capacity.h"
+#include "solver/break_circuit.h"
 #include "solver/waveform.h"
 
 namespace linkrise::analysis {
@@ -29,6 +30,7 @@ struct ArcEvent {
   bool opening = false;           // an opening arc (not a bounce gap's)
   double current = 0.0;           // A, signed, just before the contacts parted
   double voltage = 0.0;           // V, |v| across the recovered gap (openings only)
+  double time_constant = 0.0;     // s, L/R of the broken circuit (openings only; 0 when the run recorded none)
 };
 
 struct ContactEvents {
@@ -42,7 +44,9 @@ struct ContactColumns {
   int current = -1, voltage = -1, closed = -1, arcing = -1, arc_energy = -1;
 };
 
-ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& columns, double parting_time);
+/// `breaks`: the solver's records of this part's breaks (Result::breaks of this part), in time order.
+ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& columns, double parting_time,
+                             const std::vector<solver::BreakCircuit>& breaks);
 
 /// The contactor's figures over the run; values absent (NaN when named) where the run has no such event.
 struct ContactMetrics {
@@ -50,6 +54,7 @@ struct ContactMetrics {
   double total_arc_energy = 0.0;  // J
   double arc_time = 0.0;          // s, of the event with the largest energy
   std::optional<double> break_current, break_voltage;  // A (magnitude), V: the worst opening's
+  std::optional<double> break_time_constant;            // s, its circuit's L/R
   std::optional<double> break_use;                      // 1, with a breaking capacity
   std::optional<int> break_row;                         // its row (0: none covers it)
   std::optional<double> making_current, making_voltage_step;  // A, V: the largest over the touches

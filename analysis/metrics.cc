@@ -192,6 +192,9 @@ std::string part_definition(const std::string& metric) {
   if (metric == "arc_time") return "how long the arc with the largest energy burned (the interruption time)";
   if (metric == "break_current") return "the current the worst opening broke (just before the contacts parted)";
   if (metric == "break_voltage") return "the voltage across the worst opening's gap once it had recovered";
+  if (metric == "break_time_constant") {
+    return "L/R of the circuit the worst opening broke (capacitors held, read when its arc struck)";
+  }
   if (metric == "break_use") {
     return "the worst opening's current as a share of what its breaking-capacity row permits (100 % = at the "
            "rating; not reached without an arcing opening)";

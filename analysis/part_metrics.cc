@@ -38,6 +38,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
     list.push_back({"arc_time", "s", contact->arc_time});
     list.push_back({"break_current", "A", contact->break_current.value_or(none)});
     list.push_back({"break_voltage", "V", contact->break_voltage.value_or(none)});
+    list.push_back({"break_time_constant", "s", contact->break_time_constant.value_or(none)});
     if (judges_breaks) {
       list.push_back({"break_use", "1", contact->break_use.value_or(none)});
       list.push_back({"break_row", "1", contact->break_row ? static_cast<double>(*contact->break_row) : none});
@@ -154,8 +155,12 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
       const auto actuation = p.actuation();
       const auto capacity = p.breaking_capacity();
       metrics.judges_breaks = capacity.has_value();
+      std::vector<solver::BreakCircuit> breaks;
+      for (const auto& b : result.breaks) {
+        if (b.part == part) breaks.push_back(b);
+      }
       metrics.contact =
-          contact_metrics(contact_events(rows, contact, actuation ? actuation->parting_time : 0.0), capacity);
+          contact_metrics(contact_events(rows, contact, actuation ? actuation->parting_time : 0.0, breaks), capacity);
     }
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;

@@ -3,14 +3,18 @@
 // as a table of rows, each valid for one current direction or both (a polarised contactor breaks less against
 // its marked direction; common practice).
 //
-// An opening is judged by the row with the smallest voltage at or above the voltage it broke (a conservative
-// reading: no interpolation towards higher permitted currents), among the rows for the opening's direction; its
-// use is |current broken| / permitted current. An opening above every row's voltage, or in a direction no row
-// covers, has no row: its use is infinite (it fails the rating).
+// A row may state the circuit's time constant L/R it was tested at (a data sheet's L/R column: the longer the
+// time constant, the more magnetic energy the arc must take per ampere, so the permitted current falls). A row
+// covers an opening when it is for the opening's direction, its voltage is at or above the voltage broken and,
+// when it states a time constant, that is at or above the broken circuit's L/R (solver/break_circuit.h). A row
+// without a time constant is judged on voltage and current alone.
 //
-// The table's time constant (L/R) is not part of a row: the run does not separate the broken circuit's
-// inductance from its resistance (see DEVELOPERS.md, Contacts), so a data sheet's L/R column cannot be judged.
+// Of the covering rows, the opening is judged by the one with the smallest voltage, then the smallest time
+// constant (a conservative reading: no interpolation towards higher permitted currents); its use is
+// |current broken| / permitted current. An opening that no row covers (above every row's voltage or time
+// constant, or in a direction no row has) has no row: its use is infinite (it fails the rating).
 #include <limits>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -25,6 +29,7 @@ struct BreakingRow {
   double voltage = 0.0;  // V, the circuit voltage of the row
   double current = 0.0;  // A, permitted break current at that voltage
   CurrentDirection direction = CurrentDirection::Both;
+  std::optional<double> time_constant;  // s, the L/R the row holds up to; none: not stated
 };
 
 struct BreakJudgement {
@@ -35,8 +40,9 @@ struct BreakJudgement {
 struct BreakingCapacity {
   std::vector<BreakingRow> rows;  // in the order written
 
-  /// Judges a break of `current` (signed: positive entering the first node) at `voltage` (magnitude).
-  BreakJudgement judge(double voltage, double current) const;
+  /// Judges a break of `current` (signed: positive entering the first node) at `voltage` (magnitude) in a
+  /// circuit of time constant `time_constant` (s, L/R; 0 for a resistive circuit).
+  BreakJudgement judge(double voltage, double current, double time_constant = 0.0) const;
 };
 
 }  // namespace linkrise::models

@@ -31,7 +31,8 @@ bool ramping(int mode) { return mode == kParting || mode == kClearing; }
 double arc_sign(int mode) { return mode == kBounceArcForward || mode == kOpeningArcForward ? 1.0 : -1.0; }
 
 BreakingCapacity read_breaking_capacity(netlist::ParameterReader& ratings) {
-  const std::string fix = "write '- {voltage: 450 V, current: 200 A}' per row (optional 'direction: forward')";
+  const std::string fix =
+      "write '- {voltage: 450 V, current: 200 A}' per row (optional 'time_constant: 1 ms', 'direction: forward')";
   auto rows = ratings.blocks("breaking_capacity", "breaking capacity row", std::numeric_limits<std::size_t>::max(),
                              "must be a list of rows", fix);
   if (rows.empty()) ratings.fail("breaking_capacity", "must be a list of at least one row", fix);
@@ -40,6 +41,7 @@ BreakingCapacity read_breaking_capacity(netlist::ParameterReader& ratings) {
     BreakingRow read;
     read.voltage = row.required("voltage", Dimension::voltage(), Bound::Positive);
     read.current = row.required("current", Dimension::current(), Bound::Positive);
+    read.time_constant = row.optional("time_constant", Dimension::time(), Bound::Positive);
     const std::string way = row.word("direction", {"both", "forward", "reverse"}, "both");
     read.direction = way == "forward"   ? CurrentDirection::Forward
                      : way == "reverse" ? CurrentDirection::Reverse
@@ -47,9 +49,10 @@ BreakingCapacity read_breaking_capacity(netlist::ParameterReader& ratings) {
     for (const auto& earlier : capacity.rows) {
       const bool overlap = earlier.direction == CurrentDirection::Both || read.direction == CurrentDirection::Both ||
                            earlier.direction == read.direction;
-      if (overlap && earlier.voltage == read.voltage) {
-        row.fail("voltage", "repeats the voltage of an earlier row for the same current direction",
-                 "give each voltage once per direction (or mark the rows 'direction: forward' and 'reverse')");
+      if (overlap && earlier.voltage == read.voltage && earlier.time_constant == read.time_constant) {
+        row.fail("voltage", "repeats the voltage and time constant of an earlier row for the same current direction",
+                 "give each voltage once per direction and time constant (mark the rows 'direction: forward' and "
+                 "'reverse', or give each its 'time_constant')");
       }
     }
     row.finish();
@@ -246,6 +249,10 @@ class Contactor final : public Part {
     if (!arcing(mode) || arc_sign(mode) * do_current(point, layout) >= minimum_arc_current_) return {};
     mode = parts_gradually() ? kClearing : kOpen;
     return {true, ""};
+  }
+  // An opening arc: its voltage s·U is in series with the contact (i = (v − s·U)/R_closed).
+  int do_breaking_state(const Layout& layout, const int* modes) const override {
+    return opening_arc(modes[layout.mode]) ? layout.state + voltage_ : -1;
   }
   // The ramp moves the gap's conductance by some 25 decades within parting_time.
   bool do_sweeping(const Layout& layout, const int* modes) const override { return ramping(modes[layout.mode]); }

@@ -30,9 +30,11 @@
 //     for any switching: a ramp there asked a femtosecond cable current through open gaps to follow 25 decades
 //     of gap resistance in 10 us, which the solver could not (its spike, i·R_open of microamperes, stays).
 //   ratings (optional block), judged as limits through Part::ratings():
-//     breaking_capacity: rows {voltage, current, direction: both | forward | reverse (default both)} — the data
-//       sheet's permitted break current at a circuit voltage (forward: current entering the first node); the
-//       metric break_use (the worst opening's |current| over its row's, models/breaking_capacity.h) <= 100 %;
+//     breaking_capacity: rows {voltage, current, time_constant (s, optional: the L/R the row holds up to),
+//       direction: both | forward | reverse (default both)} — the data sheet's permitted break current at a
+//       circuit voltage and time constant (forward: current entering the first node); the metric break_use (the
+//       worst opening's |current| over its row's, models/breaking_capacity.h) <= 100 %, the row chosen with the
+//       broken circuit's L/R the solver reads when the opening arc strikes (solver/break_circuit.h);
 //     max_arc_energy (J): the arc energy of each opening or bounce gap (metric arc_energy);
 //     max_making_current (A): the peak current while the contacts make (metric making_current).
 // Modes: 0 open, 1 closed, 2 parting (ramp from closed_resistance), 3 clearing (ramp after an arc), 4/5 bounce-gap
@@ -48,6 +50,7 @@
 // Commands: close; open and bounce from closed strike an opening or a bounce-gap arc when the current just
 //   before the switching is at least minimum_arc_current (else a clean break: at once, a ramp with 'arc: off'); an open during a bounce-gap arc
 //   turns it into an opening arc.
+// Breaking state: in an opening arc, U (its voltage in series with the contact), for the broken circuit's L/R.
 // Extra signals: closed [1] (0 or 1), arcing [1] (0 none, 1 bounce-gap arc, 2 opening arc), arc_voltage [V] (U while
 //   an arc burns, else 0), arc_energy [J] (E, cumulative).
 #include <memory>

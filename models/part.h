@@ -314,6 +314,10 @@ class Part {
   bool sweeping(const Layout& layout, const int* modes) const { return do_sweeping(layout, modes); }
   /// The crossing direction root `index` reacts to: +1 rising, -1 falling, 0 both.
   int root_direction(int index) const { return do_root_direction(index); }
+  /// While the part breaks a current in its present mode (a contact's opening arc): the index in the state vector
+  /// of a voltage acting in series with its current (the arc's), through which the solver reads the time
+  /// constant L/R of the circuit being broken (solver/break_circuit.h); -1 when the part is not breaking.
+  int breaking_state(const Layout& layout, const int* modes) const { return do_breaking_state(layout, modes); }
   /// A scheduled or controller action (close, open for switches; enable, disable for loads).
   /// `states` is the solver's state vector (may be null when only checking that the action applies): a
   /// command may re-initialise the part's own states, e.g. restart a contact's parting progress. `before` is the
@@ -352,6 +356,7 @@ class Part {
   virtual ModeChange do_settle(const Point&, const Layout&, int*) const { return {}; }
   virtual bool do_sweeping(const Layout&, const int*) const { return false; }
   virtual int do_root_direction(int) const { return 0; }
+  virtual int do_breaking_state(const Layout&, const int*) const { return -1; }
   virtual ModeChange do_command(netlist::Action action, const Layout&, int*, double* states,
                                 const Point* before) const;
   /// Sign applied to current and power in the output: +1 passive, -1 for sources (delivering is positive).

@@ -353,6 +353,17 @@ class Driver {
   void collect_statistics(std::chrono::steady_clock::time_point started);
   // Applies every pending command at time t (states in x()). Returns true when a mode changed.
   bool apply_commands(double t);
+  // A part that has started breaking at t: the time constant of the circuit it breaks, into Result::breaks.
+  // Its own equations, so the perturbed solves leave the integration's caches alone.
+  void record_break(double t, int part) {
+    if (circuit_.part(part).breaking_state(circuit_.layout(part), modes_.data()) < 0) return;
+    if (!break_equations_) break_equations_ = std::make_unique<Equations>(circuit_);
+    try {
+      result_.breaks.push_back(break_circuit(*break_equations_, t, x(), modes_.data(), unknowns_.data(), part));
+    } catch (const std::runtime_error& error) {
+      throw SolverError(error.what(), t);
+    }
+  }
   void stored_energies(double t, const double* states, std::vector<double>& out) {
     solve_at(t, states);
     models::Point point = equations_.point(t, states, modes_.data(), unknowns_.data());
@@ -363,6 +374,7 @@ class Driver {
   const Circuit& circuit_;
   const Options& options_;
   Equations equations_;
+  std::unique_ptr<Equations> break_equations_;  // for record_break, made at the first break
   int states_;    // part states
   int n_;         // CVODE's state size: the part states, or one idle state for a circuit without any
   int accounts_;  // quadratures: energy accounts, then ∫i² dt (Circuit::quadrature_count)
@@ -534,6 +546,7 @@ bool Driver::apply_commands(double t) {
     solve_at(t, x());
     models::Point after = equations_.point(t, x(), modes_.data(), unknowns_.data());
     for (int part : moved) circuit_.part(part).settle(after, circuit_.layout(part), modes_.data());
+    for (int part : moved) record_break(t, part);
   }
   if (!first) record_step_row(t, x());  // the row after
   return any;

@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/break_circuit.h"
 #include "solver/circuit.h"
 #include "solver/timeline.h"
 #include "solver/waveform.h"
@@ -136,6 +137,7 @@ struct Result {
   double settled_energy = 0.0;
   std::vector<TimelineEntry> timeline;
   std::vector<Crossing> crossings;
+  std::vector<BreakCircuit> breaks;  // every opening arc's broken circuit, in time order
   Statistics statistics;
 };
 
