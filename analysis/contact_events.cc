@@ -86,6 +86,7 @@ ContactMetrics contact_metrics(const ContactEvents& events, const std::optional<
     m.break_current = std::fabs(arc.current);
     m.break_voltage = arc.voltage;
     m.break_time_constant = arc.time_constant;
+    m.break_time = arc.start;
     if (capacity) {
       m.break_use = judged.use;
       m.break_row = judged.row;

@@ -57,6 +57,7 @@ struct ContactMetrics {
   std::optional<double> break_time_constant;            // s, its circuit's L/R
   std::optional<double> break_use;                      // 1, with a breaking capacity
   std::optional<int> break_row;                         // its row (0: none covers it)
+  double break_time = 0.0;                              // s, when the worst opening's contacts parted
   std::optional<double> making_current, making_voltage_step;  // A, V: the largest over the touches
 };
 

@@ -40,7 +40,7 @@ std::vector<PartMetric> ResistiveMetrics::named() const {
     list.push_back({"break_voltage", "V", contact->break_voltage.value_or(none)});
     list.push_back({"break_time_constant", "s", contact->break_time_constant.value_or(none)});
     if (judges_breaks) {
-      list.push_back({"break_use", "1", contact->break_use.value_or(none)});
+      list.push_back({"break_use", "1", contact->break_use.value_or(none), break_detail});
       list.push_back({"break_row", "1", contact->break_row ? static_cast<double>(*contact->break_row) : none});
     }
     list.push_back({"making_current", "A", contact->making_current.value_or(none)});
@@ -93,6 +93,20 @@ double switched_capacitance(const solver::Waveform& rows, int current, int volta
 }
 
 // The worst pulse and the data-sheet rows it was judged between, for the verdict.
+// The worst opening and the data-sheet row that judged it, for the limit's detail.
+std::string describe_break(const ContactMetrics& m, const models::BreakingCapacity& capacity) {
+  const auto si = [](double value, const char* unit) { return netlist::format_si(value, unit); };
+  std::string text = fmt::format("worst opening at {}: {} at {}, L/R {}", si(m.break_time, "s"),
+                                 si(m.break_current.value_or(0.0), "A"), si(m.break_voltage.value_or(0.0), "V"),
+                                 si(m.break_time_constant.value_or(0.0), "s"));
+  const int row = m.break_row.value_or(0);
+  if (row <= 0) return text + "; no row of ratings.breaking_capacity covers it";
+  const auto& r = capacity.rows[static_cast<std::size_t>(row - 1)];
+  text += fmt::format("; ratings.breaking_capacity row {} ({} at {}, {}", row, si(r.current, "A"), si(r.voltage, "V"),
+                      models::direction_word(r.direction));
+  return text + (r.time_constant ? ", L/R up to " + si(*r.time_constant, "s") + ")" : ")");
+}
+
 std::string describe(const PulseJudgement& judged) {
   const char* unit = judged.pulse.peak_power > 0.0 && judged.curve.find("power") != std::string::npos ? "W" : "J";
   const double taken = unit[0] == 'W' ? judged.pulse.peak_power : judged.pulse.energy;
@@ -161,6 +175,7 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
       }
       metrics.contact =
           contact_metrics(contact_events(rows, contact, actuation ? actuation->parting_time : 0.0, breaks), capacity);
+      if (capacity && metrics.contact->break_use) metrics.break_detail = describe_break(*metrics.contact, *capacity);
     }
   }
   if (part < static_cast<int>(audit.parts.size())) metrics.energy = audit.parts[part].dissipated;

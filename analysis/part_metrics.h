@@ -78,6 +78,7 @@ struct ResistiveMetrics {
   double duty_average_power = std::nan("");  // W; NaN without a stated duty
   std::optional<ContactMetrics> contact;     // contactors (parts with an arc_energy signal)
   bool judges_breaks = false;                // the contactor has a breaking capacity
+  std::string break_detail;                  // the worst opening and the row that judged it
 
   /// The values as named metrics, in the order listed in the header comment.
   std::vector<PartMetric> named() const;
