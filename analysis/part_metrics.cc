@@ -79,11 +79,14 @@ double square_integral_trapezoid(const solver::Waveform& waveform, int column) {
 
 namespace {
 // The charge of one pulse (trapezoid of |i| over its rows) over the largest |v| across the part during it.
+// Only the pulse's own rows are read (times are in order), so many pulses cost the run's rows once, not each.
 double switched_capacitance(const solver::Waveform& rows, int current, int voltage, const Pulse& pulse) {
   double charge = 0.0, peak = 0.0;
-  for (std::size_t r = 0; r < rows.row_count(); ++r) {
+  const auto& times = rows.times();
+  const auto first = std::lower_bound(times.begin(), times.end(), pulse.start) - times.begin();
+  for (std::size_t r = static_cast<std::size_t>(first); r < rows.row_count(); ++r) {
     const double t = rows.time(r);
-    if (t < pulse.start || t > pulse.end) continue;
+    if (t > pulse.end) break;
     peak = std::max(peak, std::fabs(rows.value(r, voltage)));
     if (r > 0 && rows.time(r - 1) >= pulse.start) {
       charge += 0.5 * (std::fabs(rows.value(r - 1, current)) + std::fabs(rows.value(r, current))) * (t - rows.time(r - 1));
@@ -92,7 +95,6 @@ double switched_capacitance(const solver::Waveform& rows, int current, int volta
   return peak > 0.0 ? charge / peak : 0.0;
 }
 
-// The worst pulse and the data-sheet rows it was judged between, for the verdict.
 // The worst opening and the data-sheet row that judged it, for the limit's detail.
 std::string describe_break(const ContactMetrics& m, const models::BreakingCapacity& capacity) {
   const auto si = [](double value, const char* unit) { return netlist::format_si(value, unit); };
@@ -107,6 +109,7 @@ std::string describe_break(const ContactMetrics& m, const models::BreakingCapaci
   return text + (r.time_constant ? ", L/R up to " + si(*r.time_constant, "s") + ")" : ")");
 }
 
+// The worst pulse and the data-sheet rows it was judged between, for the verdict.
 std::string describe(const PulseJudgement& judged) {
   const char* unit = judged.pulse.peak_power > 0.0 && judged.curve.find("power") != std::string::npos ? "W" : "J";
   const double taken = unit[0] == 'W' ? judged.pulse.peak_power : judged.pulse.energy;

@@ -217,6 +217,7 @@ class ThermalResistor final : public Part {
       options_.network->power_jacobian(rate_by_power_);
       options_.network->state_jacobian(rate_by_thermal_state_);
     }
+    derived_ = pulse_curve_check();
   }
 
  private:
@@ -286,7 +287,7 @@ class ThermalResistor final : public Part {
     out[1] = resistance(point, layout);
     if (has_body()) out[2] = options_.network->body_temperature(thermal_states(point, layout), point.ambient) - kelvin_offset;
   }
-  std::vector<DerivedValue> do_derived_values() const override { return pulse_curve_check(); }
+  std::vector<DerivedValue> do_derived_values() const override { return derived_; }
   // How the thermal model compares with the data-sheet pulse curve (models/pulse_curve.h): the element heat
   // capacity the curve implies, and the model's element rise at each row's permitted pulse over the allowed rise.
   std::vector<DerivedValue> pulse_curve_check() const {
@@ -372,6 +373,7 @@ class ThermalResistor final : public Part {
   ResistanceLaw law_;
   ThermalOptions options_;
   std::optional<DefiningValue> defining_;
+  std::vector<DerivedValue> derived_;  // pulse_curve_check(), taken once: it depends on the data alone
   int thermal_count_ = 0;
   std::vector<double> temperature_gradient_;   // dT_element/dx
   std::vector<double> rate_by_power_;          // d(dx/dt)/dP
