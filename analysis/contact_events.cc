@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace linkrise::analysis {
 namespace {
@@ -45,6 +46,11 @@ double first_peak(const solver::Waveform& rows, const ContactColumns& c, std::si
   }
   return peak;
 }
+
+// An L/R the solver could not read is judged as unbounded: only rows without a time constant cover it.
+double judged_time_constant(const ArcEvent& arc) {
+  return std::isnan(arc.time_constant) ? std::numeric_limits<double>::infinity() : arc.time_constant;
+}
 }  // namespace
 
 ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& c, double parting_time,
@@ -80,7 +86,8 @@ ContactMetrics contact_metrics(const ContactEvents& events, const std::optional<
     if (!arc.opening) continue;
     models::BreakJudgement judged;
     const double score =
-        capacity ? (judged = capacity->judge(arc.voltage, arc.current, arc.time_constant)).use : std::fabs(arc.current);
+        capacity ? (judged = capacity->judge(arc.voltage, arc.current, judged_time_constant(arc))).use
+                 : std::fabs(arc.current);
     if (score <= worst) continue;
     worst = score;
     m.break_current = std::fabs(arc.current);

@@ -7,13 +7,14 @@
 
 namespace linkrise::solver {
 namespace {
+// A perturbed network that does not solve: the break's time constant is then unknown (NaN), not a failed run.
+struct Unsolved {};
+
 // The contact's current with the network solved at `states` (a copy the caller perturbs).
 double contact_current(Equations& equations, double time, const std::vector<double>& states, const int* modes,
                        std::vector<double>& unknowns, int part) {
   const Circuit& circuit = equations.circuit();
-  if (!equations.solve_network(time, states.data(), modes, unknowns.data())) {
-    throw std::runtime_error("the network did not solve while reading a break's time constant");
-  }
+  if (!equations.solve_network(time, states.data(), modes, unknowns.data())) throw Unsolved{};
   return circuit.part(part).current(equations.point(time, states.data(), modes, unknowns.data()),
                                     circuit.layout(part));
 }
@@ -31,10 +32,9 @@ double current_slope(Equations& equations, double time, std::vector<double>& sta
   states[k] = held;
   return (above - below) / (2.0 * step);
 }
-}  // namespace
 
-BreakCircuit break_circuit(Equations& equations, double time, const double* states, const int* modes,
-                           const double* unknowns, int part) {
+BreakCircuit time_constant_of(Equations& equations, double time, const double* states, const int* modes,
+                              const double* unknowns, int part) {
   const Circuit& circuit = equations.circuit();
   const int series = circuit.part(part).breaking_state(circuit.layout(part), modes);
   if (series < 0) throw std::invalid_argument("break_circuit: the part is not breaking in these modes");
@@ -86,6 +86,18 @@ BreakCircuit break_circuit(Equations& equations, double time, const double* stat
   result.resistance = 1.0 / std::fabs(conductance);
   result.inductance = result.time_constant * result.resistance;
   return result;
+}
+}  // namespace
+
+
+BreakCircuit break_circuit(Equations& equations, double time, const double* states, const int* modes,
+                           const double* unknowns, int part) {
+  try {
+    return time_constant_of(equations, time, states, modes, unknowns, part);
+  } catch (const Unsolved&) {
+    const double unknown = std::numeric_limits<double>::quiet_NaN();
+    return BreakCircuit{time, part, unknown, unknown, unknown};
+  }
 }
 
 }  // namespace linkrise::solver

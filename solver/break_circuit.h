@@ -31,7 +31,7 @@ struct BreakCircuit {
 
 /// The broken circuit of `part` at a solved point whose modes have it breaking (breaking_state ≥ 0).
 /// `equations` is used for network solves and the Jacobian: pass one the driver does not rely on, as the
-/// perturbed solves move its caches.
+/// perturbed solves move its caches. A perturbed network that does not solve leaves the figures NaN (unknown).
 BreakCircuit break_circuit(Equations& equations, double time, const double* states, const int* modes,
                            const double* unknowns, int part);
 

@@ -358,11 +358,7 @@ class Driver {
   void record_break(double t, int part) {
     if (circuit_.part(part).breaking_state(circuit_.layout(part), modes_.data()) < 0) return;
     if (!break_equations_) break_equations_ = std::make_unique<Equations>(circuit_);
-    try {
-      result_.breaks.push_back(break_circuit(*break_equations_, t, x(), modes_.data(), unknowns_.data(), part));
-    } catch (const std::runtime_error& error) {
-      throw SolverError(error.what(), t);
-    }
+    result_.breaks.push_back(break_circuit(*break_equations_, t, x(), modes_.data(), unknowns_.data(), part));
   }
   void stored_energies(double t, const double* states, std::vector<double>& out) {
     solve_at(t, states);

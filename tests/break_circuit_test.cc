@@ -114,3 +114,22 @@ TEST(BreakCircuit, TimeConstantJudgesTheBreakingCapacityRow) {
   EXPECT_NEAR(judged.break_use.value_or(0.0), current / 20.0, 1e-6);
   EXPECT_NEAR(judged.break_time_constant.value_or(0.0), tau, kRelative * tau);
 }
+
+// An L/R the solver could not read (NaN) is judged as unbounded: a row that states a time constant cannot cover
+// it, one without does.
+TEST(BreakCircuit, UnknownTimeConstantIsJudgedUnbounded) {
+  linkrise::analysis::ContactEvents events;
+  linkrise::analysis::ArcEvent arc;
+  arc.opening = true;
+  arc.current = 10.0;
+  arc.voltage = 100.0;
+  arc.time_constant = std::nan("");
+  events.arcs.push_back(arc);
+  using linkrise::models::CurrentDirection;
+  const linkrise::models::BreakingCapacity stated{{{450.0, 100.0, CurrentDirection::Both, 1.0}}};
+  EXPECT_EQ(linkrise::analysis::contact_metrics(events, stated).break_row.value_or(-1), 0);
+  const linkrise::models::BreakingCapacity unstated{{{450.0, 100.0, CurrentDirection::Both, std::nullopt}}};
+  const auto judged = linkrise::analysis::contact_metrics(events, unstated);
+  EXPECT_EQ(judged.break_row.value_or(-1), 1);
+  EXPECT_DOUBLE_EQ(judged.break_use.value_or(0.0), 0.1);
+}
