@@ -14,6 +14,7 @@
 #include <sunmatrix/sunmatrix_dense.h>
 
 #include "solver/absolute_tolerances.h"
+#include "solver/compiled_kernels.h"
 #include "solver/equations.h"
 #include "solver/fast_states.h"
 #include "solver/failure_diagnosis.h"
@@ -416,8 +417,10 @@ void Driver::create_vectors(double t0) {
   handles_.states = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.states, "N_VNew_Serial");
   check(N_VEnableFusedOps_Serial(handles_.states, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
+  if (options_.compiled_kernels) use_compiled_kernels(handles_.states);
   handles_.scratch = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.scratch, "N_VNew_Serial");
+  if (options_.compiled_kernels) use_compiled_kernels(handles_.scratch);
   handles_.tolerances = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.tolerances, "N_VNew_Serial");
   double* tolerance = N_VGetArrayPointer(handles_.tolerances);
@@ -433,6 +436,7 @@ void Driver::create_vectors(double t0) {
     check_pointer(handles_.account_tolerances, "N_VNew_Serial");
     N_VConst(options_.absolute_tolerance, handles_.account_tolerances);
     check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
+    if (options_.compiled_kernels) use_compiled_kernels(handles_.accounts);
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
   std::fill(x(), x() + n_, 0.0);
@@ -467,6 +471,7 @@ void Driver::attach_solver(double t0) {
   check_pointer(handles_.matrix, "SUNDenseMatrix");
   handles_.linear_solver = SUNLinSol_Dense(handles_.states, handles_.matrix, handles_.context);
   check_pointer(handles_.linear_solver, "SUNLinSol_Dense");
+  if (options_.compiled_kernels) use_compiled_kernels(handles_.matrix, handles_.linear_solver);
   check(CVodeSetLinearSolver(handles_.memory, handles_.linear_solver, handles_.matrix), "CVodeSetLinearSolver", t0);
   check(CVodeSetJacFn(handles_.memory, jacobian_callback), "CVodeSetJacFn", t0);
   check(CVodeSetMaxNumSteps(handles_.memory, 100000), "CVodeSetMaxNumSteps", t0);

@@ -101,6 +101,9 @@ struct Options {
   // Row storage to reuse for Result::steps (studies keep one per worker and hand it back after each sample),
   // so a run allocates no waveform; null: fresh storage.
   Waveform* step_store = nullptr;
+  // CVODE's vector and dense-matrix kernels compiled with the project (solver/compiled_kernels.h: the same
+  // numbers bit for bit, several times fewer instructions); false keeps SUNDIALS's own.
+  bool compiled_kernels = true;
 };
 
 /// Options from a case's run block and events; the command line may change them afterwards.
