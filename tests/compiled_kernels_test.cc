@@ -130,7 +130,8 @@ TEST_F(CompiledKernels, ElementwiseOperationsAndNormsMatchTheLibrary) {
     both("add const", [](const Operands& o) { N_VAddConst(o.x.get(), 1.5e-3, o.z.get()); });
     load(library, values, n);
     load(compiled, values, n);
-    EXPECT_TRUE(same_bits(N_VWrmsNorm(library.x.get(), library.y.get()), N_VWrmsNorm(compiled.x.get(), compiled.y.get())));
+    EXPECT_TRUE(
+        same_bits(N_VWrmsNorm(library.x.get(), library.y.get()), N_VWrmsNorm(compiled.x.get(), compiled.y.get())));
     EXPECT_TRUE(same_bits(N_VWSqrSumLocal(library.x.get(), library.y.get()),
                           N_VWSqrSumLocal(compiled.x.get(), compiled.y.get())));
     EXPECT_TRUE(same_bits(N_VMaxNorm(library.x.get()), N_VMaxNorm(compiled.x.get())));
@@ -162,7 +163,7 @@ TEST_F(CompiledKernels, FusedOperationsMatchTheLibrary) {
         EXPECT_TRUE(same_bits(library[k]->data(), compiled[k]->data(), n)) << "linear combination of " << count;
       }
       // Scale-add-multi: Z[k] = c[k]·x + Y[k], with Z apart from Y or equal to it.
-      std::vector<N_Vector> library_y(library_x.begin(), library_x.end()), compiled_y(compiled_x.begin(), compiled_x.end());
+      std::vector<N_Vector> library_y = library_x, compiled_y = compiled_x;
       std::vector<N_Vector> library_out = library_y, compiled_out = compiled_y;
       N_Vector* library_z_array = form == 0 ? library_out.data() : library_y.data();
       N_Vector* compiled_z_array = form == 0 ? compiled_out.data() : compiled_y.data();
@@ -264,7 +265,8 @@ TEST(CompiledKernelsRun, SequenceRunGivesTheSameRowsAndMetricsBitForBit) {
   EXPECT_TRUE(same_bits(a.times().data(), b.times().data(), static_cast<long>(a.row_count())));
   for (std::size_t row = 0; row < a.row_count(); ++row) {
     for (int column = 0; column < a.column_count(); ++column) {
-      ASSERT_TRUE(same_bits(a.value(row, column), b.value(row, column))) << "row " << row << ", " << a.headers()[column];
+      ASSERT_TRUE(same_bits(a.value(row, column), b.value(row, column)))
+          << "row " << row << ", " << a.headers()[column];
     }
   }
   const auto& metrics_a = library.evaluation().metrics.list();
