@@ -774,9 +774,12 @@ void Driver::record_peaks_inside_step(double t) {
     const double vertex = middle + std::clamp(offset, -1.0, 1.0) * half;
     const bool above_ends = b > a && b > e;
     // Where the column may reach its largest |value| so far, the peak is searched for exactly — also one the
-    // parabola puts between the middle and an end (the middle then lies below that end).
-    const bool may_be_largest = top >= (1.0 - 1e-3) * largest_magnitude(c) && start >= dense_from &&
-                                t <= dense_to && middle > start && middle < t;
+    // parabola puts between the middle and an end (the middle then lies below that end). Not where the top rises
+    // less than 10·rtol above the step's ends: those rows hold the peak to that already (a plateau's wiggles at
+    // the solver's tolerance would otherwise each cost a search).
+    const bool may_be_largest = top >= (1.0 - 1e-3) * largest_magnitude(c) &&
+                                top - std::max(a, e) > 10.0 * options_.relative_tolerance * top &&
+                                start >= dense_from && t <= dense_to && middle > start && middle < t;
     if (may_be_largest && (above_ends || (std::fabs(offset) < 1.0 && top > std::max(a, e)))) {
       if (above_ends) {
         peaks.push_back(refine_peak(start, t, middle, b, c, a, e));
