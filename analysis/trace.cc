@@ -121,6 +121,9 @@ std::optional<Extremum> largest(const std::vector<double>& times, const std::vec
   return result;
 }
 
+// Neighbouring row intervals more than this many times apart are not joined by a parabola.
+constexpr double kSpacingRatio = 10.0;
+
 // ∫ over one smooth run of rows [first, last] by parabolas through consecutive triples.
 double smooth_integral(const std::vector<double>& t, const std::vector<double>& v, std::size_t first,
                        std::size_t last) {
@@ -135,12 +138,20 @@ double smooth_integral(const std::vector<double>& t, const std::vector<double>& 
     auto primitive = [&](double s) { return v[mid] * s + b * s * s / 2.0 + a * s * s * s / 3.0; };
     return primitive(upper) - primitive(lower);
   };
+  // A parabola through rows of very different spacing (a row microseconds after a switching, then a step of
+  // tenths of a second) extrapolates the short interval's slope over the long one: such a pair of intervals is
+  // taken by trapezoids instead (exact for the straight line the long step's solver error allows anyway).
+  auto even = [&](std::size_t mid) {
+    const double h0 = t[mid] - t[mid - 1], h1 = t[mid + 1] - t[mid];
+    return h0 <= kSpacingRatio * h1 && h1 <= kSpacingRatio * h0;
+  };
+  auto trapezoid = [&](std::size_t from) { return 0.5 * (v[from] + v[from + 1]) * (t[from + 1] - t[from]); };
   while (i + 2 <= last) {
-    sum += parabola(i + 1, t[i] - t[i + 1], t[i + 2] - t[i + 1]);
+    sum += even(i + 1) ? parabola(i + 1, t[i] - t[i + 1], t[i + 2] - t[i + 1]) : trapezoid(i) + trapezoid(i + 1);
     i += 2;
   }
   if (i + 1 == last) {
-    if (last - first >= 2) {
+    if (last - first >= 2 && even(last - 1)) {
       sum += parabola(last - 1, 0.0, t[last] - t[last - 1]);
     } else {
       sum += 0.5 * (v[i] + v[last]) * (t[last] - t[i]);

@@ -1,5 +1,6 @@
 #include "models/thermal_resistor.h"
 
+#include <array>
 #include <cmath>
 #include <limits>
 #include <span>
@@ -340,7 +341,11 @@ class ThermalResistor final : public Part {
     const ThermalNetwork& network = *options_.network;
     const int n = thermal_count_;
     const int s = layout.state;
-    std::vector<double> rate(static_cast<std::size_t>(n));
+    // On the stack for the usual few thermal states: this runs in every right-hand side evaluation.
+    std::array<double, 8> few{};
+    std::vector<double> many(n > static_cast<int>(few.size()) ? static_cast<std::size_t>(n) : 0);
+    const std::span<double> rate = many.empty() ? std::span<double>(few.data(), static_cast<std::size_t>(n))
+                                                : std::span<double>(many);
     network.derivatives(thermal_states(point, layout), power, point.ambient, rate);
     for (int k = 0; k < n; ++k) stamp.rate(s + k, rate[k]);
     if (!stamp.wants_derivatives()) return;

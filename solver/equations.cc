@@ -22,7 +22,8 @@ Equations::Equations(const Circuit& circuit)
       start_(unknowns_),
       nodes_(static_cast<int>(circuit.node_names().size())),
       sensitivity_(unknowns_, std::max(states_, 1)),
-      state_change_(std::max(states_, 1)) {}
+      state_change_(std::max(states_, 1)),
+      predicted_change_(unknowns_) {}
 
 models::Point Equations::point(double time, const double* states, const int* modes, const double* unknowns) const {
   models::Point p;
@@ -68,7 +69,8 @@ bool Equations::solve_network(double time, const double* states, const int* mode
       std::equal(modes, modes + mode_total, cache_modes_.begin())) {
     for (int j = 0; j < states_; ++j) state_change_[j] = states[j] - cache_states_[j];
     Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
-    y = Eigen::Map<const Eigen::VectorXd>(cache_unknowns_.data(), unknowns_) + sensitivity_ * state_change_;
+    predicted_change_.noalias() = sensitivity_ * state_change_;
+    y = Eigen::Map<const Eigen::VectorXd>(cache_unknowns_.data(), unknowns_) + predicted_change_;
   }
   bool solved = solve_network_chord(time, states, modes, unknowns) ||
                 solve_network_uncached(time, states, modes, unknowns);

@@ -68,7 +68,8 @@ class Equations {
   Eigen::MatrixXd sensitivity_;
   bool sensitivity_valid_ = false;
   std::vector<int> sensitivity_modes_;
-  Eigen::VectorXd state_change_;  // scratch
+  Eigen::VectorXd state_change_;      // scratch
+  Eigen::VectorXd predicted_change_;  // scratch: sensitivity_ · state_change_, without a temporary per solve
   // Chord contraction rate seen with the current LU (negative: not measured yet).
   double contraction_ = -1.0;
   bool cache_valid_ = false;

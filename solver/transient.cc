@@ -8,12 +8,15 @@
 
 #include <cvodes/cvodes.h>
 #include <fmt/format.h>
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_min.h>
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
 #include <sunlinsol/sunlinsol_dense.h>
 #include <sunmatrix/sunmatrix_dense.h>
 
 #include "solver/absolute_tolerances.h"
+#include "solver/eigen_kernels.h"
 #include "solver/equations.h"
 #include "solver/fast_states.h"
 #include "solver/failure_diagnosis.h"
@@ -233,7 +236,7 @@ class Driver {
     if (!options_.record_steps) return;
     solve_at(t, states);
     fill_row(t, states);
-    result_.steps.add_row(t, row_);
+    add_step_row(t, row_);
   }
   // The next output time: the uniform grid's or the listed one's; +infinity past the last.
   double output_time(long index) const {
@@ -278,11 +281,23 @@ class Driver {
       peak_kept_.assign(states, states + n_);
       record_peaks_inside_step(t);
       std::copy(peak_kept_.begin(), peak_kept_.end(), states);
-      result_.steps.add_row(t, step_row_);
+      add_step_row(t, step_row_);
     }
     recorded_until_ = t;
   }
   void record_peaks_inside_step(double t);
+  double magnitude_at(double time, std::size_t column);
+  double refine_peak(double start, double end, double guess, double at_guess, std::size_t column, double a, double e);
+  // A step row, keeping each column's largest |value| so far (the in-step peak search refines only the peaks
+  // that may top it).
+  void add_step_row(double t, const std::vector<double>& row) {
+    result_.steps.add_row(t, row);
+    if (largest_.size() != row.size()) largest_.assign(row.size(), 0.0);
+    for (std::size_t c = 0; c < row.size(); ++c) {
+      if (std::fabs(row[c]) > largest_[c]) largest_[c] = std::fabs(row[c]);
+    }
+  }
+  double largest_magnitude(std::size_t column) const { return column < largest_.size() ? largest_[column] : 0.0; }
   // Where the run ends: its duration, or earlier where the supervisor has ended the sequence.
   double end() const {
     return options_.supervisor ? std::min(options_.duration, options_.supervisor->end_time()) : options_.duration;
@@ -380,6 +395,8 @@ class Driver {
   std::vector<double> row_;
   std::vector<double> chosen_row_;  // the output columns of row_
   std::vector<double> step_row_;   // the row at a step's end while the peak search fills row_
+  std::vector<double> middle_row_;  // the row at a step's middle while the peak search refines
+  std::vector<double> largest_;     // per column, the largest |value| of the step rows so far
   std::vector<double> peak_kept_;  // the states of a step row while the peak search uses the scratch vector
   std::vector<Command> pending_;
   CvodeHandles handles_;
@@ -416,8 +433,10 @@ void Driver::create_vectors(double t0) {
   handles_.states = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.states, "N_VNew_Serial");
   check(N_VEnableFusedOps_Serial(handles_.states, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
+  if (options_.eigen_kernels) use_eigen_kernels(handles_.states);
   handles_.scratch = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.scratch, "N_VNew_Serial");
+  if (options_.eigen_kernels) use_eigen_kernels(handles_.scratch);
   handles_.tolerances = N_VNew_Serial(n_, handles_.context);
   check_pointer(handles_.tolerances, "N_VNew_Serial");
   double* tolerance = N_VGetArrayPointer(handles_.tolerances);
@@ -433,6 +452,7 @@ void Driver::create_vectors(double t0) {
     check_pointer(handles_.account_tolerances, "N_VNew_Serial");
     N_VConst(options_.absolute_tolerance, handles_.account_tolerances);
     check(N_VEnableFusedOps_Serial(handles_.accounts, SUNTRUE), "N_VEnableFusedOps_Serial", t0);
+    if (options_.eigen_kernels) use_eigen_kernels(handles_.accounts);
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
   std::fill(x(), x() + n_, 0.0);
@@ -467,6 +487,7 @@ void Driver::attach_solver(double t0) {
   check_pointer(handles_.matrix, "SUNDenseMatrix");
   handles_.linear_solver = SUNLinSol_Dense(handles_.states, handles_.matrix, handles_.context);
   check_pointer(handles_.linear_solver, "SUNLinSol_Dense");
+  if (options_.eigen_kernels) use_eigen_kernels(handles_.matrix, handles_.linear_solver);
   check(CVodeSetLinearSolver(handles_.memory, handles_.linear_solver, handles_.matrix), "CVodeSetLinearSolver", t0);
   check(CVodeSetJacFn(handles_.memory, jacobian_callback), "CVodeSetJacFn", t0);
   check(CVodeSetMaxNumSteps(handles_.memory, 100000), "CVodeSetMaxNumSteps", t0);
@@ -719,7 +740,9 @@ double Driver::settle(double t) {
 
 // A signal that peaks inside a step would be sampled short of its peak by the rows at the step's ends. The
 // dense output at the step's middle shows such a peak (larger in magnitude than both ends); the parabola through
-// the three gives its time, and a row there holds it. Only within the step just taken, where dense output holds.
+// the three gives its time, and a row there holds it. Where the peak may be the column's largest so far, it is
+// found exactly (refine_peak), also when the parabola puts it between the middle and an end. Only within the
+// step just taken, where dense output holds.
 void Driver::record_peaks_inside_step(double t) {
   if (!options_.record_steps || result_.steps.row_count() == 0) return;
   const std::size_t last = result_.steps.row_count() - 1;
@@ -733,15 +756,40 @@ void Driver::record_peaks_inside_step(double t) {
   check(CVodeGetDky(handles_.memory, middle, 0, handles_.scratch), "CVodeGetDky", middle);
   solve_at(middle, dense);
   fill_row(middle, dense);
-  const std::vector<double>& at_middle = row_;
+  middle_row_ = row_;  // row_ is the scratch of every later evaluation
+  // Where CVODE's dense output holds: the last step it took, [t_n − h, t_n].
+  double dense_to = t;
+  check(CVodeGetCurrentTime(handles_.memory, &dense_to), "CVodeGetCurrentTime", t);
+  const double dense_from = dense_to - step;
   std::vector<double> peaks;
-  for (std::size_t c = 0; c < row_.size(); ++c) {
-    const double a = std::fabs(result_.steps.value(last, static_cast<int>(c))), b = std::fabs(at_middle[c]),
+  const double half = 0.5 * (t - start);
+  for (std::size_t c = 0; c < middle_row_.size(); ++c) {
+    const double a = std::fabs(result_.steps.value(last, static_cast<int>(c))), b = std::fabs(middle_row_[c]),
                  e = std::fabs(at_end[c]);
-    if (!(b > a && b > e)) continue;
-    // Vertex of the parabola through (−1, a), (0, b), (1, e) in half-steps from the middle.
-    const double offset = 0.5 * (a - e) / (a - 2.0 * b + e);
-    peaks.push_back(middle + std::clamp(offset, -1.0, 1.0) * 0.5 * (t - start));
+    // The parabola through (−1, a), (0, b), (1, e) in half-steps from the middle: its vertex and top.
+    const double curvature = a - 2.0 * b + e;
+    if (!(curvature < 0.0)) continue;
+    const double offset = 0.5 * (a - e) / curvature;
+    const double top = b - 0.125 * (a - e) * (a - e) / curvature;
+    const double vertex = middle + std::clamp(offset, -1.0, 1.0) * half;
+    const bool above_ends = b > a && b > e;
+    // Where the column may reach its largest |value| so far, the peak is searched for exactly — also one the
+    // parabola puts between the middle and an end (the middle then lies below that end). Not where the top rises
+    // less than 10·rtol above the step's ends: those rows hold the peak to that already (a plateau's wiggles at
+    // the solver's tolerance would otherwise each cost a search).
+    const bool may_be_largest = top >= (1.0 - 1e-3) * largest_magnitude(c) &&
+                                top - std::max(a, e) > 10.0 * options_.relative_tolerance * top &&
+                                start >= dense_from && t <= dense_to && middle > start && middle < t;
+    if (may_be_largest && (above_ends || (std::fabs(offset) < 1.0 && top > std::max(a, e)))) {
+      if (above_ends) {
+        peaks.push_back(refine_peak(start, t, middle, b, c, a, e));
+      } else if (vertex > start && vertex < t) {
+        const double at_vertex = magnitude_at(vertex, c);
+        if (at_vertex > a && at_vertex > e) peaks.push_back(refine_peak(start, t, vertex, at_vertex, c, a, e));
+      }
+    } else if (above_ends) {
+      peaks.push_back(vertex);
+    }
   }
   std::sort(peaks.begin(), peaks.end());
   peaks.erase(std::unique(peaks.begin(), peaks.end()), peaks.end());
@@ -750,8 +798,53 @@ void Driver::record_peaks_inside_step(double t) {
     check(CVodeGetDky(handles_.memory, peak, 0, handles_.scratch), "CVodeGetDky", peak);
     solve_at(peak, dense);
     fill_row(peak, dense);
-    result_.steps.add_row(peak, row_);
+    add_step_row(peak, row_);
   }
+}
+
+// |value| of column `column` at `time` inside the step just taken, from the dense output; 0 where it is not finite
+// (the minimiser then moves away from it).
+double Driver::magnitude_at(double time, std::size_t column) {
+  double* dense = N_VGetArrayPointer(handles_.scratch);
+  check(CVodeGetDky(handles_.memory, time, 0, handles_.scratch), "CVodeGetDky", time);
+  solve_at(time, dense);
+  fill_row(time, dense);
+  const double value = std::fabs(row_[column]);
+  return std::isfinite(value) ? value : 0.0;
+}
+
+// The time of the largest |value| of `column` inside (start, end), from a guess inside whose magnitude `at_guess`
+// is above both ends' (a at start, e at end), by Brent's minimisation of −|value| on the dense output (GSL,
+// docs/references.md [R-GSL-Brent-minimum]). A parabola through three points alone misses a sharp peak — the
+// main-closure inrush of a step of microseconds — by up to 1e-4, and by how the steps happen to fall.
+double Driver::refine_peak(double start, double end, double guess, double at_guess, std::size_t column, double a,
+                           double e) {
+  // In the step's own coordinate u = (time − start)/(end − start): GSL's Brent keeps a step of √ε·|u| at least,
+  // which at an absolute time of seconds would exceed a step of nanoseconds.
+  struct Search {
+    Driver* driver;
+    std::size_t column;
+    double start, length;
+  } search{this, column, start, end - start};
+  gsl_function objective{[](double u, void* data) {
+                           auto* s = static_cast<Search*>(data);
+                           return -s->driver->magnitude_at(s->start + u * s->length, s->column);
+                         },
+                         &search};
+  std::unique_ptr<gsl_min_fminimizer, void (*)(gsl_min_fminimizer*)> minimiser(
+      gsl_min_fminimizer_alloc(gsl_min_fminimizer_brent), gsl_min_fminimizer_free);
+  gsl_min_fminimizer_set_with_values(minimiser.get(), &objective, (guess - start) / search.length, -at_guess, 0.0,
+                                     -a, 1.0, -e);
+  // To a millionth of the step: the peak's value is then exact to (1e-6)² of the step's curvature.
+  for (int iteration = 0; iteration < 40; ++iteration) {
+    if (gsl_min_fminimizer_iterate(minimiser.get()) != GSL_SUCCESS) break;
+    const double lower = gsl_min_fminimizer_x_lower(minimiser.get()), upper = gsl_min_fminimizer_x_upper(minimiser.get());
+    if (gsl_min_test_interval(lower, upper, 1e-6, 0.0) == GSL_SUCCESS) break;
+  }
+  // A largest value at (or within a thousandth of the step of) either end is that end's row: no row of its own,
+  // as a row a hair from another one makes the rows' parabolas (analysis/trace.cc) amplify rounding.
+  const double u = gsl_min_fminimizer_x_minimum(minimiser.get());
+  return u > 1e-3 && u < 1.0 - 1e-3 ? start + u * search.length : start;
 }
 
 // Rows at time t (no width in any integral) where a signal peaks inside the skipped transient: the transient on
@@ -793,7 +886,7 @@ void Driver::record_skipped_peaks(double t, const SkippedTransient& transient) {
     transient.states_at(elapsed, state.data());
     solve_at(t, state.data());
     fill_row(t, state.data());
-    result_.steps.add_row(t, row_);
+    add_step_row(t, row_);
   }
 }
 

@@ -101,6 +101,10 @@ struct Options {
   // Row storage to reuse for Result::steps (studies keep one per worker and hand it back after each sample),
   // so a run allocates no waveform; null: fresh storage.
   Waveform* step_store = nullptr;
+  // CVODE's vector and dense-matrix operations carried out by Eigen (solver/eigen_kernels.h: the same numbers
+  // to rounding, several times fewer instructions than Debian's unoptimised SUNDIALS build); false keeps
+  // SUNDIALS's own.
+  bool eigen_kernels = true;
 };
 
 /// Options from a case's run block and events; the command line may change them afterwards.

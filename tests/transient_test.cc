@@ -211,6 +211,28 @@ TEST(Transient, SeriesRlcUnderdampedStepResponse) {
   }
 }
 
+// A peak between two step ends gets a row at its top: the in-step peak search finds it on the dense output with
+// Brent's minimiser (docs/references.md [R-GSL-Brent-minimum]), so the largest recorded current is the closed-form
+// peak V·sqrt(C/L)·e^(−α·t_pk) ([R-RLC-step]) to the run's own accuracy (rtol 1e-6 here; the dense output
+// interpolates to a few times that), without a watch at the peak.
+TEST(Transient, PeakBetweenStepEndsIsRecordedAtItsTop) {
+  const double R = 1e3;
+  const double alpha = R / (2 * kL), w0 = 1 / std::sqrt(kL * kCrlc), wd = std::sqrt(w0 * w0 - alpha * alpha);
+  const double t_peak = std::atan(wd / alpha) / wd;
+  const double expected = std::sqrt(kCrlc / kL) * std::exp(-alpha * t_peak);
+  Simulation sim(rlc_case("1 kOhm"));
+  sim.tight(1e-6, 1e-9);
+  Result result = sim.run();
+  ASSERT_EQ(result.outcome, Outcome::Completed) << result.message;
+  const auto current = column(result.steps, "choke.current");
+  std::size_t top = 0;
+  for (std::size_t r = 0; r < current.size(); ++r) {
+    if (current[r] > current[top]) top = r;
+  }
+  EXPECT_NEAR(current[top], expected, 5e-6 * expected);
+  EXPECT_NEAR(result.steps.time(top), t_peak, 1e-3 * t_peak);
+}
+
 TEST(Transient, SeriesRlcOverdampedStepResponse) {
   const double R = 10e3;
   const double alpha = R / (2 * kL), w0 = 1 / std::sqrt(kL * kCrlc);

@@ -24,10 +24,11 @@ double case_tolerance(const netlist::CaseDocument& document) {
   return netlist::RunSpec{}.relative_tolerance;
 }
 
-netlist::CaseDocument at_study_accuracy(const netlist::CaseDocument& document) {
+netlist::CaseDocument at_study_accuracy(netlist::CaseDocument document) {
   const double rtol = study_tolerance(case_tolerance(document));
-  return document.with({netlist::Override{"run.rtol", fmt::format("{:.17g}", rtol),
-                                          netlist::SourceMark{"study accuracy", 0, 0}}});
+  document.apply(
+      netlist::Override{"run.rtol", fmt::format("{:.17g}", rtol), netlist::SourceMark{"study accuracy", 0, 0}});
+  return document;
 }
 
 namespace {

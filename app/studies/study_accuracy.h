@@ -27,8 +27,8 @@ double study_tolerance(double rtol);
 /// The case's relative tolerance (its run block's, or the default).
 double case_tolerance(const netlist::CaseDocument& document);
 
-/// The document with its run.rtol at the study accuracy.
-netlist::CaseDocument at_study_accuracy(const netlist::CaseDocument& document);
+/// The document with its run.rtol at the study accuracy (a study point's document is moved in, not copied).
+netlist::CaseDocument at_study_accuracy(netlist::CaseDocument document);
 
 struct StudyAccuracy {
   bool checked = false;
