@@ -94,7 +94,8 @@ TEST_F(EigenKernels, LinearSumAndScaleMatchTheLibraryInEverySpecialCase) {
   for (long n : {1L, 7L, 14L, 19L}) {
     Operands library(context_, n, false), eigen(context_, n, true);
     std::vector<double> values(3 * n);
-    for (const auto& [a, b] : coefficients) {
+    for (const auto& pair : coefficients) {
+      const double a = pair.first, b = pair.second;  // named: clang 14 does not capture structured bindings
       for (int target = 0; target < 3; ++target) {  // result in z, in x, in y
         fill(values);
         load(library, values, n);
