@@ -52,6 +52,23 @@ TEST(Trace, IntegralIsExactForCubicsOnUnevenRowsAndSplitsAtSwitching) {
   EXPECT_NEAR(step.integral(0.5, 1.0), 1.5, 1e-15);
 }
 
+// Rows of a microsecond rise, then steps of a tenth of a second (a switching's transient, then the solver's long
+// steps): a parabola through 8 µs, 9 µs and 0.1 s would carry the rise's slope over the long step (0.35 off an
+// integral of 0.2). Intervals more than tenfold apart are joined by trapezoids instead, whose error on a
+// monotone function is at most the rise left, (1 − v(9 µs)), times half the long step (the trapezoid's bound for
+// a monotone integrand, [R-trapezoid-error]). ∫0^0.2 (1 − e^(−t/τ)) dt = 0.2 − τ·(1 − e^(−0.2/τ)).
+TEST(Trace, IntegralOverAShortRiseThenLongStepsStaysWithinTheTrapezoidBound) {
+  const double tau = 1e-6;
+  std::vector<double> t, v;
+  for (int k = 0; k < 10; ++k) t.push_back(k * 1e-6);
+  t.push_back(0.1);
+  t.push_back(0.2);
+  for (double x : t) v.push_back(1.0 - std::exp(-x / tau));
+  const double exact = 0.2 - tau * (1.0 - std::exp(-0.2 / tau));
+  const double bound = (1.0 - v[9]) * 0.1 / 2.0;
+  EXPECT_NEAR(Trace(t, v).integral(0.0, 0.2), exact, bound);
+}
+
 TEST(Trace, IntegralOfADecayingExponentialConvergesAtFourthOrder) {
   // ∫0^1 e^(−5t) dt = (1 − e^(−5))/5; with 100 equal steps Simpson's error is ~ h⁴·f⁗/180 ≈ 7e-9
   // [R-Simpson-error].
