@@ -61,12 +61,8 @@ BreakCircuit time_constant_of(Equations& equations, double time, const double* s
     contact_current(equations, time, x, modes, y, part);  // the Jacobian wants the solved point itself
     Eigen::MatrixXd jacobian(n, n);
     equations.jacobian(time, x.data(), modes, y.data(), jacobian.data());
-    Eigen::MatrixXd a(m, m);
-    Eigen::VectorXd b(m);
-    for (int i = 0; i < m; ++i) {
-      b[i] = jacobian(moving[i], series);
-      for (int j = 0; j < m; ++j) a(i, j) = jacobian(moving[i], moving[j]);
-    }
+    const Eigen::MatrixXd a = jacobian(moving, moving);  // Eigen's indexed views
+    const Eigen::VectorXd b = jacobian(moving, series);
     const Eigen::FullPivLU<Eigen::MatrixXd> lu(a);
     if (!lu.isInvertible()) {
       result.time_constant = result.inductance = std::numeric_limits<double>::infinity();

@@ -8,11 +8,9 @@
 namespace linkrise::solver {
 namespace {
 
+// The rows × columns sub-matrix (Eigen's indexed view, copied).
 Eigen::MatrixXd block(const Eigen::MatrixXd& matrix, const std::vector<int>& rows, const std::vector<int>& columns) {
-  Eigen::MatrixXd part(rows.size(), columns.size());
-  for (std::size_t r = 0; r < rows.size(); ++r)
-    for (std::size_t c = 0; c < columns.size(); ++c) part(r, c) = matrix(rows[r], columns[c]);
-  return part;
+  return matrix(rows, columns);
 }
 
 // Largest modulus of a square matrix's eigenvalues (0 for an empty matrix).
