@@ -97,4 +97,25 @@ TEST(FastStates, SplitTakesOnlyModesFarFasterThanTheRest) {
   EXPECT_TRUE(linkrise::solver::split_fast_states(ringing, 1e-3, 1.0).fast.empty());
 }
 
+TEST(FastStates, ASplitRightAtTheRatioIsStillFound) {
+  // Decay rates 1e6 /s, b and 1 /s and a state of zero rate (a SOC fed by the fast one). At ratio 1e-5 the fastest
+  // state splits off while b ≤ 10 /s (τ_F = 1 µs ≤ 1e-5 · 1/b): b = 9.9 splits, b = 10.1 does not. The eigenvalue
+  // bounds that spare the eigenvalue problems (solver/fast_states.cc) must leave this to the eigenvalues.
+  for (double b : {9.9, 10.1}) {
+    Eigen::MatrixXd jacobian = Eigen::MatrixXd::Zero(4, 4);
+    jacobian(0, 0) = -1e6;
+    jacobian(1, 1) = -b;
+    jacobian(2, 2) = -1.0;
+    jacobian(3, 0) = -1e-3;
+    const auto split = linkrise::solver::split_fast_states(jacobian, 1e-5, 10.0);
+    if (b < 10.0) {
+      ASSERT_EQ(split.fast.size(), 1u) << b;
+      EXPECT_EQ(split.fast[0], 0);
+      EXPECT_NEAR(split.slow_time, 1.0 / b, 1e-12);
+    } else {
+      EXPECT_TRUE(split.fast.empty()) << b;
+    }
+  }
+}
+
 }  // namespace
