@@ -85,6 +85,7 @@ bool Equations::solve_network(double time, const double* states, const int* mode
 }
 
 void Equations::remember_factor(const int* modes) {
+  chord_inverse_ = factor_.inverse();
   factor_valid_ = true;
   contraction_ = -1.0;
   factor_modes_.assign(modes, modes + circuit_.mode_count());
@@ -99,10 +100,10 @@ bool Equations::solve_network_chord(double time, const double* states, const int
   for (int iteration = 0; iteration < 8; ++iteration) {
     assemble(point(time, states, modes, unknowns), false);
     if (!network_.allFinite()) break;
-    step_ = factor_.solve(-network_);
+    step_.noalias() = chord_inverse_ * network_;
     if (!step_.allFinite()) break;
     ++newton_iterations_;
-    y += step_;
+    y -= step_;  // the chord step is −(dG/dy)⁻¹·G
     double voltage_scale = 0.0, current_scale = 0.0;
     for (int i = 0; i < unknowns_; ++i) {
       double& scale = i < nodes ? voltage_scale : current_scale;

@@ -360,6 +360,8 @@ class Driver {
   double advance(double t);
   std::optional<double> visit_step(double reached);
   void switch_inside_step(double command_time, double reached);
+  void back_up_to(double time);
+  std::optional<double> finish_inside_step(double reached);
   void take_sample(double sample_time);
   void handle_roots(double reached);
   void record_failure(const SolverError& error);
@@ -405,6 +407,9 @@ class Driver {
   double recorded_until_ = 0.0;
   long next_grid_index_ = 0;
   double last_sample_ = -std::numeric_limits<double>::infinity();
+  // The sample at which the supervisor finished the sequence: the run ends there, not where the step that
+  // holds it happens to end (which moved the end, and every integral up to it, with the step placement).
+  std::optional<double> finished_at_;
   Statistics harvested_;
   bool cvode_ready_ = false;  // every CVODE object attached: the statistics can be read
   long steps_taken_ = 0;      // CVODE steps of the whole run, against Options::max_steps
@@ -618,6 +623,7 @@ double Driver::advance(double t) {
   check(CVodeGetCurrentTime(handles_.memory, &internal), "CVodeGetCurrentTime", t);
   if (internal > t) {
     if (auto switched = visit_step(internal)) return *switched;
+    if (auto finished = finish_inside_step(internal)) return *finished;
   }
   double stop = pending_.empty() ? end() : std::min(end(), pending_.front().time);
   check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
@@ -627,6 +633,7 @@ double Driver::advance(double t) {
   accounts_stale_ = true;
   check_budgets(reached);
   if (auto switched = visit_step(reached)) return *switched;
+  if (auto finished = finish_inside_step(reached)) return *finished;
   record_until(reached, x());
   if (flag == CV_ROOT_RETURN) handle_roots(reached);
   return reached;
@@ -651,23 +658,33 @@ std::optional<double> Driver::visit_step(double reached) {
 // Goes back to a command inside the step (state from dense output, later rows dropped), applies it, restarts.
 void Driver::switch_inside_step(double command_time, double reached) {
   if (command_time < reached) {
-    double* dense = N_VGetArrayPointer(handles_.scratch);
-    check(CVodeGetDky(handles_.memory, command_time, 0, handles_.scratch), "CVodeGetDky", command_time);
-    if (accounts_ > 0) {
-      check(CVodeGetQuadDky(handles_.memory, command_time, 0, handles_.accounts), "CVodeGetQuadDky", command_time);
-    }
-    accounts_stale_ = false;
-    result_.steps.truncate_after(command_time);
-    // The state at the command goes to its own vector first: recording the output rows before it reuses the
-    // dense-output scratch vector (it once restarted the run from the last such row's state).
-    std::copy(dense, dense + n_, x());
-    record_until(command_time, x());
+    back_up_to(command_time);
     ++result_.statistics.step_backs;
   } else {
     record_until(reached, x());
   }
   apply_commands(command_time);
   restart(command_time);
+}
+
+// The run back at `time` inside the step just taken: states and accounts from dense output, later rows dropped.
+void Driver::back_up_to(double time) {
+  double* dense = N_VGetArrayPointer(handles_.scratch);
+  check(CVodeGetDky(handles_.memory, time, 0, handles_.scratch), "CVodeGetDky", time);
+  if (accounts_ > 0) check(CVodeGetQuadDky(handles_.memory, time, 0, handles_.accounts), "CVodeGetQuadDky", time);
+  accounts_stale_ = false;
+  result_.steps.truncate_after(time);
+  // The state goes to its own vector first: recording the output rows before it reuses the dense-output
+  // scratch vector (it once restarted the run from the last such row's state).
+  std::copy(dense, dense + n_, x());
+  record_until(time, x());
+}
+
+// Where the supervisor finished the sequence at a sample inside the step, the run ends at that sample.
+std::optional<double> Driver::finish_inside_step(double reached) {
+  if (!finished_at_ || !(*finished_at_ < reached) || !(*finished_at_ > recorded_until_)) return std::nullopt;
+  back_up_to(*finished_at_);
+  return *finished_at_;
 }
 
 void Driver::take_sample(double sample_time) {
@@ -677,6 +694,7 @@ void Driver::take_sample(double sample_time) {
   Probe probe{&circuit_, sample_time, dense, unknowns_.data(), modes_.data()};
   std::vector<Command> decided;
   options_.supervisor->sample(probe, decided, result_.timeline);
+  if (!finished_at_ && options_.supervisor->finished()) finished_at_ = sample_time;
   for (auto& command : decided) {
     command.time = std::max(command.time, sample_time);
     auto position = std::upper_bound(pending_.begin(), pending_.end(), command,

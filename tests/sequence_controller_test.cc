@@ -139,9 +139,12 @@ TEST(SequenceController, TimeoutFiresAtTheConfiguredTimeOnAConstantPowerStall) {
   EXPECT_NEAR(run.evaluation.stall->equilibrium, 373.2051, 5e-4);
   EXPECT_EQ(run.metric("sequence.stall"), 1.0);
   EXPECT_FALSE(run.evaluation.pass);  // an unexpected fault fails the verdict
-  // After the last fault the contacts open (2 ms delay) and the controller ends the run.
+  // After the last fault the contacts open (2 ms delay, at 62 ms) and the controller ends the run at its next
+  // sample, 63 ms — exactly there, not at the end of the solver step that holds that sample (the end, and every
+  // integral up to it, once moved with the step placement).
   EXPECT_EQ(run.result.outcome, linkrise::solver::Outcome::SupervisorFinished);
-  EXPECT_LT(run.result.end_time, 70e-3);
+  EXPECT_NEAR(run.result.end_time, 63e-3, kTime);
+  EXPECT_NEAR(run.result.steps.times().back(), 63e-3, kTime);
 }
 
 // Capacitance removed (1 µF stray instead of 1 mF): the link meets the rule within a sample, long before the
