@@ -200,7 +200,7 @@ std::string part_definition(const std::string& metric) {
            "rating; not reached without an arcing opening)";
   }
   if (metric == "break_row") return "the breaking-capacity row the worst opening was judged against (0: none covers it)";
-  if (metric == "making_current") return "the largest current peak right after the contacts touched (every touch)";
+  if (metric == "making_current") return "the largest current peak right after the contacts touched (every touch), before the next switching";
   if (metric == "making_voltage_step") return "the largest voltage across the contacts just before they touched";
   if (metric == "average_power") {
     return "heat dissipated in the part over the run divided by the run's length (it depends on the length "

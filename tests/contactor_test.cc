@@ -94,7 +94,7 @@ ContactEvents events_of(const linkrise::solver::Result& result, const std::strin
                                              rows.column(part + ".closed"), rows.column(part + ".arcing"),
                                              rows.column(part + ".arc_energy")};
   EXPECT_GE(columns.arc_energy, 0);
-  return linkrise::analysis::contact_events(rows, columns, parting_time, result.breaks);
+  return linkrise::analysis::contact_events(rows, columns, parting_time, result.breaks, result.timeline);
 }
 
 // Invented test circuit: an ideal source, a contactor and either an inductor carrying an initial current or a
@@ -215,6 +215,30 @@ TEST(ContactorArc, BounceGapHoldsTheArcVoltageWithTheCurrentFlowing) {
   ASSERT_EQ(events.voltage_steps.size(), 1u);
   EXPECT_NEAR(events.voltage_steps[0], ua + rc * i, 1e-9 * ua);
   EXPECT_NEAR(events.making_currents[0], us / (r + rc), 1e-9 * us / r);
+}
+
+// Two contacts in one loop (invented circuit: 100 V, k1, 10 Ω, k2): k1 touches at 1 ms with k2 still open, so
+// it makes only the microampere through k2's 100 MΩ (Ohm's law, V/(R + R_open)); k2 closes the loop at 2 ms and
+// makes the 10 A. k1's first current peak is looked for only until the next switching — it once ran on to the
+// current k2 made a millisecond later and reported 10 A for k1 too.
+TEST(ContactorArc, EachContactMakesOnlyTheCurrentOfItsOwnTouch) {
+  Simulation simulation(
+      "title: two contacts in one loop\nground: gnd\nparts:\n"
+      "  - {name: supply, kind: dc_source, nodes: [top, gnd], voltage: 100 V}\n"
+      "  - {name: k1, kind: contactor, nodes: [top, mid], closed_resistance: 1 mOhm, open_resistance: 100 MOhm}\n"
+      "  - {name: r1, kind: resistor, nodes: [mid, low], resistance: 10 Ohm}\n"
+      "  - {name: k2, kind: contactor, nodes: [low, gnd], closed_resistance: 1 mOhm, open_resistance: 100 MOhm}\n"
+      "events:\n  - {at: 1 ms, close: k1}\n  - {at: 2 ms, close: k2}\nrun: {duration: 3 ms}\n");
+  auto result = simulation.run();
+  ASSERT_EQ(result.outcome, linkrise::solver::Outcome::Completed) << result.message;
+  const auto first = events_of(result, "k1", 10e-6), second = events_of(result, "k2", 10e-6);
+  ASSERT_EQ(first.making_currents.size(), 1u);
+  ASSERT_EQ(second.making_currents.size(), 1u);
+  const double leak = 100.0 / (10.0 + 100e6 + 1e-3), closed = 100.0 / (10.0 + 2e-3);
+  // To 1e-4: what is checked is which touch a current belongs to (the two differ by seven decades); the
+  // microampere itself comes out 3.6e-6 above Ohm's law at the default tolerances.
+  EXPECT_NEAR(first.making_currents[0], leak, 1e-4 * leak);
+  EXPECT_NEAR(second.making_currents[0], closed, 1e-6 * closed);
 }
 
 // Below the minimum arc current no arc strikes: the gap's resistance ramps from closed to open over the
