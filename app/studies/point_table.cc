@@ -27,6 +27,9 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 }  // namespace
 
+PointTable::PointTable(std::size_t memory_points, std::size_t block_points)
+    : memory_points_(memory_points), block_points_(std::max<std::size_t>(block_points, 1)) {}
+
 void PointTable::resize(std::size_t count, std::size_t width) {
   width_ = width;
   records_.assign(count, Record{});
@@ -36,17 +39,67 @@ void PointTable::resize(std::size_t count, std::size_t width) {
   constant_set_.assign(width, false);
   dictionary_.assign(width, {});
   codes_.assign(width, {});
-  dense_.assign(width, {});
   form_.assign(width, Form::Constant);
   stored_end_ = 0;
-  // Every column's storage is reserved here, before a study's workers start: allocated inside the pool, a
-  // column would sit between the freed temporaries of an evaluation and the heap would grow around it
-  // (about 0.7 kB per sample before this table). Reserved pages that are never written (the constant
-  // columns' doubles) are not resident: the capacity costs address space only.
-  for (std::size_t c = 0; c < width; ++c) {
-    dense_[c].reserve(count);
-    codes_[c].reserve(count);
+  blocks_.assign((count + block_points_ - 1) / block_points_, Block{});
+  spare_rows_.clear();
+  chunk_.assign(block_points_, kNaN);
+  cached_.assign(width, Chunk{});
+  // Storage is reserved here, before a study's workers start: allocated inside the pool, it would sit between
+  // the freed temporaries of an evaluation and the heap would grow around it (about 0.7 kB per sample before
+  // this table). Reserved pages that are never written are not resident: the capacity costs address space only.
+  // A table that spills needs buffers for the blocks open at once (two while the workers straddle a block's
+  // end); they pass from block to block.
+  for (std::size_t c = 0; c < width; ++c) codes_[c].reserve(count);
+  if (count <= memory_points_) {
+    for (std::size_t b = 0; b < blocks_.size(); ++b) blocks_[b].rows.reserve(points_in(b) * width);
+  } else {
+    spare_rows_.resize(2);
+    for (auto& rows : spare_rows_) rows.reserve(block_points_ * width);
   }
+}
+
+std::size_t PointTable::points_in(std::size_t block) const {
+  return std::min(block_points_, records_.size() - block * block_points_);
+}
+
+void PointTable::ensure_rows(std::size_t block) {
+  std::vector<double>& rows = blocks_[block].rows;
+  if (!rows.empty() || width_ == 0) return;
+  if (rows.capacity() == 0 && !spare_rows_.empty()) {
+    rows = std::move(spare_rows_.back());
+    spare_rows_.pop_back();
+  }
+  rows.assign(points_in(block) * width_, kNaN);
+}
+
+// Column after column, the block's values in point order: a column is read back a block at a time.
+std::uint64_t PointTable::file_offset(std::size_t block, std::size_t column) const {
+  return (static_cast<std::uint64_t>(block) * width_ + column) * block_points_ * sizeof(double);
+}
+
+void PointTable::write_chunk(std::size_t block, std::size_t column) {
+  if (!file_) file_ = std::make_unique<TemporaryFile>();
+  file_->write(file_offset(block, column), chunk_.data(), block_points_ * sizeof(double));
+  if (cached_[column].block == block) cached_[column].block = Chunk{}.block;
+}
+
+// A complete block of a table that spills goes to the file, and its buffer to the next block.
+void PointTable::flush_if_complete(std::size_t block) {
+  Block& entry = blocks_[block];
+  if (records_.size() <= memory_points_ || entry.in_file || points_in(block) != block_points_ ||
+      entry.stored != block_points_) {
+    return;
+  }
+  ensure_rows(block);
+  for (std::size_t c = 0; c < width_; ++c) {
+    if (form_[c] != Form::Dense) continue;
+    for (std::size_t k = 0; k < block_points_; ++k) chunk_[k] = entry.rows[k * width_ + c];
+    write_chunk(block, c);
+  }
+  entry.rows.clear();
+  spare_rows_.push_back(std::exchange(entry.rows, {}));
+  entry.in_file = true;
 }
 
 std::uint32_t PointTable::outcome_index(const std::string& outcome) {
@@ -65,23 +118,61 @@ void PointTable::make_coded(std::size_t column) {
   form_[column] = Form::Coded;
 }
 
+double PointTable::coded_value(std::size_t i, std::size_t column) const {
+  // The point being stored has no code yet (it may lie past the codes); its value follows.
+  const bool coded = i < codes_[column].size() && records_[i].stored && records_[i].has_values;
+  return coded ? value_of(dictionary_[column][codes_[column][i]]) : kNaN;
+}
+
+// The values coded so far take their places in the blocks, in memory or in the file.
 void PointTable::make_dense(std::size_t column) {
-  std::vector<double>& values = dense_[column];
-  values.assign(records_.size(), kNaN);
-  for (std::size_t i = 0; i < records_.size(); ++i) {
-    // The point being stored has no code yet (it may lie past the codes); its value follows.
-    if (i < codes_[column].size() && records_[i].stored && records_[i].has_values) {
-      values[i] = value_of(dictionary_[column][codes_[column][i]]);
+  for (std::size_t b = 0; b < blocks_.size(); ++b) {
+    if (blocks_[b].stored == 0) continue;
+    const std::size_t first = b * block_points_;
+    if (blocks_[b].in_file) {
+      for (std::size_t k = 0; k < block_points_; ++k) chunk_[k] = coded_value(first + k, column);
+      write_chunk(b, column);
+      continue;
     }
+    ensure_rows(b);
+    for (std::size_t k = 0; k < points_in(b); ++k) blocks_[b].rows[k * width_ + column] = coded_value(first + k, column);
   }
   codes_[column] = {};
   dictionary_[column] = {};
   form_[column] = Form::Dense;
 }
 
+void PointTable::set_dense(std::size_t i, std::size_t column, double value) {
+  const std::size_t block = i / block_points_;
+  const std::size_t k = i - block * block_points_;
+  if (!blocks_[block].in_file) {
+    ensure_rows(block);
+    blocks_[block].rows[k * width_ + column] = value;
+    return;
+  }
+  // A point stored again after its block went to the file.
+  if (!file_) file_ = std::make_unique<TemporaryFile>();
+  file_->write(file_offset(block, column) + k * sizeof(double), &value, sizeof value);
+  if (cached_[column].block == block) cached_[column].values[k] = value;
+}
+
+double PointTable::dense_value(std::size_t i, std::size_t column) const {
+  const std::size_t block = i / block_points_;
+  const std::size_t k = i - block * block_points_;
+  if (!blocks_[block].in_file) return blocks_[block].rows[k * width_ + column];
+  Chunk& chunk = cached_[column];
+  if (chunk.block != block) {
+    chunk.values.resize(block_points_);
+    chunk.block = Chunk{}.block;  // not valid until read whole
+    file_->read(file_offset(block, column), chunk.values.data(), block_points_ * sizeof(double));
+    chunk.block = block;
+  }
+  return chunk.values[k];
+}
+
 void PointTable::set_value(std::size_t i, std::size_t column, double value) {
   if (form_[column] == Form::Dense) {
-    dense_[column][i] = value;
+    set_dense(i, column, value);
     return;
   }
   const std::uint64_t bits = bits_of(value);
@@ -103,7 +194,7 @@ void PointTable::set_value(std::size_t i, std::size_t column, double value) {
     return;
   }
   make_dense(column);
-  dense_[column][i] = value;
+  set_dense(i, column, value);
 }
 
 void PointTable::check_width(const PointResult& point) const {
@@ -115,6 +206,7 @@ void PointTable::check_width(const PointResult& point) const {
 void PointTable::store(std::size_t i, const PointResult& point) {
   check_width(point);
   Record& record = records_.at(i);
+  if (!record.stored) ++blocks_[i / block_points_].stored;
   record.status = static_cast<std::uint8_t>(point.status);
   record.verdict = static_cast<std::uint8_t>(point.verdict);
   record.outcome = outcome_index(point.outcome);
@@ -134,14 +226,22 @@ void PointTable::store(std::size_t i, const PointResult& point) {
     messages_.erase(message);
   }
   for (std::size_t c = 0; record.has_values && c < width_; ++c) set_value(i, c, point.values[c]);
+  flush_if_complete(i / block_points_);
 }
 
 void PointTable::push_back(const PointResult& point) {
   if (records_.empty() && width_ == 0) resize(0, point.values.size());
   check_width(point);  // before the table grows: a rejected point leaves it as it was
   records_.emplace_back();
-  for (auto& values : dense_) {
-    if (!values.empty()) values.push_back(kNaN);
+  const std::size_t block = (records_.size() - 1) / block_points_;
+  if (block == blocks_.size()) {
+    blocks_.emplace_back();
+  } else if (!blocks_[block].rows.empty()) {
+    blocks_[block].rows.resize(blocks_[block].rows.size() + width_, kNaN);
+  }
+  // The point that makes the table spill: the blocks complete before it go to the file too.
+  if (records_.size() == memory_points_ + 1) {
+    for (std::size_t b = 0; b < block; ++b) flush_if_complete(b);
   }
   store(records_.size() - 1, point);
 }
@@ -150,7 +250,7 @@ double PointTable::value(std::size_t i, std::size_t column) const {
   const Record& record = records_[i];
   if (!record.has_values) return kNaN;
   switch (form_[column]) {
-    case Form::Dense: return dense_[column][i];
+    case Form::Dense: return dense_value(i, column);
     case Form::Coded: return value_of(dictionary_[column][codes_[column][i]]);
     case Form::Constant: break;
   }
@@ -185,6 +285,11 @@ std::size_t PointTable::constant_columns() const {
 
 std::size_t PointTable::coded_columns() const {
   return static_cast<std::size_t>(std::count(form_.begin(), form_.end(), Form::Coded));
+}
+
+std::size_t PointTable::blocks_in_file() const {
+  return static_cast<std::size_t>(
+      std::count_if(blocks_.begin(), blocks_.end(), [](const Block& block) { return block.in_file; }));
 }
 
 }  // namespace linkrise::app

@@ -118,12 +118,16 @@ MetricSpread metric_spread(const StudyResults& results, std::size_t c) {
   s.unit = results.columns[c].unit;
   std::vector<double> values;
   bool larger = larger_is_better(s.name);
+  // The worst value is kept, not read again: the column is read point after point (app/studies/point_table.h).
+  double worst = 0.0;
   for (std::size_t p = 0; p < results.points.size(); ++p) {
     double v = results.points.value(p, c);
     if (std::isnan(v)) continue;
     values.push_back(v);
-    double worst = s.worst < 0 ? 0.0 : results.points.value(static_cast<std::size_t>(s.worst), c);
-    if (s.worst < 0 || (larger ? v < worst : v > worst)) s.worst = static_cast<long>(p);
+    if (s.worst < 0 || (larger ? v < worst : v > worst)) {
+      s.worst = static_cast<long>(p);
+      worst = v;
+    }
   }
   std::sort(values.begin(), values.end());
   s.reached = values.size();
