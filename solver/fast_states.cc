@@ -33,18 +33,24 @@ double slowest_fast_rate(const Eigen::MatrixXd& fast) {
   return slowest;
 }
 
-// True when bounds on the eigenvalues alone show that the split fails, so that the two eigenvalue problems
+// Bounds on the eigenvalues alone that show a split fails, so that the two eigenvalue problems
 // (more than half of a settling's instructions, measured on the reference case) are not needed. The split needs
 // slowest fast rate ≥ 1/(ratio·longest_time) and fastest slow rate ≤ ratio·slowest fast rate. Bounds that hold
 // for any matrix: the smallest |λ| of the fast block is at most the geometric mean |det|^(1/m) of its m
 // eigenvalues; the largest |λ| of the Schur complement is at least their geometric mean and their mean |trace|/k.
 // A failure the bounds miss is found by the eigenvalues as before, so the split chosen is the same.
-// The bounds are applied with a factor of two to spare, for their rounding.
-bool cannot_split(double fast_determinant, int fast_count, const Eigen::MatrixXd& schur, double ratio,
-                  double longest_time) {
-  const double fast_bound = std::pow(std::fabs(fast_determinant), 1.0 / fast_count);
+// The bounds are applied with a factor of two to spare, for their rounding. The first needs only the fast block's
+// LU, so the Schur complement is formed only where it passes.
+double fast_rate_bound(double fast_determinant, int fast_count) {
+  return std::pow(std::fabs(fast_determinant), 1.0 / fast_count);
+}
+
+bool too_slow_to_settle(double fast_bound, double ratio, double longest_time) {
+  return std::isfinite(fast_bound) && 2.0 * fast_bound * ratio * longest_time < 1.0;
+}
+
+bool slow_part_too_fast(double fast_bound, const Eigen::MatrixXd& schur, double ratio) {
   if (!std::isfinite(fast_bound)) return false;
-  if (2.0 * fast_bound * ratio * longest_time < 1.0) return true;
   const double count = static_cast<double>(schur.rows());
   const double slow_bound =
       std::max(std::fabs(schur.trace()) / count, std::pow(std::fabs(schur.determinant()), 1.0 / count));
@@ -68,9 +74,11 @@ FastSplit split_fast_states(const Eigen::MatrixXd& jacobian, double ratio, doubl
       if (std::find(fast.begin(), fast.end(), i) == fast.end()) slow.push_back(i);
     const Eigen::MatrixXd fast_block = block(jacobian, fast, fast);
     const auto fast_lu = fast_block.partialPivLu();
+    const double fast_bound = fast_rate_bound(fast_lu.determinant(), static_cast<int>(m));
+    if (too_slow_to_settle(fast_bound, ratio, longest_time)) continue;
     const Eigen::MatrixXd schur =
         block(jacobian, slow, slow) - block(jacobian, slow, fast) * fast_lu.solve(block(jacobian, fast, slow));
-    if (cannot_split(fast_lu.determinant(), static_cast<int>(m), schur, ratio, longest_time)) continue;
+    if (slow_part_too_fast(fast_bound, schur, ratio)) continue;
     const double fast_rate = slowest_fast_rate(fast_block);
     if (fast_rate <= 0.0) continue;
     const double slow_time = std::min(longest_time, 1.0 / fastest_rate(schur));
