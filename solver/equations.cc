@@ -85,7 +85,7 @@ bool Equations::solve_network(double time, const double* states, const int* mode
 }
 
 void Equations::remember_factor(const int* modes) {
-  chord_inverse_ = factor_.inverse();
+  inverse_valid_ = false;  // taken when a chord step first needs it: many factorisations never see one
   factor_valid_ = true;
   contraction_ = -1.0;
   factor_modes_.assign(modes, modes + circuit_.mode_count());
@@ -93,6 +93,10 @@ void Equations::remember_factor(const int* modes) {
 
 bool Equations::solve_network_chord(double time, const double* states, const int* modes, double* unknowns) {
   if (!factor_valid_ || !std::equal(modes, modes + circuit_.mode_count(), factor_modes_.begin())) return false;
+  if (!inverse_valid_) {
+    chord_inverse_ = factor_.inverse();
+    inverse_valid_ = true;
+  }
   Eigen::Map<Eigen::VectorXd> y(unknowns, unknowns_);
   guess_ = y;
   const int nodes = nodes_;

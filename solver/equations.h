@@ -58,6 +58,7 @@ class Equations {
   // inverse's rounding (its condition number times ε) slows the iteration at most, which the contraction check
   // watches.
   Eigen::MatrixXd chord_inverse_;
+  bool inverse_valid_ = false;  // chord_inverse_ belongs to factor_
   Eigen::VectorXd step_;
   Eigen::VectorXd guess_;  // scratch: the starting guess of a network solve
   Eigen::VectorXd start_;  // scratch: the iterate before a damped step
