@@ -37,23 +37,18 @@ ArcEvent arc_event(const solver::Waveform& rows, const ContactColumns& c, std::s
 }
 
 // |i| at the first peak after the touch at row `touch` (the row after the switching), within the closure and
-// before the next switching (`next`, s): its first row there is the state just before it, the last of this touch.
-double first_peak(const solver::Waveform& rows, const ContactColumns& c, std::size_t touch, double next) {
+// before the next switching of any part — a later pair of rows at one time, of which the first, the state just
+// before it, is the last this touch owns. Without that end a contact touching before another closes its loop
+// took the current the other made for its own.
+double first_peak(const solver::Waveform& rows, const ContactColumns& c, std::size_t touch) {
   double peak = std::fabs(rows.value(touch, c.current));
   for (std::size_t r = touch + 1; r < rows.row_count() && rows.value(r, c.closed) > 0.5; ++r) {
-    if (rows.time(r) > next) break;
     const double now = std::fabs(rows.value(r, c.current));
     if (now < peak) break;
     peak = now;
-    if (rows.time(r) == next) break;
+    if (rows.time(r) > rows.time(touch) && r + 1 < rows.row_count() && same_time(rows, r, r + 1)) break;
   }
   return peak;
-}
-
-// The first of the sorted `times` after `time`; +infinity when none is.
-double next_after(const std::vector<double>& times, double time) {
-  auto found = std::upper_bound(times.begin(), times.end(), time);
-  return found == times.end() ? std::numeric_limits<double>::infinity() : *found;
 }
 
 // An L/R the solver could not read is judged as unbounded: only rows without a time constant cover it.
@@ -63,11 +58,7 @@ double judged_time_constant(const ArcEvent& arc) {
 }  // namespace
 
 ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& c, double parting_time,
-                             const std::vector<solver::BreakCircuit>& breaks,
-                             const std::vector<solver::TimelineEntry>& timeline) {
-  std::vector<double> switchings;
-  for (const auto& entry : timeline) switchings.push_back(entry.time);
-  std::sort(switchings.begin(), switchings.end());
+                             const std::vector<solver::BreakCircuit>& breaks) {
   ContactEvents events;
   const std::size_t n = rows.row_count();
   for (std::size_t r = 0; r < n; ++r) {
@@ -77,7 +68,7 @@ ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns&
       events.arcs.push_back(arc_event(rows, c, r, last, parting_time, breaks));
     }
     if (r > 0 && rows.value(r, c.closed) > 0.5 && rows.value(r - 1, c.closed) < 0.5) {
-      events.making_currents.push_back(first_peak(rows, c, r, next_after(switchings, rows.time(r))));
+      events.making_currents.push_back(first_peak(rows, c, r));
       events.voltage_steps.push_back(std::fabs(rows.value(r - 1, c.voltage)));
     }
   }

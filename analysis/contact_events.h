@@ -20,7 +20,6 @@
 
 #include "models/breaking_capacity.h"
 #include "solver/break_circuit.h"
-#include "solver/timeline.h"
 #include "solver/waveform.h"
 
 namespace linkrise::analysis {
@@ -46,12 +45,8 @@ struct ContactColumns {
 };
 
 /// `breaks`: the solver's records of this part's breaks (Result::breaks of this part), in time order.
-/// `timeline`: the run's switchings and decisions (Result::timeline): a touch's first current peak is looked
-/// for only until the next of them, so that the current another contact makes later in the same loop (a
-/// pre-charge contact touching before the negative one closes the loop) is not taken for this one's.
 ContactEvents contact_events(const solver::Waveform& rows, const ContactColumns& columns, double parting_time,
-                             const std::vector<solver::BreakCircuit>& breaks,
-                             const std::vector<solver::TimelineEntry>& timeline);
+                             const std::vector<solver::BreakCircuit>& breaks);
 
 /// The contactor's figures over the run; values absent (NaN when named) where the run has no such event.
 struct ContactMetrics {

@@ -176,8 +176,8 @@ ResistiveMetrics resistive_metrics(const solver::Circuit& circuit, const solver:
       for (const auto& b : result.breaks) {
         if (b.part == part) breaks.push_back(b);
       }
-      metrics.contact = contact_metrics(
-          contact_events(rows, contact, actuation ? actuation->parting_time : 0.0, breaks, result.timeline), capacity);
+      metrics.contact =
+          contact_metrics(contact_events(rows, contact, actuation ? actuation->parting_time : 0.0, breaks), capacity);
       if (capacity && metrics.contact->break_use) metrics.break_detail = describe_break(*metrics.contact, *capacity);
     }
   }

@@ -96,7 +96,7 @@ TEST(BreakCircuit, TimeConstantJudgesTheBreakingCapacityRow) {
   const linkrise::analysis::ContactColumns columns{rows.column("k1.current"), rows.column("k1.voltage"),
                                                    rows.column("k1.closed"), rows.column("k1.arcing"),
                                                    rows.column("k1.arc_energy")};
-  const auto events = linkrise::analysis::contact_events(rows, columns, 10e-6, result.breaks, result.timeline);
+  const auto events = linkrise::analysis::contact_events(rows, columns, 10e-6, result.breaks);
   ASSERT_EQ(events.arcs.size(), 1u);
   const double tau = 100e-6 / (kSource + kContact + 0.2 + 10.0);  // 9.35 µs
   EXPECT_NEAR(events.arcs[0].time_constant, tau, kRelative * tau);

@@ -94,7 +94,7 @@ ContactEvents events_of(const linkrise::solver::Result& result, const std::strin
                                              rows.column(part + ".closed"), rows.column(part + ".arcing"),
                                              rows.column(part + ".arc_energy")};
   EXPECT_GE(columns.arc_energy, 0);
-  return linkrise::analysis::contact_events(rows, columns, parting_time, result.breaks, result.timeline);
+  return linkrise::analysis::contact_events(rows, columns, parting_time, result.breaks);
 }
 
 // Invented test circuit: an ideal source, a contactor and either an inductor carrying an initial current or a
