@@ -141,6 +141,7 @@ RunSpec read_run(const Tree& block) {
   run.sample = reader.optional("sample", Dimension::time(), Bound::Any);
   run.max_steps = reader.count("max_steps", static_cast<int>(run.max_steps), 0);
   run.settle_fast_states = reader.word("fast_states", {"settle", "resolve"}, "settle") == "settle";
+  run.carry_transients = reader.word("transients", {"carry", "resolve"}, "resolve") == "carry";
   run.max_wall_time = reader.quantity("max_wall_time", Dimension::time(), Bound::Any, run.max_wall_time);
   reader.finish();
   run.marks = {run.follows_sequence() && reader.has("max_duration") ? reader.mark("max_duration")

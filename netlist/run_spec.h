@@ -19,6 +19,9 @@
 //   fast_states settle (default) or resolve: whether a mode far faster than the rest starts at its
 //              quasi-steady value after a switching (solver/fast_states.h) or is resolved step by step (the
 //              tight reference runs that judge the default accuracy resolve everything)
+//   transients resolve (default) or carry: whether a switching's decaying modes are resolved by the
+//              integrator's own steps or carried in closed form from their linearisation, the integrator solving
+//              for the rest (solver/carried_transient.h; not yet the default: DEVELOPERS.md, open points)
 //   max_steps  >= 10 (even a single RC charge takes dozens of steps: BDF starts at order 1 with a tiny first
 //              step, so a smaller limit is a slip)
 //   max_wall_time  > 0 s, finite (the wall-clock budget of one run; a pre-charge case solves in milliseconds, so
@@ -46,6 +49,7 @@ struct RunSpec {
   std::optional<double> sample;        // s; uniform output grid from dense output
   long max_steps = 2'000'000;          // the solver gives up (exit 3) after this many steps
   bool settle_fast_states = true;      // `fast_states: settle`; false for `resolve`
+  bool carry_transients = false;       // `transients: carry`; false for `resolve` (the default)
   double max_wall_time = 300.0;        // s of wall-clock time; the solver gives up (exit 3) after it
 
   // Where each value was written: its place in the case file (or of an override), an option such as

@@ -18,6 +18,8 @@
 #include "solver/absolute_tolerances.h"
 #include "solver/eigen_kernels.h"
 #include "solver/equations.h"
+#include "solver/carried_accounts.h"
+#include "solver/carried_transient.h"
 #include "solver/fast_states.h"
 #include "solver/failure_diagnosis.h"
 #include "solver/sundials_check.h"
@@ -68,6 +70,7 @@ Options options_from(const Circuit& circuit) {
   options.max_step = spec.run.max_step;
   options.max_steps = spec.run.max_steps;
   options.settle_fast_states = spec.run.settle_fast_states;
+  options.carry_transients = spec.run.carry_transients;
   options.max_wall_time = spec.run.max_wall_time;
   options.sample = spec.run.sample;
   for (const auto& event : spec.events) {
@@ -121,7 +124,9 @@ class Driver {
         accounts_(circuit.quadrature_count()),
         modes_(circuit.initial_modes()),
         unknowns_(circuit.unknown_count(), 0.0),
-        row_(circuit.node_names().size() + circuit.signal_columns().size(), 0.0) {
+        row_(circuit.node_names().size() + circuit.signal_columns().size(), 0.0),
+        carried_accounts_(circuit),
+        carried_rates_(circuit.quadrature_count(), 0.0) {
     pending_ = options.commands;
     std::stable_sort(pending_.begin(), pending_.end(),
                      [](const Command& a, const Command& b) { return a.time < b.time; });
@@ -149,27 +154,37 @@ class Driver {
   Result run();
 
   // CVODE callbacks
-  int rhs(double t, const double* x, double* xdot) {
+  // CVODE's vector holds y = x − carried(t) (solver/carried_transient.h); the callbacks see the circuit's x.
+  int rhs(double t, const double* y, double* xdot) {
+    const double* x = circuit_states(t, y);
     if (!network_solved(t, x)) return 1;
     equations_.state_rates(t, x, modes_.data(), unknowns_.data(), xdot);
     if (states_ == 0) xdot[0] = 0.0;
+    carried_.subtract_rate(t, xdot);
     return 0;
   }
-  int account_rates(double t, const double* x, double* out) {
+  int account_rates(double t, const double* y, double* out) {
+    const double* x = circuit_states(t, y);
     if (!network_solved(t, x)) return 1;
     equations_.account_rates(t, x, modes_.data(), unknowns_.data(), out);
+    if (carried_accounts_.active()) {
+      if (!carried_accounts_.rates(t, carried_rates_.data())) return 1;
+      for (int a = 0; a < accounts_; ++a) out[a] -= carried_rates_[a];
+    }
     return 0;
   }
-  int jacobian(double t, const double* x, double* matrix) {
+  int jacobian(double t, const double* y, double* matrix) {
     if (states_ == 0) {
       matrix[0] = 0.0;  // the idle state of a circuit without dynamic states
       return 0;
     }
+    const double* x = circuit_states(t, y);
     if (!network_solved(t, x)) return 1;
     equations_.jacobian(t, x, modes_.data(), unknowns_.data(), matrix);
     return 0;
   }
-  int roots(double t, const double* x, double* out) {
+  int roots(double t, const double* y, double* out) {
+    const double* x = circuit_states(t, y);
     if (!network_solved(t, x)) return 1;
     models::Point point = equations_.point(t, x, modes_.data(), unknowns_.data());
     for (int p = 0; p < circuit_.part_count(); ++p) {
@@ -194,8 +209,52 @@ class Driver {
     }
     return 0;
   }
+  // The error weights of y from the circuit's states x = y + carried(t) at CVODE's current time, so each state
+  // keeps its tolerance relative to its own size while a transient is carried.
+  int error_weights(const double* y, double* weights) {
+    double t = 0.0;
+    if (CVodeGetCurrentTime(handles_.memory, &t) != CV_SUCCESS) return -1;
+    const double* x = circuit_states(t, y);
+    const double* absolute = N_VGetArrayPointer(handles_.tolerances);
+    for (int i = 0; i < n_; ++i) {
+      const double scale = options_.relative_tolerance * std::fabs(x[i]) + absolute[i];
+      if (!(scale > 0.0)) return -1;
+      weights[i] = 1.0 / scale;
+    }
+    return 0;
+  }
 
  private:
+  // x = y + carried(t) for a callback (y itself while nothing is carried).
+  const double* circuit_states(double t, const double* y) {
+    if (!carried_.active()) return y;
+    std::copy(y, y + n_, callback_states_.begin());
+    carried_.add_offset(t, callback_states_.data());
+    return callback_states_.data();
+  }
+  // The circuit's states at `time` inside the last step, from CVODE's dense output of y, into the scratch vector.
+  double* dense_states(double time) {
+    check(CVodeGetDky(handles_.memory, time, 0, handles_.scratch), "CVodeGetDky", time);
+    double* dense = N_VGetArrayPointer(handles_.scratch);
+    carried_.add_offset(time, dense);
+    return dense;
+  }
+  // Where CVODE's dense output starts: the last step it took, [t_n − h, t_n] (after a root return the run stands
+  // inside that step).
+  double dense_start() {
+    double now = 0.0, step = 0.0;
+    check(CVodeGetCurrentTime(handles_.memory, &now), "CVodeGetCurrentTime", now);
+    check(CVodeGetLastStep(handles_.memory, &step), "CVodeGetLastStep", now);
+    return now - step;
+  }
+  // The circuit's states after CVODE returned y at `time`.
+  void states_from_solver(double time) {
+    const double* y = N_VGetArrayPointer(handles_.states);
+    std::copy(y, y + n_, states_now_.begin());
+    carried_.add_offset(time, states_now_.data());
+  }
+  // At a (re)start: the transient carried from `time` on, and CVODE's y = x there (the offset starts at zero).
+  void carry_from(double time);
   void reset_guess() { std::fill(unknowns_.begin(), unknowns_.end(), 0.0); }
   // The network at (t, x) into unknowns_ for a callback; false (after clearing the guess) tells CVODE the
   // failure is recoverable: it retries with a smaller step.
@@ -204,7 +263,7 @@ class Driver {
     reset_guess();
     return false;
   }
-  double* x() { return N_VGetArrayPointer(handles_.states); }
+  double* x() { return states_now_.data(); }
   double* accounts() { return accounts_ > 0 ? N_VGetArrayPointer(handles_.accounts) : nullptr; }
   // Part states, energy accounts, then ∫i² dt, the layout of Result::initial_states/final_states.
   std::vector<double> full_state() {
@@ -275,7 +334,7 @@ class Driver {
       double when = output_time(next_grid_index_);
       if (when > t * (1.0 + 1e-14) || when > options_.duration * (1.0 + 1e-14)) break;
       if (when < t) {
-        check(CVodeGetDky(handles_.memory, when, 0, handles_.scratch), "CVodeGetDky", when);
+        dense_states(when);
         solve_at(when, dense);
         fill_row(when, dense);
       } else {
@@ -286,17 +345,38 @@ class Driver {
       ++next_grid_index_;
     }
     if (options_.record_steps) {
-      // The step row first (the peak search compares with it), added after the peaks it finds before it;
-      // `states` may be the dense-output scratch vector, which the peak search reuses.
-      solve_at(t, states);
-      fill_row(t, states);
-      step_row_ = row_;
-      peak_kept_.assign(states, states + n_);
-      record_peaks_inside_step(t);
-      std::copy(peak_kept_.begin(), peak_kept_.end(), states);
-      add_step_row(t, step_row_);
+      // `states` may be the dense-output scratch vector, which the carried transient's rows reuse.
+      record_carried_rows(t, states);
+      record_step_end(t, states);
     }
     recorded_until_ = t;
+  }
+  // A carried transient's grid rows inside the step ending at t (solver/carried_transient.h). A grid row within
+  // half a spacing of the last row or of t is left out, so the intervals stay between half and one and a half
+  // spacings: the metrics' piecewise parabolas join only rows of like spacing (analysis/trace.h).
+  void record_carried_rows(double t, double* states) {
+    const double from = std::max(recorded_until_, dense_start());
+    double row = carried_.row_after(from);
+    while (row < t && row - from < 0.5 * carried_.row_spacing(row)) row = carried_.row_after(row);
+    if (!(row < t)) return;
+    step_end_kept_.assign(states, states + n_);
+    for (; row < t; row = carried_.row_after(row)) {
+      if (t - row < 0.5 * carried_.row_spacing(row)) break;
+      record_step_end(row, dense_states(row));
+    }
+    std::copy(step_end_kept_.begin(), step_end_kept_.end(), states);
+  }
+  // A step row at t (or a row of a carried transient inside the step) and the peaks between it and the last row.
+  void record_step_end(double t, double* states) {
+    // The step row first (the peak search compares with it), added after the peaks it finds before it;
+    // `states` may be the dense-output scratch vector, which the peak search reuses.
+    solve_at(t, states);
+    fill_row(t, states);
+    step_row_ = row_;
+    peak_kept_.assign(states, states + n_);
+    record_peaks_inside_step(t);
+    std::copy(peak_kept_.begin(), peak_kept_.end(), states);
+    add_step_row(t, step_row_);
   }
   void record_peaks_inside_step(double t);
   double magnitude_at(double time, std::size_t column);
@@ -328,10 +408,21 @@ class Driver {
     if (accounts_ == 0) return;
     double at = t;
     check(CVodeGetQuad(handles_.memory, &at, handles_.accounts), "CVodeGetQuad", t);
+    add_carried_accounts(t);
+  }
+  // CVODE integrates the accounts less their share along the carried trajectory (solver/carried_accounts.h).
+  void add_carried_accounts(double t) {
+    if (!carried_accounts_.active()) return;
+    if (!carried_accounts_.integral(t, carried_rates_.data())) {
+      throw SolverError(fmt::format("the circuit equations have no solution on the linearised transient at "
+                                    "t = {:.9g} s", t), t);
+    }
+    for (int a = 0; a < accounts_; ++a) accounts()[a] += carried_rates_[a];
   }
   void reinitialise(double t) {
     sync_accounts(t);
     harvest_statistics(t);
+    carry_from(t);
     check(CVodeReInit(handles_.memory, t, handles_.states), "CVodeReInit", t);
     if (accounts_ > 0) check(CVodeQuadReInit(handles_.memory, handles_.accounts), "CVodeQuadReInit", t);
     ++result_.statistics.reinitialisations;
@@ -353,12 +444,15 @@ class Driver {
   // (a cable current left microamperes away from its quasi-steady value, with a rate of 1e8 A/s that no later
   // step can follow). Every step gets a fresh one then; CVODE's defaults (SUNDIALS 6) otherwise.
   void refresh_jacobian_while_sweeping(double t) {
-    bool sweeping = false;
-    for (int p = 0; p < circuit_.part_count() && !sweeping; ++p) {
-      sweeping = circuit_.part(p).sweeping(circuit_.layout(p), modes_.data());
+    const bool swept = sweeping();
+    check(CVodeSetJacEvalFrequency(handles_.memory, swept ? 1 : 51), "CVodeSetJacEvalFrequency", t);
+    check(CVodeSetLSetupFrequency(handles_.memory, swept ? 1 : 20), "CVodeSetLSetupFrequency", t);
+  }
+  bool sweeping() const {
+    for (int p = 0; p < circuit_.part_count(); ++p) {
+      if (circuit_.part(p).sweeping(circuit_.layout(p), modes_.data())) return true;
     }
-    check(CVodeSetJacEvalFrequency(handles_.memory, sweeping ? 1 : 51), "CVodeSetJacEvalFrequency", t);
-    check(CVodeSetLSetupFrequency(handles_.memory, sweeping ? 1 : 20), "CVodeSetLSetupFrequency", t);
+    return false;
   }
   // The ∫i² dt quadratures' tolerances from each part's resistance at the new modes (solver/absolute_tolerances.h).
   void current_squared_tolerances(double t);
@@ -412,12 +506,18 @@ class Driver {
   std::vector<double> step_row_;   // the row at a step's end while the peak search fills row_
   std::vector<double> middle_row_;  // the row at a step's middle while the peak search refines
   std::vector<double> largest_;     // per column, the largest |value| of the step rows so far
+  std::vector<double> step_end_kept_;  // the states at a step's end while its carried transient's rows are added
   std::vector<double> peak_kept_;  // the states of a step row while the peak search uses the scratch vector
   std::vector<Command> pending_;
   CvodeHandles handles_;
   ToleranceScales scales_;  // the case's (solver/absolute_tolerances.h), from the initial operating point
   Result result_;
   double recorded_until_ = 0.0;
+  CarriedTransient carried_;             // the switching's transient in closed form (inactive: y = x)
+  std::vector<double> states_now_;       // the circuit's states x at the time the run stands at
+  std::vector<double> callback_states_;  // scratch: x in a callback
+  CarriedAccounts carried_accounts_;     // the accounts along the carried transient
+  std::vector<double> carried_rates_;    // scratch: its rates or integrals
   long next_grid_index_ = 0;
   double last_sample_ = -std::numeric_limits<double>::infinity();
   // The sample at which the supervisor finished the sequence: the run ends there, not where the step that
@@ -441,6 +541,9 @@ int jacobian_callback(double t, N_Vector x, N_Vector, SUNMatrix matrix, void* us
 }
 int quadrature_callback(double t, N_Vector x, N_Vector rates, void* user) {
   return static_cast<Driver*>(user)->account_rates(t, N_VGetArrayPointer(x), N_VGetArrayPointer(rates));
+}
+int error_weight_callback(N_Vector y, N_Vector weights, void* user) {
+  return static_cast<Driver*>(user)->error_weights(N_VGetArrayPointer(y), N_VGetArrayPointer(weights));
 }
 int root_callback(double t, N_Vector x, double* out, void* user) {
   return static_cast<Driver*>(user)->roots(t, N_VGetArrayPointer(x), out);
@@ -473,8 +576,37 @@ void Driver::create_vectors(double t0) {
     if (options_.eigen_kernels) use_eigen_kernels(handles_.accounts);
     std::copy(result_.initial_states.begin() + states_, result_.initial_states.end(), accounts());
   }
-  std::fill(x(), x() + n_, 0.0);
+  states_now_.assign(n_, 0.0);
+  callback_states_.assign(n_, 0.0);
   std::copy(result_.initial_states.begin(), result_.initial_states.begin() + states_, x());
+  std::copy(x(), x() + n_, N_VGetArrayPointer(handles_.states));
+}
+
+void Driver::carry_from(double time) {
+  carried_ = CarriedTransient();
+  if (options_.carry_transients && states_ > 0 && !sweeping()) {
+    solve_at(time, x());
+    Eigen::MatrixXd jacobian(states_, states_);
+    Eigen::VectorXd rates(states_);
+    equations_.jacobian(time, x(), modes_.data(), unknowns_.data(), jacobian.data());
+    equations_.state_rates(time, x(), modes_.data(), unknowns_.data(), rates.data());
+    Eigen::VectorXd tolerances(states_);
+    const double* absolute = N_VGetArrayPointer(handles_.tolerances);
+    for (int i = 0; i < states_; ++i) tolerances[i] = options_.relative_tolerance * std::fabs(x()[i]) + absolute[i];
+    carried_ = CarriedTransient(jacobian, rates, time, options_.duration, tolerances);
+  }
+  carried_accounts_.stop();
+  if (carried_.active() && accounts_ > 0 &&
+      !carried_accounts_.start(carried_, x(), modes_.data(), unknowns_.data())) {
+    carried_ = CarriedTransient();
+  }
+  std::copy(x(), x() + n_, N_VGetArrayPointer(handles_.states));
+  if (carried_.active()) {
+    check(CVodeWFtolerances(handles_.memory, error_weight_callback), "CVodeWFtolerances", time);
+  } else {
+    check(CVodeSVtolerances(handles_.memory, options_.relative_tolerance, handles_.tolerances), "CVodeSVtolerances",
+          time);
+  }
 }
 
 void Driver::initialise_cvode(double t0) {
@@ -643,6 +775,7 @@ double Driver::advance(double t) {
   double reached = t;
   int flag = CVode(handles_.memory, stop, handles_.states, &reached, CV_ONE_STEP);
   check(flag, "CVode", reached);
+  states_from_solver(reached);
   accounts_stale_ = true;
   check_budgets(reached);
   if (auto switched = visit_step(reached)) return *switched;
@@ -682,9 +815,11 @@ void Driver::switch_inside_step(double command_time, double reached) {
 
 // The run back at `time` inside the step just taken: states and accounts from dense output, later rows dropped.
 void Driver::back_up_to(double time) {
-  double* dense = N_VGetArrayPointer(handles_.scratch);
-  check(CVodeGetDky(handles_.memory, time, 0, handles_.scratch), "CVodeGetDky", time);
-  if (accounts_ > 0) check(CVodeGetQuadDky(handles_.memory, time, 0, handles_.accounts), "CVodeGetQuadDky", time);
+  double* dense = dense_states(time);
+  if (accounts_ > 0) {
+    check(CVodeGetQuadDky(handles_.memory, time, 0, handles_.accounts), "CVodeGetQuadDky", time);
+    add_carried_accounts(time);
+  }
   accounts_stale_ = false;
   result_.steps.truncate_after(time);
   // The state goes to its own vector first: recording the output rows before it reuses the dense-output
@@ -701,8 +836,7 @@ std::optional<double> Driver::finish_inside_step(double reached) {
 }
 
 void Driver::take_sample(double sample_time) {
-  double* dense = N_VGetArrayPointer(handles_.scratch);
-  check(CVodeGetDky(handles_.memory, sample_time, 0, handles_.scratch), "CVodeGetDky", sample_time);
+  double* dense = dense_states(sample_time);
   solve_at(sample_time, dense);
   Probe probe{&circuit_, sample_time, dense, unknowns_.data(), modes_.data()};
   std::vector<Command> decided;
@@ -780,11 +914,12 @@ void Driver::record_peaks_inside_step(double t) {
   const double start = result_.steps.time(last);
   double step = 0.0;
   check(CVodeGetLastStep(handles_.memory, &step), "CVodeGetLastStep", t);
-  if (!(start < t) || start < t - step * (1.0 + 1e-9)) return;
+  // Only where the dense output holds from the last row on (a carried transient's grid rows need not be step ends).
+  if (!(start < t) || start < dense_start() - 1e-9 * step) return;
   double* dense = N_VGetArrayPointer(handles_.scratch);
   const double middle = 0.5 * (start + t);
   const std::vector<double>& at_end = step_row_;
-  check(CVodeGetDky(handles_.memory, middle, 0, handles_.scratch), "CVodeGetDky", middle);
+  dense_states(middle);
   solve_at(middle, dense);
   fill_row(middle, dense);
   middle_row_ = row_;  // row_ is the scratch of every later evaluation
@@ -826,7 +961,7 @@ void Driver::record_peaks_inside_step(double t) {
   peaks.erase(std::unique(peaks.begin(), peaks.end()), peaks.end());
   for (double peak : peaks) {
     if (!(peak > start && peak < t)) continue;
-    check(CVodeGetDky(handles_.memory, peak, 0, handles_.scratch), "CVodeGetDky", peak);
+    dense_states(peak);
     solve_at(peak, dense);
     fill_row(peak, dense);
     add_step_row(peak, row_);
@@ -836,8 +971,7 @@ void Driver::record_peaks_inside_step(double t) {
 // |value| of column `column` at `time` inside the step just taken, from the dense output; 0 where it is not finite
 // (the minimiser then moves away from it).
 double Driver::magnitude_at(double time, std::size_t column) {
-  double* dense = N_VGetArrayPointer(handles_.scratch);
-  check(CVodeGetDky(handles_.memory, time, 0, handles_.scratch), "CVodeGetDky", time);
+  double* dense = dense_states(time);
   solve_at(time, dense);
   const double value = std::fabs(column_value(time, dense, column));
   return std::isfinite(value) ? value : 0.0;

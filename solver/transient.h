@@ -98,6 +98,9 @@ struct Options {
   // Fast states start at their quasi-steady value after a switching when their time constant is below
   // 100·rtol of every other mode's (solver/fast_states.h); false resolves every transient.
   bool settle_fast_states = true;
+  // A switching's transient carried in closed form, the integrator solving for the rest
+  // (solver/carried_transient.h).
+  bool carry_transients = false;
   // Row storage to reuse for Result::steps (studies keep one per worker and hand it back after each sample),
   // so a run allocates no waveform; null: fresh storage.
   Waveform* step_store = nullptr;

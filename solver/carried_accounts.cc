@@ -1,0 +1,80 @@
+#include "solver/carried_accounts.h"
+
+#include <algorithm>
+
+namespace linkrise::solver {
+namespace {
+constexpr double decay_lengths = 40.0;  // longest carried time constants until q(x_lin) counts as final
+constexpr int gauss_points = 8;
+}  // namespace
+
+CarriedAccounts::CarriedAccounts(const Circuit& circuit)
+    : circuit_(circuit),
+      equations_(circuit),
+      table_(gsl_integration_glfixed_table_alloc(gauss_points), gsl_integration_glfixed_table_free) {}
+
+bool CarriedAccounts::start(const CarriedTransient& transient, const double* origin, const int* modes,
+                            const double* guess) {
+  active_ = false;
+  if (!transient.active() || !table_) return false;
+  transient_ = &transient;
+  const int n = circuit_.part_state_count();
+  modes_.assign(modes, modes + circuit_.mode_count());
+  origin_.assign(origin, origin + n);
+  states_.resize(n);
+  unknowns_.assign(guess, guess + circuit_.unknown_count());
+  rate_.resize(circuit_.quadrature_count());
+  final_rates_.resize(circuit_.quadrature_count());
+  end_ = transient.start() + decay_lengths * transient.longest_time();
+  transient_integral_time_ = -1.0;
+  states_ = origin_;
+  transient.add_final_offset(states_.data());
+  if (!rates_at_states(end_, states_.data(), final_rates_.data())) return false;
+  active_ = true;
+  return true;
+}
+
+bool CarriedAccounts::rates_at_states(double time, const double* states, double* out) {
+  if (!equations_.solve_network(time, states, modes_.data(), unknowns_.data())) return false;
+  equations_.account_rates(time, states, modes_.data(), unknowns_.data(), out);
+  return true;
+}
+
+bool CarriedAccounts::rates(double time, double* out) {
+  if (time >= end_) {
+    std::copy(final_rates_.begin(), final_rates_.end(), out);
+    return true;
+  }
+  std::copy(origin_.begin(), origin_.end(), states_.begin());
+  transient_->add_offset(time, states_.data());
+  return rates_at_states(time, states_.data(), out);
+}
+
+bool CarriedAccounts::integral(double time, double* out) {
+  const double start = transient_->start();
+  const std::size_t count = final_rates_.size();
+  const double until = std::min(time, end_);
+  std::vector<double> sum(count, 0.0);
+  if (until >= end_ && transient_integral_time_ == start) {
+    sum = transient_integral_;
+  } else {
+    for (double from = 0.0, length = 0.1 * transient_->shortest_time(); start + from < until;
+         from += length, length *= 2.0) {
+      const double a = start + from, b = std::min(start + from + length, until);
+      for (int g = 0; g < gauss_points; ++g) {
+        double node = 0.0, weight = 0.0;
+        gsl_integration_glfixed_point(a, b, static_cast<std::size_t>(g), &node, &weight, table_.get());
+        if (!rates(node, rate_.data())) return false;
+        for (std::size_t k = 0; k < count; ++k) sum[k] += weight * (rate_[k] - final_rates_[k]);
+      }
+    }
+    if (until >= end_) {
+      transient_integral_ = sum;
+      transient_integral_time_ = start;
+    }
+  }
+  for (std::size_t k = 0; k < count; ++k) out[k] = sum[k] + final_rates_[k] * (time - start);
+  return true;
+}
+
+}  // namespace linkrise::solver
