@@ -26,7 +26,7 @@ bool CarriedAccounts::start(const CarriedTransient& transient, const double* ori
   rate_.resize(circuit_.quadrature_count());
   final_rates_.resize(circuit_.quadrature_count());
   end_ = transient.start() + decay_lengths * transient.longest_time();
-  transient_integral_time_ = -1.0;
+  tabulated_ = false;
   states_ = origin_;
   transient.add_final_offset(states_.data());
   if (!rates_at_states(end_, states_.data(), final_rates_.data())) return false;
@@ -50,29 +50,44 @@ bool CarriedAccounts::rates(double time, double* out) {
   return rates_at_states(time, states_.data(), out);
 }
 
+// ∫ (q(x_lin) − q∞) over one panel [a, b] by the fixed Gauss–Legendre rule, added to `sum`.
+bool CarriedAccounts::add_panel(double a, double b, std::vector<double>& sum) {
+  for (int g = 0; g < gauss_points; ++g) {
+    double node = 0.0, weight = 0.0;
+    gsl_integration_glfixed_point(a, b, static_cast<std::size_t>(g), &node, &weight, table_.get());
+    if (!rates(node, rate_.data())) return false;
+    for (std::size_t k = 0; k < sum.size(); ++k) sum[k] += weight * (rate_[k] - final_rates_[k]);
+  }
+  return true;
+}
+
+// The panels' edges and the integral up to each, once per transient: each later read integrates only the part
+// of one panel up to its time.
+bool CarriedAccounts::tabulate() {
+  const double start = transient_->start();
+  edges_.assign(1, start);
+  sums_.assign(1, std::vector<double>(final_rates_.size(), 0.0));
+  for (double length = 0.1 * transient_->shortest_time(); edges_.back() < end_; length *= 2.0) {
+    const double b = std::min(edges_.back() + length, end_);
+    std::vector<double> sum = sums_.back();
+    if (!add_panel(edges_.back(), b, sum)) return false;
+    edges_.push_back(b);
+    sums_.push_back(std::move(sum));
+  }
+  tabulated_ = true;
+  return true;
+}
+
 bool CarriedAccounts::integral(double time, double* out) {
+  if (!tabulated_ && !tabulate()) return false;
   const double start = transient_->start();
   const std::size_t count = final_rates_.size();
   const double until = std::min(time, end_);
-  std::vector<double> sum(count, 0.0);
-  if (until >= end_ && transient_integral_time_ == start) {
-    sum = transient_integral_;
-  } else {
-    for (double from = 0.0, length = 0.1 * transient_->shortest_time(); start + from < until;
-         from += length, length *= 2.0) {
-      const double a = start + from, b = std::min(start + from + length, until);
-      for (int g = 0; g < gauss_points; ++g) {
-        double node = 0.0, weight = 0.0;
-        gsl_integration_glfixed_point(a, b, static_cast<std::size_t>(g), &node, &weight, table_.get());
-        if (!rates(node, rate_.data())) return false;
-        for (std::size_t k = 0; k < count; ++k) sum[k] += weight * (rate_[k] - final_rates_[k]);
-      }
-    }
-    if (until >= end_) {
-      transient_integral_ = sum;
-      transient_integral_time_ = start;
-    }
-  }
+  // The last panel edge at or before `until`, then the rest of its panel.
+  std::size_t panel = static_cast<std::size_t>(std::upper_bound(edges_.begin(), edges_.end(), until) - edges_.begin());
+  panel = panel == 0 ? 0 : panel - 1;
+  std::vector<double> sum = sums_[panel];
+  if (until > edges_[panel] && !add_panel(edges_[panel], until, sum)) return false;
   for (std::size_t k = 0; k < count; ++k) out[k] = sum[k] + final_rates_[k] * (time - start);
   return true;
 }

@@ -40,8 +40,11 @@ class CarriedAccounts {
   std::vector<int> modes_;
   std::vector<double> origin_, states_, unknowns_, final_rates_, rate_;
   double end_ = 0.0;  // s, absolute time past which q(x_lin) is q∞
-  double transient_integral_time_ = -1.0;  // the start time of the cached ∫ over the whole transient
-  std::vector<double> transient_integral_;  // ∫ (q(x_lin) − q∞) ds over [t0, end]
+  bool add_panel(double a, double b, std::vector<double>& sum);
+  bool tabulate();
+  bool tabulated_ = false;
+  std::vector<double> edges_;               // the panels' edges, absolute times from the start to `end_`
+  std::vector<std::vector<double>> sums_;   // ∫ (q(x_lin) − q∞) ds from the start to each edge
   bool active_ = false;
   std::unique_ptr<gsl_integration_glfixed_table, void (*)(gsl_integration_glfixed_table*)> table_;
 };

@@ -1,5 +1,6 @@
 #include "solver/carried_transient.h"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -7,14 +8,16 @@ namespace linkrise::solver {
 namespace {
 
 // The row grid: `even_rows` rows `first_row_` apart, then each `growth` times further from the start.
-constexpr double even_rows = 10.0;
+constexpr int even_rows = 10;
 constexpr double growth = 1.05;
 
-// (e^{z} − 1)/z · τ for z = λ·τ, without cancellation for small |z| (its series to z³, error below 1e-16 there).
-std::complex<double> integral_of_exponential(std::complex<double> rate, double elapsed) {
+// (e^{z} − 1)/z · τ for z = λ·τ (`inverse` = 1/λ), without cancellation for small |z| (its series to z³, error
+// below 1e-16 there).
+std::complex<double> integral_of_exponential(std::complex<double> rate, std::complex<double> inverse,
+                                             double elapsed) {
   const std::complex<double> z = rate * elapsed;
-  if (std::abs(z) < 1e-4) return elapsed * (1.0 + z * (0.5 + z * (1.0 / 6.0 + z / 24.0)));
-  return (std::exp(z) - 1.0) / rate;
+  if (std::norm(z) < 1e-8) return elapsed * (1.0 + z * (0.5 + z * (1.0 / 6.0 + z / 24.0)));
+  return (std::exp(z) - 1.0) * inverse;
 }
 
 }  // namespace
@@ -41,6 +44,8 @@ CarriedTransient::CarriedTransient(const Eigen::MatrixXd& jacobian, const Eigen:
     shares_.col(m) = vectors.col(carried[m]) * modal[carried[m]];
   }
   weights_.resize(modes_);
+  inverse_rates_ = rates_.cwiseInverse();
+  offset_.resize(size_);
   if (!shares_.allFinite()) modes_ = 0;
   if (modes_ == 0) return;
   shortest_ = 1.0 / rates_.real().cwiseAbs().maxCoeff();
@@ -51,32 +56,46 @@ CarriedTransient::CarriedTransient(const Eigen::MatrixXd& jacobian, const Eigen:
     if (!(excursion > 1.0)) continue;
     fastest_seen = std::max(fastest_seen, -rates_[m].real());
     slowest_seen = std::min(slowest_seen, -rates_[m].real());
+    const double frequency = std::fabs(rates_[m].imag());
+    if (frequency > 0.0) {
+      period_ = std::min(period_, 2.0 * M_PI / frequency);
+      ringing_until_ = std::max(ringing_until_, 20.0 / -rates_[m].real());
+    }
   }
-  if (fastest_seen > 0.0) {
-    first_row_ = 0.02 / fastest_seen;
-    last_row_ = 20.0 / slowest_seen;
+  if (fastest_seen > 0.0) place_rows(0.02 / fastest_seen, 20.0 / slowest_seen);
+}
+
+// Ten rows `first` apart, then each 5 % further from the start than the last, but no further apart than 1/20 of
+// the shortest excited period while a ringing mode is excited; up to `last` (s after the start).
+void CarriedTransient::place_rows(double first, double last) {
+  constexpr std::size_t most_rows = 1000000;  // a ringing of Q about 15 000 would need more: the rest unplaced
+  double elapsed = ringing_until_ > 0.0 ? std::min(first, period_ / 20.0) : first;
+  for (int k = 0; elapsed <= last && rows_.size() < most_rows; ++k) {
+    rows_.push_back(elapsed);
+    double spacing = k + 1 < even_rows ? first : elapsed * (growth - 1.0);
+    if (elapsed < ringing_until_) spacing = std::min(spacing, period_ / 20.0);
+    elapsed += spacing;
   }
+}
+
+double CarriedTransient::step_limit(double time) const {
+  return time - start_ < ringing_until_ ? period_ / 8.0 : std::numeric_limits<double>::infinity();
 }
 
 double CarriedTransient::row_after(double time) const {
-  const double elapsed = time - start_;
-  if (!(last_row_ >= first_row_) || elapsed >= last_row_) return std::numeric_limits<double>::infinity();
-  // Rows k·first for k = 1 … 10, then 10·first·1.05^j: a fixed grid, so rows stay evenly spaced whatever the steps.
-  double next = 0.0;
-  if (elapsed < even_rows * first_row_) {
-    next = first_row_ * (std::floor(std::max(elapsed, 0.0) / first_row_) + 1.0);
-  } else {
-    next = even_rows * first_row_ *
-           std::pow(growth, std::floor(std::log(elapsed / (even_rows * first_row_)) / std::log(growth)) + 1.0);
-  }
-  // Strictly later in absolute time, whatever the rounding.
-  while (start_ + next <= time) next = next < even_rows * first_row_ ? next + first_row_ : next * growth;
-  return next > last_row_ ? std::numeric_limits<double>::infinity() : start_ + next;
+  // The first row strictly later in absolute time, whatever the rounding of start + elapsed.
+  auto row = std::upper_bound(rows_.begin(), rows_.end(), time - start_);
+  while (row != rows_.end() && start_ + *row <= time) ++row;
+  return row == rows_.end() ? std::numeric_limits<double>::infinity() : start_ + *row;
 }
 
 double CarriedTransient::row_spacing(double row) const {
+  if (rows_.empty()) return 0.0;
+  // The grid row nearest to `row` (start + elapsed rounds), then the interval before it.
   const double elapsed = row - start_;
-  return elapsed <= even_rows * first_row_ * (1.0 + 1e-12) ? first_row_ : elapsed * (1.0 - 1.0 / growth);
+  auto at = std::lower_bound(rows_.begin(), rows_.end(), elapsed);
+  if (at == rows_.end() || (at != rows_.begin() && elapsed - *(at - 1) < *at - elapsed)) --at;
+  return at == rows_.begin() ? *at : *at - *(at - 1);
 }
 
 void CarriedTransient::add_final_offset(double* values) const {
@@ -89,17 +108,17 @@ void CarriedTransient::add_final_offset(double* values) const {
 void CarriedTransient::add_offset(double time, double* values) const {
   if (modes_ == 0) return;
   const double elapsed = time - start_;
-  for (int m = 0; m < modes_; ++m) weights_[m] = integral_of_exponential(rates_[m], elapsed);
-  const Eigen::VectorXd offset = (shares_ * weights_).real();
-  for (int i = 0; i < size_; ++i) values[i] += offset[i];
+  for (int m = 0; m < modes_; ++m) weights_[m] = integral_of_exponential(rates_[m], inverse_rates_[m], elapsed);
+  offset_.noalias() = shares_ * weights_;
+  for (int i = 0; i < size_; ++i) values[i] += offset_[i].real();
 }
 
 void CarriedTransient::subtract_rate(double time, double* values) const {
   if (modes_ == 0) return;
   const double elapsed = time - start_;
   for (int m = 0; m < modes_; ++m) weights_[m] = std::exp(rates_[m] * elapsed);
-  const Eigen::VectorXd rate = (shares_ * weights_).real();
-  for (int i = 0; i < size_; ++i) values[i] -= rate[i];
+  offset_.noalias() = shares_ * weights_;
+  for (int i = 0; i < size_; ++i) values[i] -= offset_[i].real();
 }
 
 }  // namespace linkrise::solver

@@ -438,6 +438,16 @@ class Driver {
     const double first_step = slow_time > 0.0 ? 0.1 * std::sqrt(2.0 * options_.relative_tolerance) * slow_time : 0.0;
     check(CVodeSetInitStep(handles_.memory, first_step), "CVodeSetInitStep", t);
     refresh_jacobian_while_sweeping(t);
+    limit_steps_while_ringing(t);
+  }
+  // The run's max_step, shortened while a carried mode rings (CarriedTransient::step_limit).
+  void limit_steps_while_ringing(double t) {
+    const double limit = carried_.step_limit(t);
+    if (!std::isfinite(limit) && !steps_limited_) return;
+    steps_limited_ = std::isfinite(limit);
+    double longest = options_.max_step;
+    if (steps_limited_) longest = longest > 0.0 ? std::min(longest, limit) : limit;
+    check(CVodeSetMaxStep(handles_.memory, longest), "CVodeSetMaxStep", t);
   }
   // While a part's conductance sweeps through decades (a contact's parting ramp), a Jacobian kept over CVODE's
   // usual 20 to 50 steps is decades off: Newton then stops on a wrong point that passes its convergence test
@@ -514,6 +524,7 @@ class Driver {
   Result result_;
   double recorded_until_ = 0.0;
   CarriedTransient carried_;             // the switching's transient in closed form (inactive: y = x)
+  bool steps_limited_ = false;           // CVODE's max step shortened for a ringing carried mode
   std::vector<double> states_now_;       // the circuit's states x at the time the run stands at
   std::vector<double> callback_states_;  // scratch: x in a callback
   CarriedAccounts carried_accounts_;     // the accounts along the carried transient
@@ -770,6 +781,7 @@ double Driver::advance(double t) {
     if (auto switched = visit_step(internal)) return *switched;
     if (auto finished = finish_inside_step(internal)) return *finished;
   }
+  if (steps_limited_) limit_steps_while_ringing(t);
   double stop = pending_.empty() ? end() : std::min(end(), pending_.front().time);
   check(CVodeSetStopTime(handles_.memory, stop), "CVodeSetStopTime", t);
   double reached = t;

@@ -102,6 +102,28 @@ TEST(CarriedTransient, RowsAreEvenThenGrowByAFixedRatio) {
   EXPECT_FALSE(std::isfinite(small.row_after(1.0)));
 }
 
+TEST(CarriedTransient, ARingingModeHoldsStepsAndRowsToItsPeriod) {
+  // Underdamped: 400 V into 10 mOhm, 2 uH and 100 uF rings at ωd ≈ 7.07e4 rad/s, decaying at α = 2500 /s
+  // [R-RLC-step]. CVODE finds roots by sign changes at its step ends, so a step may not span a swing of the
+  // carried offset: an eighth of the period while the ringing lasts (20/α), and rows 1/20 of the period apart.
+  const SeriesCircuit c{400.0, 0.01, 2e-6, 1e-4};
+  const double alpha = c.R / (2 * c.L), omega_d = std::sqrt(1 / (c.L * c.C) - alpha * alpha);
+  const double period = 2 * M_PI / omega_d;
+  const CarriedTransient carried(c.jacobian(), c.rates_at_rest(), 1.0, 2.0, unit_tolerances());
+  EXPECT_NEAR(carried.step_limit(1.0 + 1e-4), period / 8, 1e-9 * period);
+  EXPECT_NEAR(carried.step_limit(1.0 + 0.99 * 20 / alpha), period / 8, 1e-9 * period);
+  EXPECT_FALSE(std::isfinite(carried.step_limit(1.0 + 1.01 * 20 / alpha)));
+  double last = 1.0;
+  for (double row = carried.row_after(1.0); row < 1.0 + 20 / alpha; row = carried.row_after(row)) {
+    EXPECT_LE(row - last, period / 20 * (1 + 1e-9)) << row;
+    last = row;
+  }
+  // An overdamped transient sets no limit.
+  const SeriesCircuit damped{30.0, 0.12, 3e-6, 1.5e-3};
+  const CarriedTransient monotone(damped.jacobian(), damped.rates_at_rest(), 1.0, 2.0, unit_tolerances());
+  EXPECT_FALSE(std::isfinite(monotone.step_limit(1.0)));
+}
+
 // A contactor closing 30 V of difference onto the R-L-C above: the run with the transient carried against the
 // closed form and against the same run resolved step by step.
 std::string inrush_case(const std::string& transients) {
