@@ -10,6 +10,9 @@ namespace {
 // The row grid: `even_rows` rows `first_row_` apart, then each `growth` times further from the start.
 constexpr int even_rows = 10;
 constexpr double growth = 1.05;
+// Past this many of the slowest carried time constants the offset is its final value to double precision
+// (e^-40 = 4e-18).
+constexpr double decay_lengths = 40.0;
 
 // (e^{z} − 1)/z · τ for z = λ·τ (`inverse` = 1/λ), without cancellation for small |z| (its series to z³, error
 // below 1e-16 there).
@@ -18,6 +21,34 @@ std::complex<double> integral_of_exponential(std::complex<double> rate, std::com
   const std::complex<double> z = rate * elapsed;
   if (std::norm(z) < 1e-8) return elapsed * (1.0 + z * (0.5 + z * (1.0 / 6.0 + z / 24.0)));
   return (std::exp(z) - 1.0) * inverse;
+}
+
+// The modes worth carrying: the fastest decaying ones, when they are a cluster apart from every other mode — the
+// slowest carried decays `gap` times faster than the fastest of the rest moves (|λ|: growing, ringing and
+// integrating modes too) — and fast against the run (its slowest time constant at most `share` of it). Such a
+// cluster is what BDF would restart into and resolve step by step (the main-closure inrush against a link's
+// charge and a pack's polarisation); a mode among the run's main dynamics (a pre-charge's R·C) is resolved at
+// little cost anyway, and carrying it would keep the per-step overhead on for the whole run.
+std::vector<int> fast_cluster(const Eigen::VectorXcd& eigenvalues, const Eigen::VectorXcd& modal, double longest_time) {
+  constexpr double gap = 100.0, share = 0.01;
+  const int n = static_cast<int>(eigenvalues.size());
+  std::vector<int> order(n);
+  for (int k = 0; k < n; ++k) order[k] = k;
+  std::stable_sort(order.begin(), order.end(),
+                   [&](int a, int b) { return eigenvalues[a].real() < eigenvalues[b].real(); });
+  for (int m = 1; m <= n; ++m) {
+    const double slowest_carried = -eigenvalues[order[m - 1]].real();
+    if (!(slowest_carried * share * longest_time > 1.0)) break;
+    double fastest_rest = 0.0;
+    for (int k = m; k < n; ++k) fastest_rest = std::max(fastest_rest, std::abs(eigenvalues[order[k]]));
+    if (slowest_carried < gap * fastest_rest) continue;
+    std::vector<int> carried;
+    for (int k = 0; k < m; ++k) {
+      if (std::abs(modal[order[k]]) > 0.0) carried.push_back(order[k]);
+    }
+    return carried;
+  }
+  return {};
 }
 
 }  // namespace
@@ -32,10 +63,7 @@ CarriedTransient::CarriedTransient(const Eigen::MatrixXd& jacobian, const Eigen:
   const auto lu = vectors.partialPivLu();
   if (!(lu.rcond() > 1e-9)) return;
   const Eigen::VectorXcd modal = lu.solve(rates.cast<std::complex<double>>());
-  std::vector<int> carried;
-  for (int k = 0; k < size_; ++k) {
-    if (eigen.eigenvalues()[k].real() * longest_time < -1.0 && std::abs(modal[k]) > 0.0) carried.push_back(k);
-  }
+  const std::vector<int> carried = fast_cluster(eigen.eigenvalues(), modal, longest_time);
   modes_ = static_cast<int>(carried.size());
   rates_.resize(modes_);
   shares_.resize(size_, modes_);
@@ -46,10 +74,12 @@ CarriedTransient::CarriedTransient(const Eigen::MatrixXd& jacobian, const Eigen:
   weights_.resize(modes_);
   inverse_rates_ = rates_.cwiseInverse();
   offset_.resize(size_);
+  final_offset_ = -(shares_ * inverse_rates_).real();
   if (!shares_.allFinite()) modes_ = 0;
   if (modes_ == 0) return;
   shortest_ = 1.0 / rates_.real().cwiseAbs().maxCoeff();
   longest_ = 1.0 / rates_.real().cwiseAbs().minCoeff();
+  decayed_after_ = decay_lengths * longest_;
   double fastest_seen = 0.0, slowest_seen = std::numeric_limits<double>::infinity();
   for (int m = 0; m < modes_; ++m) {
     const double excursion = (shares_.col(m) / rates_[m]).cwiseAbs().cwiseQuotient(tolerances).maxCoeff();
@@ -100,14 +130,16 @@ double CarriedTransient::row_spacing(double row) const {
 
 void CarriedTransient::add_final_offset(double* values) const {
   if (modes_ == 0) return;
-  for (int m = 0; m < modes_; ++m) weights_[m] = -1.0 / rates_[m];
-  const Eigen::VectorXd offset = (shares_ * weights_).real();
-  for (int i = 0; i < size_; ++i) values[i] += offset[i];
+  for (int i = 0; i < size_; ++i) values[i] += final_offset_[i];
 }
 
 void CarriedTransient::add_offset(double time, double* values) const {
   if (modes_ == 0) return;
   const double elapsed = time - start_;
+  if (elapsed > decayed_after_) {
+    add_final_offset(values);
+    return;
+  }
   for (int m = 0; m < modes_; ++m) weights_[m] = integral_of_exponential(rates_[m], inverse_rates_[m], elapsed);
   offset_.noalias() = shares_ * weights_;
   for (int i = 0; i < size_; ++i) values[i] += offset_[i].real();
@@ -116,6 +148,7 @@ void CarriedTransient::add_offset(double time, double* values) const {
 void CarriedTransient::subtract_rate(double time, double* values) const {
   if (modes_ == 0) return;
   const double elapsed = time - start_;
+  if (elapsed > decayed_after_) return;
   for (int m = 0; m < modes_; ++m) weights_[m] = std::exp(rates_[m] * elapsed);
   offset_.noalias() = shares_ * weights_;
   for (int i = 0; i < size_; ++i) values[i] -= offset_[i].real();

@@ -254,7 +254,20 @@ class Driver {
     carried_.add_offset(time, states_now_.data());
   }
   // At a (re)start: the transient carried from `time` on, and CVODE's y = x there (the offset starts at zero).
-  void carry_from(double time);
+  void carry_from(double time, bool carry);
+  // Where the circuit leaves its linearisation (y, which holds what the offset does not explain, has moved by a
+  // quarter of the transient's whole excursion, weighted by the tolerances), the carry ends: CVODE restarts from
+  // x with nothing carried (a PTC that heats up tenfold in its own charge would otherwise leave y the transient's
+  // negative to integrate).
+  void end_carry_if_departed(double t) {
+    if (!carried_.active() || carried_.decayed(t)) return;
+    const double* y = N_VGetArrayPointer(handles_.states);
+    double departure = 0.0;
+    for (int i = 0; i < states_; ++i) departure = std::max(departure, std::fabs(y[i] - carry_origin_[i]) * carry_weights_[i]);
+    if (departure <= 0.25 * carry_excursion_) return;
+    reinitialise(t, false);
+    limit_steps_while_ringing(t);
+  }
   void reset_guess() { std::fill(unknowns_.begin(), unknowns_.end(), 0.0); }
   // The network at (t, x) into unknowns_ for a callback; false (after clearing the guess) tells CVODE the
   // failure is recoverable: it retries with a smaller step.
@@ -419,10 +432,10 @@ class Driver {
     }
     for (int a = 0; a < accounts_; ++a) accounts()[a] += carried_rates_[a];
   }
-  void reinitialise(double t) {
+  void reinitialise(double t, bool carry = true) {
     sync_accounts(t);
     harvest_statistics(t);
-    carry_from(t);
+    carry_from(t, carry);
     check(CVodeReInit(handles_.memory, t, handles_.states), "CVodeReInit", t);
     if (accounts_ > 0) check(CVodeQuadReInit(handles_.memory, handles_.accounts), "CVodeQuadReInit", t);
     ++result_.statistics.reinitialisations;
@@ -525,6 +538,9 @@ class Driver {
   double recorded_until_ = 0.0;
   CarriedTransient carried_;             // the switching's transient in closed form (inactive: y = x)
   bool steps_limited_ = false;           // CVODE's max step shortened for a ringing carried mode
+  std::vector<double> carry_origin_;     // x at the carry's start
+  std::vector<double> carry_weights_;    // 1/(rtol·|x0| + atol) there
+  double carry_excursion_ = 0.0;         // the final offset's largest weighted magnitude
   std::vector<double> states_now_;       // the circuit's states x at the time the run stands at
   std::vector<double> callback_states_;  // scratch: x in a callback
   CarriedAccounts carried_accounts_;     // the accounts along the carried transient
@@ -593,9 +609,9 @@ void Driver::create_vectors(double t0) {
   std::copy(x(), x() + n_, N_VGetArrayPointer(handles_.states));
 }
 
-void Driver::carry_from(double time) {
+void Driver::carry_from(double time, bool carry) {
   carried_ = CarriedTransient();
-  if (options_.carry_transients && states_ > 0 && !sweeping()) {
+  if (carry && options_.carry_transients && states_ > 0 && !sweeping()) {
     solve_at(time, x());
     Eigen::MatrixXd jacobian(states_, states_);
     Eigen::VectorXd rates(states_);
@@ -605,6 +621,15 @@ void Driver::carry_from(double time) {
     const double* absolute = N_VGetArrayPointer(handles_.tolerances);
     for (int i = 0; i < states_; ++i) tolerances[i] = options_.relative_tolerance * std::fabs(x()[i]) + absolute[i];
     carried_ = CarriedTransient(jacobian, rates, time, options_.duration, tolerances);
+    carry_origin_.assign(x(), x() + states_);
+    carry_weights_.resize(states_);
+    std::vector<double> final(states_, 0.0);
+    carried_.add_final_offset(final.data());
+    carry_excursion_ = 0.0;
+    for (int i = 0; i < states_; ++i) {
+      carry_weights_[i] = 1.0 / tolerances[i];
+      carry_excursion_ = std::max(carry_excursion_, std::fabs(final[i]) * carry_weights_[i]);
+    }
   }
   carried_accounts_.stop();
   if (carried_.active() && accounts_ > 0 &&
@@ -794,6 +819,7 @@ double Driver::advance(double t) {
   if (auto finished = finish_inside_step(reached)) return *finished;
   record_until(reached, x());
   if (flag == CV_ROOT_RETURN) handle_roots(reached);
+  end_carry_if_departed(reached);
   return reached;
 }
 

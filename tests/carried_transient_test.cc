@@ -79,6 +79,27 @@ TEST(CarriedTransient, LeavesModesThatDoNotDecayWithinTheRunToTheIntegrator) {
   EXPECT_FALSE(CarriedTransient(slow, Eigen::VectorXd::Ones(1), 0.0, 2.0, Eigen::VectorXd::Ones(1)).active());
 }
 
+TEST(CarriedTransient, CarriesOnlyAFastClusterThatStandsApart) {
+  // Decays at 5e4 and 1e4 /s (an inrush's two modes, five times apart) beside a polarisation at 2 /s: the pair is
+  // carried, the polarisation (5000 times slower than the slower of the pair) is not.
+  Eigen::MatrixXd jacobian = Eigen::Vector3d(-5e4, -1e4, -2.0).asDiagonal();
+  const CarriedTransient inrush(jacobian, Eigen::Vector3d(1.0, 1.0, 1.0), 0.0, 2.0, Eigen::Vector3d::Constant(1e-9));
+  EXPECT_EQ(inrush.modes(), 2);
+  EXPECT_NEAR(inrush.longest_time(), 1e-4, 1e-16);
+  // A pre-charge's R·C of 70 ms is 3.5 % of a 2 s run: the run's main dynamics, left to the integrator.
+  jacobian = Eigen::Vector3d(-1.0 / 0.07, -2.0, -0.01).asDiagonal();
+  EXPECT_FALSE(CarriedTransient(jacobian, Eigen::Vector3d(1.0, 1.0, 1.0), 0.0, 2.0, Eigen::Vector3d::Constant(1e-9))
+                   .active());
+  // 1e4 /s alone is only 20 times faster than 500 /s, so the cluster is the two of them; with a third mode at
+  // 20 /s no cluster stands 100 times apart, and nothing is carried.
+  jacobian = Eigen::Vector3d(-1e4, -500.0, -0.01).asDiagonal();
+  const CarriedTransient crowded(jacobian, Eigen::Vector3d(1.0, 1.0, 1.0), 0.0, 2.0, Eigen::Vector3d::Constant(1e-9));
+  EXPECT_EQ(crowded.modes(), 2);  // 2 ms, 0.1 % of the run, 5e4 times faster than 0.01 /s
+  jacobian = Eigen::Vector3d(-1e4, -500.0, -20.0).asDiagonal();
+  EXPECT_FALSE(CarriedTransient(jacobian, Eigen::Vector3d(1.0, 1.0, 1.0), 0.0, 2.0, Eigen::Vector3d::Constant(1e-9))
+                   .active());
+}
+
 TEST(CarriedTransient, RowsAreEvenThenGrowByAFixedRatio) {
   const SeriesCircuit c{30.0, 0.12, 3e-6, 1.5e-3};
   const CarriedTransient carried(c.jacobian(), c.rates_at_rest(), 1.0, 2.0, unit_tolerances());
