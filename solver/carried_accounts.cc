@@ -4,7 +4,6 @@
 
 namespace linkrise::solver {
 namespace {
-constexpr double decay_lengths = 40.0;  // longest carried time constants until q(x_lin) counts as final
 constexpr int gauss_points = 8;
 }  // namespace
 
@@ -25,7 +24,7 @@ bool CarriedAccounts::start(const CarriedTransient& transient, const double* ori
   unknowns_.assign(guess, guess + circuit_.unknown_count());
   rate_.resize(circuit_.quadrature_count());
   final_rates_.resize(circuit_.quadrature_count());
-  end_ = transient.start() + decay_lengths * transient.longest_time();
+  end_ = transient.final_time();
   tabulated_ = false;
   states_ = origin_;
   transient.add_final_offset(states_.data());

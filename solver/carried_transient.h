@@ -43,6 +43,8 @@ class CarriedTransient {
   void add_final_offset(double* values) const;
   /// Whether the offset has reached its final value (40 of the slowest time constants after the start).
   bool decayed(double time) const { return time - start_ > decayed_after_; }
+  /// The absolute time from which the offset is final.
+  double final_time() const { return start_ + decayed_after_; }
   /// The carried modes' shortest and longest time constants 1/|Re λ|, s.
   double shortest_time() const { return shortest_; }
   double longest_time() const { return longest_; }

@@ -215,13 +215,16 @@ class Driver {
     double t = 0.0;
     if (CVodeGetCurrentTime(handles_.memory, &t) != CV_SUCCESS) return -1;
     const double* x = circuit_states(t, y);
-    const double* absolute = N_VGetArrayPointer(handles_.tolerances);
     for (int i = 0; i < n_; ++i) {
-      const double scale = options_.relative_tolerance * std::fabs(x[i]) + absolute[i];
+      const double scale = tolerance_scale(i, x[i]);
       if (!(scale > 0.0)) return -1;
       weights[i] = 1.0 / scale;
     }
     return 0;
+  }
+  // rtol·|x_i| + atol_i: what CVODE's error test holds state i to (its weight is the inverse).
+  double tolerance_scale(int i, double value) const {
+    return options_.relative_tolerance * std::fabs(value) + N_VGetArrayPointer(handles_.tolerances)[i];
   }
 
  private:
@@ -368,6 +371,7 @@ class Driver {
   // half a spacing of the last row or of t is left out, so the intervals stay between half and one and a half
   // spacings: the metrics' piecewise parabolas join only rows of like spacing (analysis/trace.h).
   void record_carried_rows(double t, double* states) {
+    if (!carried_.active()) return;
     const double from = std::max(recorded_until_, dense_start());
     double row = carried_.row_after(from);
     while (row < t && row - from < 0.5 * carried_.row_spacing(row)) row = carried_.row_after(row);
@@ -618,8 +622,7 @@ void Driver::carry_from(double time, bool carry) {
     equations_.jacobian(time, x(), modes_.data(), unknowns_.data(), jacobian.data());
     equations_.state_rates(time, x(), modes_.data(), unknowns_.data(), rates.data());
     Eigen::VectorXd tolerances(states_);
-    const double* absolute = N_VGetArrayPointer(handles_.tolerances);
-    for (int i = 0; i < states_; ++i) tolerances[i] = options_.relative_tolerance * std::fabs(x()[i]) + absolute[i];
+    for (int i = 0; i < states_; ++i) tolerances[i] = tolerance_scale(i, x()[i]);
     carried_ = CarriedTransient(jacobian, rates, time, options_.duration, tolerances);
     carry_origin_.assign(x(), x() + states_);
     carry_weights_.resize(states_);
